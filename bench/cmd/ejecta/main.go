@@ -1,0 +1,58 @@
+// Command ejecta runs the ejecta tools: the scheme comparison suite, the
+// stellar-population release table, the conservation audit of a host's own
+// feedback dump, and the version.
+//
+// Usage:
+//
+//	ejecta <command> [flags]
+//
+// Run "ejecta help" for the list of commands.
+package main
+
+import (
+	"fmt"
+	"io"
+	"os"
+)
+
+// command is one subcommand of the CLI.
+type command struct {
+	name    string
+	summary string
+	run     func(args []string, stdout, stderr io.Writer) int
+}
+
+func commands() []command {
+	return []command{
+		{"version", "print the ejecta version", runVersion},
+	}
+}
+
+func usage(w io.Writer) {
+	fmt.Fprintln(w, "usage: ejecta <command> [flags]")
+	fmt.Fprintln(w, "commands:")
+	for _, c := range commands() {
+		fmt.Fprintf(w, "  %-8s %s\n", c.name, c.summary)
+	}
+}
+
+func run(args []string, stdout, stderr io.Writer) int {
+	if len(args) == 0 {
+		usage(stderr)
+		return 2
+	}
+	if args[0] == "help" || args[0] == "-h" || args[0] == "--help" {
+		usage(stdout)
+		return 0
+	}
+	for _, c := range commands() {
+		if c.name == args[0] {
+			return c.run(args[1:], stdout, stderr)
+		}
+	}
+	fmt.Fprintf(stderr, "ejecta: unknown command %q\n", args[0])
+	usage(stderr)
+	return 2
+}
+
+func main() { os.Exit(run(os.Args[1:], os.Stdout, os.Stderr)) }

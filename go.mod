@@ -1,0 +1,3 @@
+module github.com/ejecta-dev/ejecta
+
+go 1.26.8

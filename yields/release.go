@@ -1,0 +1,142 @@
+package yields
+
+// Species indexes the tracked chemical species. Metals is the total metal
+// mass (everything heavier than helium); the others are single elements.
+type Species int
+
+// The tracked species, in the order of Abundances.
+const (
+	Metals Species = iota
+	Hydrogen
+	Helium
+	Carbon
+	Nitrogen
+	Oxygen
+	Neon
+	Magnesium
+	Silicon
+	Sulfur
+	Calcium
+	Iron
+	// NumSpecies is the number of tracked species.
+	NumSpecies
+)
+
+var speciesSymbols = [NumSpecies]string{"Z", "H", "He", "C", "N", "O", "Ne", "Mg", "Si", "S", "Ca", "Fe"}
+
+// Symbol is the short name of the species: "Z" for total metals, else the
+// chemical symbol.
+func (s Species) Symbol() string {
+	if s < 0 || s >= NumSpecies {
+		return "?"
+	}
+	return speciesSymbols[s]
+}
+
+// Abundances holds one number per species (a mass, a yield or a fraction,
+// as the holder documents).
+type Abundances [NumSpecies]float64
+
+// Channel names a source of stellar release.
+type Channel int
+
+// The release channels.
+const (
+	// CoreCollapse is core-collapse supernovae of massive stars (discrete events).
+	CoreCollapse Channel = iota
+	// TypeIa is thermonuclear supernovae from the delay-time distribution (discrete events).
+	TypeIa
+	// MassiveWinds is the continuous mass loss of massive stars before they explode.
+	MassiveWinds
+	// AGBWinds is the mass loss of intermediate- and low-mass stars on the asymptotic giant branch.
+	AGBWinds
+	// NumChannels is the number of channels.
+	NumChannels
+)
+
+var channelNames = [NumChannels]string{"core-collapse", "type-ia", "massive-winds", "agb-winds"}
+
+// String is the channel's name.
+func (c Channel) String() string {
+	if c < 0 || c >= NumChannels {
+		return "unknown-channel"
+	}
+	return channelNames[c]
+}
+
+// Discrete reports whether the channel comes as countable events (supernovae).
+func (c Channel) Discrete() bool { return c == CoreCollapse || c == TypeIa }
+
+// Ejecta is what one channel releases over an age interval, per solar mass
+// of stars formed.
+type Ejecta struct {
+	// Events is the expected number of discrete events (supernovae) per Msun
+	// formed; zero for continuous channels.
+	Events float64
+	// Mass is the ejected mass in Msun per Msun formed.
+	Mass float64
+	// Species is the ejected mass of each species in Msun per Msun formed;
+	// Species[Metals] is the total metal mass. Species[Hydrogen] +
+	// Species[Helium] + Species[Metals] equals Mass.
+	Species Abundances
+	// Energy is the energy released in erg per Msun formed: explosion energy
+	// for supernovae, the kinetic energy 1/2 M v^2 of the wind for winds.
+	Energy float64
+	// WindSpeed is the mass-weighted mean wind speed in km/s for wind
+	// channels, zero otherwise.
+	WindSpeed float64
+}
+
+// Add returns the sum of two releases of the same channel. Wind speeds are
+// combined so that mass and kinetic energy both add.
+func (e Ejecta) Add(o Ejecta) Ejecta {
+	r := Ejecta{Events: e.Events + o.Events, Mass: e.Mass + o.Mass, Energy: e.Energy + o.Energy}
+	for i := range r.Species {
+		r.Species[i] = e.Species[i] + o.Species[i]
+	}
+	if e.WindSpeed > 0 || o.WindSpeed > 0 {
+		// Mass-weighted mean speed, the definition WindSpeed documents.
+		if r.Mass > 0 {
+			r.WindSpeed = (e.Mass*e.WindSpeed + o.Mass*o.WindSpeed) / r.Mass
+		}
+	}
+	return r
+}
+
+// Release is everything a simple stellar population releases between two
+// ages, per solar mass formed.
+type Release struct {
+	// Age0 and Age1 bound the interval, in Myr since formation.
+	Age0, Age1 float64
+	// Metallicity is the population's metal mass fraction.
+	Metallicity float64
+	// Channels holds the ejecta of each channel.
+	Channels [NumChannels]Ejecta
+	// RadiantEnergy is the bolometric energy emitted over the interval, in
+	// erg per Msun formed (the time integral of the luminosity).
+	RadiantEnergy float64
+	// IonizingPhotons is the number of hydrogen-ionising photons emitted over
+	// the interval per Msun formed.
+	IonizingPhotons float64
+}
+
+// Total is the sum of all channels' ejecta.
+func (r Release) Total() Ejecta {
+	var t Ejecta
+	for _, c := range r.Channels {
+		t = t.Add(c)
+	}
+	return t
+}
+
+// Model is a source of releases: the built-in population model or a user
+// table. Ages are in Myr, metallicity is a metal mass fraction.
+type Model interface {
+	// Release returns what one Msun formed releases between age0 and age1.
+	Release(age0, age1, z float64) (Release, error)
+	// Luminosity is the bolometric luminosity at an age, in Lsun per Msun formed.
+	Luminosity(age, z float64) (float64, error)
+	// IonizingRate is the hydrogen-ionising photon rate at an age, in photons
+	// per second per Msun formed.
+	IonizingRate(age, z float64) (float64, error)
+}
