@@ -1,0 +1,174 @@
+package feedback
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+
+	"github.com/ejecta-dev/ejecta/yields"
+)
+
+// Touched is the timestep help for one gas element that received records:
+// the largest speed change and the largest heating per unit mass any single
+// record gave it, and the union of the records' flags.
+type Touched struct {
+	Index           int
+	ID              int64
+	MaxKick         float64
+	MaxHeating      float64
+	Flags           Flags
+	CoolingOffUntil float64
+}
+
+// ApplyReport summarises an Apply call.
+type ApplyReport struct {
+	// Records and Elements count what was applied.
+	Records, Elements int
+	// Deposited is what the gas gained, recomputed from the records.
+	Deposited Quantities
+	// ClampedEnergy is energy that had to be added to keep an element's
+	// internal energy from going negative: positive only when kicks of
+	// several stars on one element added up coherently to more kinetic
+	// energy than their total energy; ClampedElements counts such elements.
+	ClampedEnergy   float64
+	ClampedElements int
+}
+
+// CompareRecords orders records by gas ID, then star ID, then channel: the
+// order in which Apply sums them.
+func CompareRecords(a, b *Record) int {
+	if d := cmpInt64(a.GasID, b.GasID); d != 0 {
+		return d
+	}
+	if d := cmpInt64(a.StarID, b.StarID); d != 0 {
+		return d
+	}
+	return int(a.Channel) - int(b.Channel)
+}
+
+// Apply adds records to the gas in place. It first sorts the records by
+// gas ID, star ID and channel, then sums each element's records in that
+// fixed order, so the result is bitwise the same whatever order the records
+// came in (any worker count, any star order, any rank count). For each
+// element it sets
+//
+//	m' = m + sum dm,  v' = (m v + sum dp) / m',  X'_s = (X_s m + sum dm_s) / m',
+//	u' = (m u + sum dE - (1/2 m' v'^2 - 1/2 m v^2)) / m',
+//
+// so the element's total energy grows by exactly the records' energies.
+// All records are checked before anything is written: a bad record (index
+// outside the gas, ID not matching the element at its index, non-finite
+// values, negative mass) fails the call and leaves the gas untouched.
+// touched (may be nil) is reused to return the timestep help, one entry per
+// element, in gas-ID order.
+func Apply(gas *Gas, records []Record, touched []Touched) ([]Touched, ApplyReport, error) {
+	var rep ApplyReport
+	touched = touched[:0]
+	if err := gas.Validate(); err != nil {
+		return touched, rep, fmt.Errorf("apply: %w", err)
+	}
+	for i := range records {
+		r := &records[i]
+		if r.GasIndex < 0 || r.GasIndex >= gas.N {
+			return touched, rep, fmt.Errorf("apply: record %d: gas index %d outside the gas (%d elements)", i, r.GasIndex, gas.N)
+		}
+		if id := gas.ID.Int(r.GasIndex); id != r.GasID {
+			return touched, rep, fmt.Errorf("apply: record %d: gas ID %d does not match ID %d at index %d", i, r.GasID, id, r.GasIndex)
+		}
+		if err := r.check(); err != nil {
+			return touched, rep, fmt.Errorf("apply: record %d (gas %d, star %d): %w", i, r.GasID, r.StarID, err)
+		}
+	}
+	slices.SortFunc(records, func(a, b Record) int { return CompareRecords(&a, &b) })
+	for lo := 0; lo < len(records); {
+		hi := lo + 1
+		for hi < len(records) && records[hi].GasID == records[lo].GasID {
+			hi++
+		}
+		if records[lo].GasIndex != records[hi-1].GasIndex {
+			return touched, rep, fmt.Errorf("apply: gas ID %d appears at two indices", records[lo].GasID)
+		}
+		t := applyElement(gas, records[lo:hi], &rep)
+		touched = append(touched, t)
+		rep.Elements++
+		lo = hi
+	}
+	rep.Records = len(records)
+	return touched, rep, nil
+}
+
+func (r *Record) check() error {
+	vals := [...]float64{r.Mass, r.Momentum[0], r.Momentum[1], r.Momentum[2], r.Energy, r.Heat, r.Kick, r.Heating, r.CoolingOffUntil}
+	for _, v := range vals {
+		if !finite(v) {
+			return errors.New("non-finite value")
+		}
+	}
+	if r.Mass < 0 {
+		return fmt.Errorf("negative mass %g", r.Mass)
+	}
+	for sp, m := range r.Species {
+		if !finite(m) || m < 0 || m > r.Mass*(1+1e-12) {
+			return fmt.Errorf("species %d mass %g not within [0, %g]", sp, m, r.Mass)
+		}
+	}
+	return nil
+}
+
+// applyElement sums one element's records (already in order) and writes
+// its new state.
+func applyElement(gas *Gas, recs []Record, rep *ApplyReport) Touched {
+	i := recs[0].GasIndex
+	t := Touched{Index: i, ID: recs[0].GasID}
+	m := gas.Mass.At(i)
+	v := gas.velocity(i)
+	u := gas.InternalEnergy.At(i)
+	var dm, de float64
+	var dp [3]float64
+	var dsp yields.Abundances
+	for k := range recs {
+		r := &recs[k]
+		dm += r.Mass
+		for a := 0; a < 3; a++ {
+			dp[a] += r.Momentum[a]
+		}
+		de += r.Energy
+		for s := range dsp {
+			dsp[s] += r.Species[s]
+		}
+		t.MaxKick = math.Max(t.MaxKick, r.Kick)
+		t.MaxHeating = math.Max(t.MaxHeating, r.Heating)
+		t.Flags |= r.Flags
+		t.CoolingOffUntil = math.Max(t.CoolingOffUntil, r.CoolingOffUntil)
+		rep.Deposited.Mass += r.Mass
+		for a := 0; a < 3; a++ {
+			rep.Deposited.Momentum[a] += r.Momentum[a]
+		}
+		rep.Deposited.Energy += r.Energy
+		for s := range r.Species {
+			rep.Deposited.Species[s] += r.Species[s]
+		}
+	}
+	mt := m + dm
+	// Kinetic energy gained, written without the cancellation of
+	// 1/2 m' v'^2 - 1/2 m v^2.
+	dke := (2*m*dot(v, dp) + dot(dp, dp) - m*dm*dot(v, v)) / (2 * mt)
+	thermal := m*u + de - dke
+	if thermal < 0 {
+		rep.ClampedEnergy += -thermal
+		rep.ClampedElements++
+		thermal = 0
+	}
+	for a := 0; a < 3; a++ {
+		gas.Vel[a].Set(i, (m*v[a]+dp[a])/mt)
+	}
+	gas.Mass.Set(i, mt)
+	gas.InternalEnergy.Set(i, thermal/mt)
+	for c, s := range gas.Species {
+		col := gas.SpeciesFractions[c]
+		x := (col.At(i)*m + dsp[s]) / mt
+		col.Set(i, math.Min(math.Max(x, 0), 1))
+	}
+	return t
+}

@@ -1,0 +1,369 @@
+package feedback
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+	"sync"
+	"sync/atomic"
+
+	"github.com/ejecta-dev/ejecta/neighbor"
+	"github.com/ejecta-dev/ejecta/yields"
+	"github.com/ejecta-dev/ejecta/yields/units"
+)
+
+// Record is one star's deposit into one gas element, ready to be applied
+// in place or sent to the rank that owns the element. Kick is the speed
+// change the deposit alone gives the element and Heating its heat per unit
+// mass, for the host's timestep limiter.
+type Record struct {
+	GasIndex int
+	GasID    int64
+	StarID   int64
+	Channel  yields.Channel
+	Deposit
+	Kick    float64
+	Heating float64
+}
+
+// Problem is a source whose release was returned undeposited, and why.
+type Problem struct {
+	StarID int64
+	Index  int
+	Err    error
+}
+
+// Output receives the result of Couple. Its slices are reused from call to
+// call: keep one Output per simulation to avoid allocation.
+type Output struct {
+	// Records, grouped by source in input order.
+	Records []Record
+	// Ledger of the call.
+	Ledger Ledger
+	// Problems lists the sources returned undeposited.
+	Problems []Problem
+}
+
+// Config sets up a Coupler. Lengths, masses, velocities and energies in the
+// gas and the sources are in the code units given here.
+type Config struct {
+	// Units are the host's code units.
+	Units units.CodeUnits
+	// Scheme splits each release; nil means TerminalMomentum with the
+	// Kim & Ostriker 2015 fit.
+	Scheme Scheme
+	// Weighting shares the release among neighbours before the isotropy
+	// correction.
+	Weighting Weighting
+	// SkipIsotropyCorrection turns the isotropy correction off (for
+	// comparisons); the net momentum is still removed so that momentum is
+	// conserved, and the residual is reported.
+	SkipIsotropyCorrection bool
+	// Neighbours is the number of nearest gas elements each star couples
+	// to; 0 means 32. Ignored when Radius > 0.
+	Neighbours int
+	// Radius, when positive, couples each star to all gas within this
+	// distance (code length) instead of a fixed number of neighbours. With
+	// host-supplied neighbour lists, a huge radius takes whole rows.
+	Radius float64
+	// Workers is the number of goroutines; 0 means 1. Results are bitwise
+	// the same for any number.
+	Workers int
+	// Box is the periodic box (zero for none), used for star-to-gas
+	// separations.
+	Box neighbor.Box
+}
+
+// DefaultNeighbours is the neighbour count used when Config.Neighbours is 0.
+const DefaultNeighbours = 32
+
+// Coupler deposits releases into gas. It holds per-worker scratch and is
+// reused from call to call; one Coupler must not run two Couple calls at
+// once (create one per concurrent simulation).
+type Coupler struct {
+	cfg     Config
+	scheme  Scheme
+	workers []workerScratch
+	slots   []slot
+	order   []int
+	mu      sync.Mutex
+}
+
+type slot struct {
+	worker, start, count int
+	ledger               Ledger
+	err                  error
+}
+
+type workerScratch struct {
+	nb      Neighbourhood
+	found   []neighbor.Neighbor
+	deps    []Deposit
+	records []Record
+}
+
+// NewCoupler checks the configuration and prepares a coupler.
+func NewCoupler(cfg Config) (*Coupler, error) {
+	if err := cfg.Units.Validate(); err != nil {
+		return nil, fmt.Errorf("coupler: %w", err)
+	}
+	if cfg.Scheme == nil {
+		cfg.Scheme = TerminalMomentum{Fit: KimOstriker2015}
+	}
+	if cfg.Neighbours == 0 {
+		cfg.Neighbours = DefaultNeighbours
+	}
+	if cfg.Neighbours < 0 {
+		return nil, fmt.Errorf("coupler: neighbour count %d must be positive", cfg.Neighbours)
+	}
+	if !(cfg.Radius >= 0) {
+		return nil, fmt.Errorf("coupler: radius %g must be non-negative", cfg.Radius)
+	}
+	if cfg.Workers == 0 {
+		cfg.Workers = 1
+	}
+	if cfg.Workers < 0 || cfg.Workers > 4096 {
+		return nil, fmt.Errorf("coupler: worker count %d outside 1..4096", cfg.Workers)
+	}
+	if cfg.Weighting != KernelVolume && cfg.Weighting != SolidAngle {
+		return nil, fmt.Errorf("coupler: unknown weighting %d", cfg.Weighting)
+	}
+	for a := 0; a < 3; a++ {
+		if !(cfg.Box.Size[a] >= 0) || math.IsInf(cfg.Box.Size[a], 0) {
+			return nil, fmt.Errorf("coupler: box size %g on axis %d must be finite and non-negative", cfg.Box.Size[a], a)
+		}
+	}
+	c := &Coupler{cfg: cfg, scheme: cfg.Scheme, workers: make([]workerScratch, cfg.Workers)}
+	for i := range c.workers {
+		c.workers[i].nb.correct = !cfg.SkipIsotropyCorrection
+		c.workers[i].nb.Units = cfg.Units
+	}
+	return c, nil
+}
+
+// Config returns the configuration in force (with defaults filled in).
+func (c *Coupler) Config() Config { return c.cfg }
+
+// errNoNeighbours is the reason a source with no gas around it is returned
+// undeposited.
+var errNoNeighbours = errors.New("no gas neighbours")
+
+// Couple deposits every source's release into the gas around it. finder
+// must have been built on the same gas (the same element order). Records
+// are written to out.Records (not applied: call Apply, or send them to the
+// owning rank first), and out.Ledger accounts for everything. A source
+// that cannot be coupled (bad values, no neighbours, a neighbour with bad
+// fields) is returned undeposited in the ledger and listed in
+// out.Problems; Couple's error is for problems with the call itself.
+func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out *Output) error {
+	if !c.mu.TryLock() {
+		return errors.New("couple: coupler already in use by another call")
+	}
+	defer c.mu.Unlock()
+	if out == nil {
+		return errors.New("couple: nil output")
+	}
+	out.Records = out.Records[:0]
+	out.Problems = out.Problems[:0]
+	out.Ledger = Ledger{}
+	if err := gas.Validate(); err != nil {
+		return fmt.Errorf("couple: %w", err)
+	}
+	if finder == nil {
+		return errors.New("couple: nil neighbour finder")
+	}
+	n := len(sources)
+	if cap(c.slots) < n {
+		c.slots = make([]slot, n)
+		c.order = make([]int, n)
+	}
+	c.slots = c.slots[:n]
+	c.order = c.order[:n]
+	for w := range c.workers {
+		c.workers[w].records = c.workers[w].records[:0]
+	}
+	metals, hasMetals := gas.speciesColumn(yields.Metals)
+
+	var next atomic.Int64
+	const chunk = 16
+	work := func(w int) {
+		ws := &c.workers[w]
+		for {
+			lo := int(next.Add(chunk)) - chunk
+			if lo >= n {
+				return
+			}
+			hi := min(lo+chunk, n)
+			for i := lo; i < hi; i++ {
+				sl := &c.slots[i]
+				sl.worker, sl.start = w, len(ws.records)
+				sl.ledger, sl.err = c.coupleOne(ws, gas, finder, &sources[i], i, metals, hasMetals)
+				sl.count = len(ws.records) - sl.start
+			}
+		}
+	}
+	if len(c.workers) == 1 || n <= chunk {
+		work(0)
+	} else {
+		var wg sync.WaitGroup
+		for w := range c.workers {
+			wg.Add(1)
+			go func() { defer wg.Done(); work(w) }()
+		}
+		wg.Wait()
+	}
+
+	for i := range c.slots {
+		sl := &c.slots[i]
+		out.Records = append(out.Records, c.workers[sl.worker].records[sl.start:sl.start+sl.count]...)
+		if sl.err != nil {
+			out.Problems = append(out.Problems, Problem{StarID: sources[i].Star.ID, Index: i, Err: sl.err})
+		}
+		c.order[i] = i
+	}
+	// Sum ledgers in star-ID order so the totals do not depend on the input
+	// order of the stars.
+	slices.SortFunc(c.order, func(a, b int) int {
+		if d := cmpInt64(sources[a].Star.ID, sources[b].Star.ID); d != 0 {
+			return d
+		}
+		return a - b
+	})
+	for _, i := range c.order {
+		out.Ledger.Add(&c.slots[i].ledger)
+	}
+	return nil
+}
+
+func cmpInt64(a, b int64) int {
+	switch {
+	case a < b:
+		return -1
+	case a > b:
+		return 1
+	}
+	return 0
+}
+
+// undeposited books a whole source as returned to the caller.
+func undeposited(src *Source, err error) (Ledger, error) {
+	l := Ledger{Stars: 1, Skipped: 1}
+	l.In = sourceQuantities(src)
+	l.Undeposited = l.In
+	l.EnergyScale = math.Abs(l.In.Energy)
+	return l, err
+}
+
+// coupleOne handles one source: find its gas, weigh it, let the scheme
+// split the release, and append records.
+func (c *Coupler) coupleOne(ws *workerScratch, gas *Gas, finder neighbor.Finder, src *Source, idx int, metals Column, hasMetals bool) (Ledger, error) {
+	if err := src.Validate(); err != nil {
+		// A malformed release (NaN, negative) cannot be booked: nothing of
+		// it enters the ledger and the caller keeps it, told why.
+		return Ledger{Stars: 1, Skipped: 1}, err
+	}
+	q := neighbor.Query{Pos: src.Star.Pos, Star: idx}
+	var err error
+	if c.cfg.Radius > 0 {
+		ws.found, err = finder.Within(q, c.cfg.Radius, ws.found)
+	} else {
+		ws.found, err = finder.Nearest(q, c.cfg.Neighbours, ws.found)
+	}
+	if err != nil {
+		return undeposited(src, fmt.Errorf("star %d: neighbour search: %w", src.Star.ID, err))
+	}
+	k := len(ws.found)
+	if k == 0 {
+		return undeposited(src, fmt.Errorf("star %d: %w", src.Star.ID, errNoNeighbours))
+	}
+	nb := &ws.nb
+	nb.resize(k)
+	nb.Source = src
+	vs := src.Star.Vel
+	kinetic := 0.0
+	for j, f := range ws.found {
+		i := f.Index
+		if i < 0 || i >= gas.N {
+			return undeposited(src, fmt.Errorf("star %d: neighbour index %d outside the gas (%d elements)", src.Star.ID, i, gas.N))
+		}
+		nb.Index[j] = i
+		nb.ID[j] = gas.ID.Int(i)
+		m, rho, u := gas.Mass.At(i), gas.Density.At(i), gas.InternalEnergy.At(i)
+		if !(m > 0) || !(rho > 0) || !(u >= 0) || math.IsInf(m, 0) || math.IsInf(rho, 0) || math.IsInf(u, 0) {
+			return undeposited(src, fmt.Errorf("star %d: gas element %d (ID %d) has mass %g, density %g, internal energy %g: need positive finite mass and density and finite non-negative energy", src.Star.ID, i, nb.ID[j], m, rho, u))
+		}
+		nb.Mass[j], nb.Density[j], nb.InternalEnergy[j] = m, rho, u
+		z := src.Star.Metallicity
+		if hasMetals {
+			z = metals.At(i)
+		}
+		nb.Metallicity[j] = z
+		p, v := gas.position(i), gas.velocity(i)
+		var d [3]float64
+		for a := 0; a < 3; a++ {
+			d[a] = p[a] - src.Star.Pos[a]
+		}
+		d = c.cfg.Box.MinImage(d)
+		r := math.Sqrt(dot(d, d))
+		if !finite(r) || !finite(dot(v, v)) || !finite(z) {
+			return undeposited(src, fmt.Errorf("star %d: gas element %d (ID %d) has a non-finite position, velocity or metallicity", src.Star.ID, i, nb.ID[j]))
+		}
+		nb.Dist[j] = r
+		if r > 0 {
+			nb.Dir[j] = [3]float64{d[0] / r, d[1] / r, d[2] / r}
+		} else {
+			nb.Dir[j] = [3]float64{}
+		}
+		nb.Vel[j] = v
+		nb.RelVel[j] = [3]float64{v[0] - vs[0], v[1] - vs[1], v[2] - vs[2]}
+		kinetic += 0.5 * m * dot(v, v)
+	}
+	baseWeights(c.cfg.Weighting, nb.Dist, nb.Mass, nb.Density, nb.Weight)
+	if nb.correct {
+		tilt(nb.Weight, nb.Dir, nb.scratch)
+		normalise(nb.Weight)
+	}
+	if cap(ws.deps) < k {
+		ws.deps = make([]Deposit, k)
+	}
+	deps := ws.deps[:k]
+	radiated, err := c.scheme.Deposit(nb, deps)
+	if err != nil {
+		return undeposited(src, fmt.Errorf("star %d: scheme %s: %w", src.Star.ID, c.scheme.Name(), err))
+	}
+	l := Ledger{Stars: 1, Radiated: radiated}
+	l.In = sourceQuantities(src)
+	for j := range deps {
+		d := &deps[j]
+		l.Deposited.Mass += d.Mass
+		for sp := range d.Species {
+			l.Deposited.Species[sp] += d.Species[sp]
+		}
+		for a := 0; a < 3; a++ {
+			l.Deposited.Momentum[a] += d.Momentum[a]
+		}
+		l.Deposited.Energy += d.Energy
+		mt := nb.Mass[j] + d.Mass
+		var dv [3]float64
+		for a := 0; a < 3; a++ {
+			dv[a] = (d.Momentum[a] - d.Mass*nb.Vel[j][a]) / mt
+		}
+		ws.records = append(ws.records, Record{
+			GasIndex: nb.Index[j], GasID: nb.ID[j], StarID: src.Star.ID, Channel: src.Channel,
+			Deposit: *d, Kick: math.Sqrt(dot(dv, dv)), Heating: d.Heat / mt,
+		})
+	}
+	if nb.capped {
+		l.Capped = 1
+	}
+	if nb.limited {
+		l.Limited = 1
+	}
+	l.MaxIsotropyResidual = nb.residual
+	l.SumIsotropyResidual = nb.residual
+	l.RadialMomentum = nb.radial
+	l.MomentumScale = nb.pscale + math.Sqrt(dot(l.In.Momentum, l.In.Momentum))
+	l.EnergyScale = kinetic + math.Abs(l.In.Energy)
+	return l, nil
+}

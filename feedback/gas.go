@@ -1,0 +1,135 @@
+package feedback
+
+import (
+	"fmt"
+
+	"github.com/ejecta-dev/ejecta/yields"
+)
+
+// Gas is a column-by-column view on the host's gas, in the host's code units
+// (see Config.Units). Positions, densities, smoothing lengths and IDs are only
+// read; velocities, masses, specific internal energies and species mass
+// fractions are written by Apply.
+//
+// Species lists which species the host tracks, and SpeciesFractions holds one
+// mass-fraction column per entry, in the same order. A species the host does
+// not track is still released and booked in the ledger, but no column
+// receives it.
+type Gas struct {
+	// N is the number of gas elements.
+	N int
+	// Pos holds the x, y and z position columns.
+	Pos [3]Column
+	// Vel holds the x, y and z velocity columns.
+	Vel [3]Column
+	// Mass is the element mass column.
+	Mass Column
+	// Density is the mass density column.
+	Density Column
+	// InternalEnergy is the specific internal energy column (energy per mass).
+	InternalEnergy Column
+	// Smoothing is the smoothing length column; optional (unused by the
+	// built-in weights, available to user schemes).
+	Smoothing Column
+	// ID is the unique element ID column (Int64 or Int32, or float holding
+	// integers). IDs order the application of records.
+	ID Column
+	// Species names the tracked species, one per SpeciesFractions column.
+	Species []yields.Species
+	// SpeciesFractions are the species mass-fraction columns.
+	SpeciesFractions []Column
+}
+
+// Validate checks lengths, types and strides of every column, and that no
+// two columns written by Apply overlap in memory. It reads no values.
+func (g *Gas) Validate() error {
+	if g == nil {
+		return fmt.Errorf("gas: nil")
+	}
+	if g.N <= 0 {
+		return fmt.Errorf("gas: %d elements, need at least one", g.N)
+	}
+	type named struct {
+		name     string
+		c        Column
+		writable bool
+	}
+	cols := []named{
+		{"pos.x", g.Pos[0], false}, {"pos.y", g.Pos[1], false}, {"pos.z", g.Pos[2], false},
+		{"vel.x", g.Vel[0], true}, {"vel.y", g.Vel[1], true}, {"vel.z", g.Vel[2], true},
+		{"mass", g.Mass, true}, {"density", g.Density, false},
+		{"internal energy", g.InternalEnergy, true}, {"id", g.ID, false},
+	}
+	if g.Smoothing.Bound() {
+		cols = append(cols, named{"smoothing", g.Smoothing, false})
+	}
+	if len(g.Species) != len(g.SpeciesFractions) {
+		return fmt.Errorf("gas: %d species named but %d species columns", len(g.Species), len(g.SpeciesFractions))
+	}
+	seen := map[yields.Species]bool{}
+	for i, s := range g.Species {
+		if s < 0 || s >= yields.NumSpecies {
+			return fmt.Errorf("gas: species %d is not a known species", int(s))
+		}
+		if seen[s] {
+			return fmt.Errorf("gas: species %s listed twice", s.Symbol())
+		}
+		seen[s] = true
+		cols = append(cols, named{"fraction of " + s.Symbol(), g.SpeciesFractions[i], true})
+	}
+	for _, c := range cols {
+		if err := c.c.check(c.name, g.N, c.writable); err != nil {
+			return fmt.Errorf("gas: %w", err)
+		}
+	}
+	for i := range cols {
+		for j := i + 1; j < len(cols); j++ {
+			if !cols[i].writable && !cols[j].writable {
+				continue
+			}
+			if collides(cols[i].c, cols[j].c) {
+				return fmt.Errorf("gas: columns %s and %s overlap in memory", cols[i].name, cols[j].name)
+			}
+		}
+	}
+	return nil
+}
+
+// speciesColumn returns the column of a tracked species, or false.
+func (g *Gas) speciesColumn(s yields.Species) (Column, bool) {
+	for i, t := range g.Species {
+		if t == s {
+			return g.SpeciesFractions[i], true
+		}
+	}
+	return Column{}, false
+}
+
+// position reads element i's position.
+func (g *Gas) position(i int) [3]float64 {
+	return [3]float64{g.Pos[0].At(i), g.Pos[1].At(i), g.Pos[2].At(i)}
+}
+
+// velocity reads element i's velocity.
+func (g *Gas) velocity(i int) [3]float64 {
+	return [3]float64{g.Vel[0].At(i), g.Vel[1].At(i), g.Vel[2].At(i)}
+}
+
+// PackedPositions writes the positions as a flat x0,y0,z0,x1,... slice (the
+// layout package neighbor builds on), reusing dst's storage.
+func (g *Gas) PackedPositions(dst []float64) []float64 {
+	dst = dst[:0]
+	for i := 0; i < g.N; i++ {
+		dst = append(dst, g.Pos[0].At(i), g.Pos[1].At(i), g.Pos[2].At(i))
+	}
+	return dst
+}
+
+// IDs writes the element IDs into dst, reusing its storage.
+func (g *Gas) IDs(dst []int64) []int64 {
+	dst = dst[:0]
+	for i := 0; i < g.N; i++ {
+		dst = append(dst, g.ID.Int(i))
+	}
+	return dst
+}

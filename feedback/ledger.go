@@ -1,0 +1,213 @@
+package feedback
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/ejecta-dev/ejecta/yields"
+)
+
+// Star is one star particle, in code units. Age is in code time units since
+// formation. ID must be unique among the stars of a call: it orders records.
+type Star struct {
+	ID          int64
+	Pos         [3]float64
+	Vel         [3]float64
+	Mass        float64
+	Metallicity float64
+	Age         float64
+}
+
+// Source is what one star releases into its gas in one call, in code units
+// and in the star's rest frame: the ejected mass (which moves with the star),
+// its species, and the energy (explosion energy for supernovae, wind kinetic
+// energy for winds). Events is the number of discrete events (supernovae)
+// the energy comes from; schemes that scale with energy per event (terminal
+// momentum) use it, and it is 0 for continuous release.
+type Source struct {
+	Star    Star
+	Channel yields.Channel
+	Mass    float64
+	Species yields.Abundances
+	Energy  float64
+	Events  float64
+	// Momentum is an extra star-frame radial momentum budget, in code units,
+	// that the scheme hands out on top of what the energy gives (radiation
+	// pressure). Zero for supernovae.
+	Momentum float64
+}
+
+// Validate checks that the release is finite, non-negative and that no
+// species outweighs the ejected mass.
+func (s *Source) Validate() error {
+	vals := []float64{s.Mass, s.Energy, s.Events, s.Momentum, s.Star.Mass, s.Star.Metallicity, s.Star.Age}
+	for _, v := range vals {
+		if !finite(v) {
+			return fmt.Errorf("star %d: non-finite release or star field", s.Star.ID)
+		}
+	}
+	for a := 0; a < 3; a++ {
+		if !finite(s.Star.Pos[a]) || !finite(s.Star.Vel[a]) {
+			return fmt.Errorf("star %d: non-finite position or velocity", s.Star.ID)
+		}
+	}
+	if s.Mass < 0 || s.Energy < 0 || s.Events < 0 || s.Momentum < 0 {
+		return fmt.Errorf("star %d: negative release (mass %g, energy %g, events %g, momentum %g)", s.Star.ID, s.Mass, s.Energy, s.Events, s.Momentum)
+	}
+	for sp, m := range s.Species {
+		if !finite(m) || m < 0 {
+			return fmt.Errorf("star %d: species %s mass %g is not finite and non-negative", s.Star.ID, yields.Species(sp).Symbol(), m)
+		}
+		if m > s.Mass*(1+1e-12) {
+			return fmt.Errorf("star %d: species %s mass %g exceeds the ejected mass %g", s.Star.ID, yields.Species(sp).Symbol(), m, s.Mass)
+		}
+	}
+	return nil
+}
+
+// Quantities is an amount of every conserved quantity, in code units:
+// mass, the mass of each species, lab-frame momentum, and total energy
+// (thermal plus lab-frame kinetic).
+type Quantities struct {
+	Mass     float64
+	Species  yields.Abundances
+	Momentum [3]float64
+	Energy   float64
+}
+
+func (q *Quantities) add(o *Quantities) {
+	q.Mass += o.Mass
+	for i := range q.Species {
+		q.Species[i] += o.Species[i]
+	}
+	for a := 0; a < 3; a++ {
+		q.Momentum[a] += o.Momentum[a]
+	}
+	q.Energy += o.Energy
+}
+
+func (q *Quantities) sub(o *Quantities) {
+	q.Mass -= o.Mass
+	for i := range q.Species {
+		q.Species[i] -= o.Species[i]
+	}
+	for a := 0; a < 3; a++ {
+		q.Momentum[a] -= o.Momentum[a]
+	}
+	q.Energy -= o.Energy
+}
+
+// sourceQuantities is what a source brings in, lab frame: the ejecta carry
+// the star's velocity, so their momentum is M v and their kinetic energy
+// 1/2 M v^2 on top of the released energy. Momentum budgets (radiation) are
+// star-frame radial and sum to zero, so they add no net momentum.
+func sourceQuantities(s *Source) Quantities {
+	q := Quantities{Mass: s.Mass, Species: s.Species}
+	v2 := 0.0
+	for a := 0; a < 3; a++ {
+		q.Momentum[a] = s.Mass * s.Star.Vel[a]
+		v2 += s.Star.Vel[a] * s.Star.Vel[a]
+	}
+	q.Energy = s.Energy + 0.5*s.Mass*v2
+	return q
+}
+
+// Ledger accounts for one call: everything that went in is either
+// deposited in the gas, radiated (energy an unresolved remnant loses,
+// booked explicitly), or undeposited (returned to the caller, e.g. a star
+// with no gas around it). In = Deposited + Radiated + Undeposited to
+// round-off; Imbalance returns the difference. All amounts in code units.
+type Ledger struct {
+	In          Quantities
+	Deposited   Quantities
+	Undeposited Quantities
+	// Radiated is the energy booked as lost to cooling.
+	Radiated float64
+	// Stars is the number of sources handled; Skipped those whose release
+	// was returned undeposited (no neighbours, bad input).
+	Stars, Skipped int
+	// Capped counts sources for which at least one neighbour received the
+	// terminal momentum cap (cooling radius unresolved).
+	Capped int
+	// Limited counts sources whose kicks were scaled down so that no
+	// element's heat would be negative.
+	Limited int
+	// MaxIsotropyResidual is the largest, over sources, of |sum p_j| /
+	// sum |p_j| for the radial momenta before the net was removed: zero for a
+	// perfectly balanced neighbourhood, one for all gas on one side.
+	// SumIsotropyResidual sums it, for means.
+	MaxIsotropyResidual, SumIsotropyResidual float64
+	// RadialMomentum is the radial momentum handed out, summed over
+	// neighbours: sum_j dp_j . n_j in each star's frame, with n_j the unit
+	// vector from the star to neighbour j. It is what a remnant's momentum
+	// is compared with.
+	RadialMomentum float64
+	// MomentumScale is sum_j |dp_j| over neighbours (star frame), the
+	// scale against which momentum round-off is judged.
+	MomentumScale float64
+	// EnergyScale is the lab-frame kinetic energy of the touched gas before
+	// the call plus what went in: the scale against which energy round-off
+	// is judged.
+	EnergyScale float64
+}
+
+// Add accumulates another ledger into l.
+func (l *Ledger) Add(o *Ledger) {
+	l.In.add(&o.In)
+	l.Deposited.add(&o.Deposited)
+	l.Undeposited.add(&o.Undeposited)
+	l.Radiated += o.Radiated
+	l.Stars += o.Stars
+	l.Skipped += o.Skipped
+	l.Capped += o.Capped
+	l.Limited += o.Limited
+	l.MaxIsotropyResidual = math.Max(l.MaxIsotropyResidual, o.MaxIsotropyResidual)
+	l.SumIsotropyResidual += o.SumIsotropyResidual
+	l.RadialMomentum += o.RadialMomentum
+	l.MomentumScale += o.MomentumScale
+	l.EnergyScale += o.EnergyScale
+}
+
+// Imbalance is In - Deposited - Radiated - Undeposited: zero to round-off
+// for a conserving scheme.
+func (l *Ledger) Imbalance() Quantities {
+	q := l.In
+	q.sub(&l.Deposited)
+	q.sub(&l.Undeposited)
+	q.Energy -= l.Radiated
+	return q
+}
+
+// Balanced reports whether every component of the imbalance is within
+// rel times the scale of that quantity (the larger of what went in and
+// what was deposited, plus the lab-frame momentum and kinetic energy
+// scales), the test a conserving scheme passes with rel ~ 1e-12.
+func (l *Ledger) Balanced(rel float64) error {
+	imb := l.Imbalance()
+	scale := func(a, b float64) float64 { return math.Max(math.Abs(a), math.Abs(b)) }
+	if s := scale(l.In.Mass, l.Deposited.Mass); math.Abs(imb.Mass) > rel*s || math.IsNaN(imb.Mass) {
+		return fmt.Errorf("ledger: mass imbalance %g of %g", imb.Mass, s)
+	}
+	for i := range imb.Species {
+		if s := scale(l.In.Species[i], l.Deposited.Species[i]); math.Abs(imb.Species[i]) > rel*s || math.IsNaN(imb.Species[i]) {
+			return fmt.Errorf("ledger: species %s imbalance %g of %g", yields.Species(i).Symbol(), imb.Species[i], s)
+		}
+	}
+	pscale := 0.0
+	for a := 0; a < 3; a++ {
+		pscale = math.Max(pscale, scale(l.In.Momentum[a], l.Deposited.Momentum[a]))
+	}
+	// Momentum is handed out in radial kicks far larger than the net; the
+	// round-off scale is the momentum magnitude handed out.
+	pscale = math.Max(pscale, l.MomentumScale)
+	for a := 0; a < 3; a++ {
+		if math.Abs(imb.Momentum[a]) > rel*pscale || math.IsNaN(imb.Momentum[a]) {
+			return fmt.Errorf("ledger: momentum imbalance %g (axis %d) of %g", imb.Momentum[a], a, pscale)
+		}
+	}
+	escale := math.Max(scale(l.In.Energy, l.Deposited.Energy), l.EnergyScale)
+	if math.Abs(imb.Energy) > rel*escale || math.IsNaN(imb.Energy) {
+		return fmt.Errorf("ledger: energy imbalance %g of %g", imb.Energy, escale)
+	}
+	return nil
+}

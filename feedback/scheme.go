@@ -1,0 +1,259 @@
+package feedback
+
+import (
+	"math"
+
+	"github.com/ejecta-dev/ejecta/yields"
+	"github.com/ejecta-dev/ejecta/yields/units"
+)
+
+// Flags mark what happened to a gas element in a deposit.
+type Flags uint32
+
+const (
+	// FlagCapped: the element's momentum was capped at its share of the
+	// terminal momentum (cooling radius unresolved).
+	FlagCapped Flags = 1 << iota
+	// FlagLimited: the star's kicks were scaled down so that no element's
+	// heat would be negative.
+	FlagLimited
+	// FlagIonised: the element is photoionised; the host should not cool it
+	// below the ionised floor temperature this step.
+	FlagIonised
+	// FlagCoolingOff: the host should switch cooling off for the element
+	// until the time given in the record.
+	FlagCoolingOff
+	// FlagStochastic: the element was chosen by stochastic heating.
+	FlagStochastic
+)
+
+// Deposit is what one star gives one neighbour, in code units: mass, the
+// mass of each species, lab-frame momentum, and the change of the element's
+// total (thermal plus lab-frame kinetic) energy. Heat is the thermal part,
+// the rest being the change of kinetic energy; Apply recomputes the heat
+// from Energy so that energy balances exactly however many stars touch an
+// element.
+type Deposit struct {
+	Mass     float64
+	Species  yields.Abundances
+	Momentum [3]float64
+	Energy   float64
+	Heat     float64
+	Flags    Flags
+	// CoolingOffUntil is, with FlagCoolingOff, how long (code time from the
+	// step start) the host should keep the element's cooling off.
+	CoolingOffUntil float64
+}
+
+// Scheme decides how one star's release is split over its neighbours:
+// how much of it goes into radial momentum and how much stays as heat or is
+// radiated. Built-in schemes are ThermalDump, Kinetic and TerminalMomentum;
+// users may write their own and check them with package feedbacktest.
+//
+// Deposit is called once per star with the neighbourhood filled in, and
+// writes one Deposit per neighbour into out (len(out) == nb.Len()). It
+// returns the energy booked as radiated. Deposit must not retain nb or out,
+// and is called concurrently from several goroutines: a scheme must keep no
+// mutable state (use nb.Momentum and nb.HeatCap as scratch).
+type Scheme interface {
+	Name() string
+	Deposit(nb *Neighbourhood, out []Deposit) (radiated float64, err error)
+}
+
+// Neighbourhood is one star's release and the gas around it, read from the
+// host's columns, in code units. Slices have one entry per neighbour,
+// nearest first. It is reused from star to star: schemes must not keep it.
+type Neighbourhood struct {
+	// Source is the star and its release.
+	Source *Source
+	// Units are the host's code units.
+	Units units.CodeUnits
+	// Index and ID locate each neighbour in the host's gas.
+	Index []int
+	ID    []int64
+	// Mass, Density, InternalEnergy (specific) and Metallicity (metal mass
+	// fraction; the star's metallicity when the host tracks no metals) of
+	// each neighbour.
+	Mass, Density, InternalEnergy, Metallicity []float64
+	// Dist is the distance from the star; Dir the unit vector from the star
+	// to the neighbour (zero for a neighbour at the star's position).
+	Dist []float64
+	Dir  [][3]float64
+	// Vel is each neighbour's lab-frame velocity, RelVel the same in the
+	// star's frame.
+	Vel, RelVel [][3]float64
+	// Weight holds each neighbour's share of mass, species and energy:
+	// positive, summing to one, isotropy-corrected unless the coupler was
+	// configured without the correction.
+	Weight []float64
+	// Momentum and HeatCap are scratch for schemes that use CoupleRadial:
+	// the radial momentum to give each neighbour (star frame, before the
+	// isotropy correction) and the most heat each may keep (the excess is
+	// radiated); +Inf keeps all.
+	Momentum, HeatCap []float64
+
+	correct  bool
+	residual float64 // isotropy residual of the radial momenta
+	radial   float64 // sum_j dp_j . n_j
+	pscale   float64 // sum_j |dp_j|
+	limited  bool
+	capped   bool
+	scratch  []float64
+}
+
+// Len is the number of neighbours.
+func (nb *Neighbourhood) Len() int { return len(nb.Index) }
+
+// resize sets the number of neighbours, growing storage only when needed.
+func (nb *Neighbourhood) resize(k int) {
+	if cap(nb.Index) < k {
+		nb.Index = make([]int, k)
+		nb.ID = make([]int64, k)
+		nb.Mass = make([]float64, k)
+		nb.Density = make([]float64, k)
+		nb.InternalEnergy = make([]float64, k)
+		nb.Metallicity = make([]float64, k)
+		nb.Dist = make([]float64, k)
+		nb.Dir = make([][3]float64, k)
+		nb.Vel = make([][3]float64, k)
+		nb.RelVel = make([][3]float64, k)
+		nb.Weight = make([]float64, k)
+		nb.Momentum = make([]float64, k)
+		nb.HeatCap = make([]float64, k)
+		nb.scratch = make([]float64, k)
+	}
+	nb.Index = nb.Index[:k]
+	nb.ID = nb.ID[:k]
+	nb.Mass = nb.Mass[:k]
+	nb.Density = nb.Density[:k]
+	nb.InternalEnergy = nb.InternalEnergy[:k]
+	nb.Metallicity = nb.Metallicity[:k]
+	nb.Dist = nb.Dist[:k]
+	nb.Dir = nb.Dir[:k]
+	nb.Vel = nb.Vel[:k]
+	nb.RelVel = nb.RelVel[:k]
+	nb.Weight = nb.Weight[:k]
+	nb.Momentum = nb.Momentum[:k]
+	nb.HeatCap = nb.HeatCap[:k]
+	nb.scratch = nb.scratch[:k]
+	nb.residual, nb.radial, nb.pscale = 0, 0, 0
+	nb.limited, nb.capped = false, false
+}
+
+// MarkCapped records that the scheme capped at least one neighbour at the
+// terminal momentum; the coupler counts such stars in the ledger.
+func (nb *Neighbourhood) MarkCapped() { nb.capped = true }
+
+// CoupleRadial completes the deposits of a scheme that has filled
+// nb.Momentum and nb.HeatCap. Each neighbour receives its share of the
+// ejected mass and species (nb.Weight), the ejecta's lab-frame momentum,
+// and a radial kick: the momenta are isotropy-corrected, any remaining net
+// vector is removed in proportion to the shares so that the kicks sum to
+// zero in the star's frame, and the kicks are scaled down together if any
+// neighbour's heat would otherwise be negative. The heat of neighbour j is
+// its energy share minus its gain of kinetic energy in the star's frame,
+// capped at nb.HeatCap[j]; what the cap removes is returned as radiated.
+// Because the star-frame kicks sum to zero, the lab-frame energy deposited
+// equals the released energy plus the ejecta's kinetic energy, less the
+// radiated part, to round-off, for a moving star and moving gas alike.
+func (nb *Neighbourhood) CoupleRadial(out []Deposit) (radiated float64) {
+	src := nb.Source
+	k := nb.Len()
+	M, E := src.Mass, src.Energy
+	vs := src.Star.Vel
+	var kick [3]float64
+
+	any := false
+	for j := 0; j < k; j++ {
+		if nb.Momentum[j] > 0 {
+			any = true
+			break
+		}
+	}
+	var net [3]float64
+	if any {
+		if nb.correct {
+			nb.residual = tilt(nb.Momentum, nb.Dir, nb.scratch)
+		} else {
+			nb.residual = netVector(nb.Momentum, nb.Dir)
+		}
+		for j := 0; j < k; j++ {
+			for a := 0; a < 3; a++ {
+				net[a] += nb.Momentum[j] * nb.Dir[j][a]
+			}
+		}
+	}
+	// Scale factor keeping every neighbour's heat non-negative.
+	s := 1.0
+	if any {
+		for j := 0; j < k; j++ {
+			dp := nb.kick(j, net)
+			m, dm := nb.Mass[j], nb.Weight[j]*M
+			mt := m + dm
+			w := nb.RelVel[j]
+			a := dot(dp, dp) / (2 * mt)
+			b := m * dot(w, dp) / mt
+			c := -m*dm*dot(w, w)/(2*mt) - nb.Weight[j]*E
+			if a <= 0 {
+				continue
+			}
+			// a s^2 + b s + c <= 0 up to the positive root (c <= 0).
+			root := (-b + math.Sqrt(math.Max(b*b-4*a*c, 0))) / (2 * a)
+			if root < s {
+				s = math.Max(root, 0)
+			}
+		}
+		if s < 1 {
+			nb.limited = true
+		}
+	}
+	for j := 0; j < k; j++ {
+		m, wj := nb.Mass[j], nb.Weight[j]
+		dm := wj * M
+		mt := m + dm
+		d := &out[j]
+		*d = Deposit{Mass: dm}
+		for sp := range d.Species {
+			d.Species[sp] = wj * src.Species[sp]
+		}
+		if any {
+			kick = nb.kick(j, net)
+			for a := 0; a < 3; a++ {
+				kick[a] *= s
+			}
+		} else {
+			kick = [3]float64{}
+		}
+		w := nb.RelVel[j]
+		dkeStar := (2*m*dot(w, kick) + dot(kick, kick) - m*dm*dot(w, w)) / (2 * mt)
+		heat := wj*E - dkeStar
+		if heat > nb.HeatCap[j] {
+			radiated += heat - nb.HeatCap[j]
+			heat = nb.HeatCap[j]
+		}
+		var dp [3]float64
+		for a := 0; a < 3; a++ {
+			dp[a] = dm*vs[a] + kick[a]
+		}
+		v := nb.Vel[j]
+		dkeLab := (2*m*dot(v, dp) + dot(dp, dp) - m*dm*dot(v, v)) / (2 * mt)
+		d.Momentum = dp
+		d.Heat = heat
+		d.Energy = heat + dkeLab
+		if s < 1 {
+			d.Flags |= FlagLimited
+		}
+		nb.radial += dot(kick, nb.Dir[j])
+		nb.pscale += math.Sqrt(dot(kick, kick))
+	}
+	return radiated
+}
+
+// kick is neighbour j's star-frame kick before energy limiting: its
+// corrected radial momentum minus its share of the net vector.
+func (nb *Neighbourhood) kick(j int, net [3]float64) [3]float64 {
+	p, w, n := nb.Momentum[j], nb.Weight[j], nb.Dir[j]
+	return [3]float64{p*n[0] - w*net[0], p*n[1] - w*net[1], p*n[2] - w*net[2]}
+}
+
+func dot(a, b [3]float64) float64 { return a[0]*b[0] + a[1]*b[1] + a[2]*b[2] }
