@@ -52,11 +52,11 @@ type Population struct {
 	ccPat    Abundances
 	// Mass ranges of the closed-form channels, with the IMF primitives at their ends.
 	ccNS, ccBH, ccNew, agb tailSegment
-	tabT     []float64 // node ages, Myr; tabT[0] = 0
-	tabLZ    []float64 // node log10 Z
-	rad      []float64 // cumulative radiant energy, Lsun Myr, [iz*nt+it]
-	phot     []float64 // cumulative ionising photons, photons/s Myr
-	wind     []float64 // cumulative massive-wind mass per unit metallicity factor, Msun
+	tabT                   []float64 // node ages, Myr; tabT[0] = 0
+	tabLZ                  []float64 // node log10 Z
+	rad                    []float64 // cumulative radiant energy, Lsun Myr, [iz*nt+it]
+	phot                   []float64 // cumulative ionising photons, photons/s Myr
+	wind                   []float64 // cumulative massive-wind mass per unit metallicity factor, Msun
 }
 
 // NewPopulation checks cfg and builds the population and its tables.
