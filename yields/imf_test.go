@@ -46,8 +46,8 @@ func TestIMFClosedFormsAgreeWithQuad(t *testing.T) {
 
 func TestIMFContinuousAtBreaks(t *testing.T) {
 	tests := []struct {
-		form  IMFForm
-		at float64
+		form IMFForm
+		at   float64
 	}{
 		{Kroupa, 0.08}, {Kroupa, 0.5}, // Kroupa 2001 breaks
 		{Chabrier, 1}, // Chabrier 2003: lognormal joined to the power law at 1 Msun
@@ -67,7 +67,7 @@ func TestIMFSlopes(t *testing.T) {
 	s, _ := NewIMF(Salpeter, 0.1, 100)
 	k, _ := NewIMF(Kroupa, 0.01, 100)
 	c, _ := NewIMF(Chabrier, 0.1, 100)
-	assert.InDelta(t, 2.35, slope(s, 3), 1e-9)  // Salpeter 1955
+	assert.InDelta(t, 2.35, slope(s, 3), 1e-9)   // Salpeter 1955
 	assert.InDelta(t, 0.3, slope(k, 0.03), 1e-9) // Kroupa 2001
 	assert.InDelta(t, 1.3, slope(k, 0.2), 1e-9)
 	assert.InDelta(t, 2.3, slope(k, 20), 1e-9)
