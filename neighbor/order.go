@@ -74,10 +74,32 @@ func keepNearest(h []Neighbor, k int, x Neighbor, ids []int64) []Neighbor {
 		return heapPush(h, x, ids)
 	}
 	if before(x, h[0], ids) {
-		h[0] = x
-		heapFixTop(h, ids)
+		replaceTop(h, x, ids)
 	}
 	return h
+}
+
+// replaceTop puts x in place of the top of the max-heap h and restores the
+// heap, moving the larger child up into the hole until x fits. Distances
+// are compared first; IDs are read only on exact ties.
+func replaceTop(h []Neighbor, x Neighbor, ids []int64) {
+	n := len(h)
+	i := 0
+	for {
+		c := 2*i + 1
+		if c >= n {
+			break
+		}
+		if r := c + 1; r < n && (h[r].Dist2 > h[c].Dist2 || (h[r].Dist2 == h[c].Dist2 && ids[h[r].Index] > ids[h[c].Index])) {
+			c = r
+		}
+		if h[c].Dist2 < x.Dist2 || (h[c].Dist2 == x.Dist2 && ids[h[c].Index] < ids[x.Index]) {
+			break
+		}
+		h[i] = h[c]
+		i = c
+	}
+	h[i] = x
 }
 
 // growBuf returns buf[:0] with capacity at least n.
@@ -86,4 +108,31 @@ func growBuf(buf []Neighbor, n int) []Neighbor {
 		return make([]Neighbor, 0, n)
 	}
 	return buf[:0]
+}
+
+// keepSorted offers x to s, kept in ascending (Dist2, ID) order and bounded
+// at k elements: x is inserted at its place (binary search, then a shift)
+// if s is not full or x sorts before the last element, which then drops.
+func keepSorted(s []Neighbor, k int, x Neighbor, ids []int64) []Neighbor {
+	n := len(s)
+	if n == k {
+		if !before(x, s[n-1], ids) {
+			return s
+		}
+		n--
+	} else {
+		s = s[:n+1]
+	}
+	lo, hi := 0, n
+	for lo < hi {
+		m := int(uint(lo+hi) >> 1)
+		if before(s[m], x, ids) {
+			lo = m + 1
+		} else {
+			hi = m
+		}
+	}
+	copy(s[lo+1:n+1], s[lo:n])
+	s[lo] = x
+	return s
 }

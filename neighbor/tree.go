@@ -9,7 +9,7 @@ import (
 
 // treeLeafSize is the most gas elements a leaf holds. Chosen by the
 // BenchmarkNearest figures in doc.go (k = 48 queries).
-const treeLeafSize = 8
+const treeLeafSize = 16
 
 // treePoint is one gas element in tree order: its wrapped position and its
 // index in the caller's arrays.
@@ -295,9 +295,9 @@ func (t *Tree) Nearest(q Query, k int, buf []Neighbor) ([]Neighbor, error) {
 					if d2 > worst {
 						continue
 					}
-					h = keepNearest(h, k, Neighbor{j, d2}, ids)
+					h = keepSorted(h, k, Neighbor{j, d2}, ids)
 					if len(h) == k {
-						worst = h[0].Dist2
+						worst = h[k-1].Dist2
 					}
 				}
 			}
@@ -308,7 +308,6 @@ func (t *Tree) Nearest(q Query, k int, buf []Neighbor) ([]Neighbor, error) {
 		sp--
 		node, gap = stack[sp].node, stack[sp].gap2
 	}
-	heapSortAscending(h, ids)
 	for i := range h {
 		h[i].Index = t.pts[h[i].Index].orig
 	}
