@@ -27,12 +27,25 @@ type ApplyReport struct {
 	Records, Elements int
 	// Deposited is what the gas gained, recomputed from the records.
 	Deposited Quantities
-	// ClampedEnergy is energy that had to be added to keep an element's
-	// internal energy from going negative: positive only when kicks of
-	// several stars on one element added up coherently to more kinetic
-	// energy than their total energy; ClampedElements counts such elements.
-	ClampedEnergy   float64
-	ClampedElements int
+	// Reclaimed is radiated energy taken back into the gas. When the kicks
+	// of several stars on one element add up coherently, the element gains
+	// more kinetic energy than the sum of what each star's deposit
+	// assumed, and its heat would go negative; the energy those stars
+	// booked as radiated on the element's behalf pays for the difference
+	// first. The step's radiated energy is therefore the couplers'
+	// Ledger.Radiated less the Reclaimed of every Apply (summed over ranks).
+	Reclaimed float64
+	// Shortfall is energy the gas received beyond what the records carried:
+	// where coherent kicks of several stars on one element need more kinetic
+	// energy than their deposits and the reclaimed radiated energy provide,
+	// the element's internal energy is set to zero, not below, and the
+	// difference is booked here. Star-local deposits cannot prevent it
+	// without giving up decomposition invariance; it is a conservation
+	// failure made visible, and the balance of a step reads
+	// In + Shortfall = gas gain + (Radiated - Reclaimed) + Undeposited.
+	// ShortfallElements counts the elements concerned.
+	Shortfall         float64
+	ShortfallElements int
 }
 
 // CompareRecords orders records by gas ID, then star ID, then channel: the
@@ -99,14 +112,14 @@ func Apply(gas *Gas, records []Record, touched []Touched) ([]Touched, ApplyRepor
 }
 
 func (r *Record) check() error {
-	vals := [...]float64{r.Mass, r.Momentum[0], r.Momentum[1], r.Momentum[2], r.Energy, r.Heat, r.Kick, r.Heating, r.CoolingOffUntil}
+	vals := [...]float64{r.Mass, r.Momentum[0], r.Momentum[1], r.Momentum[2], r.Energy, r.Heat, r.Radiated, r.Kick, r.Heating, r.CoolingOffUntil}
 	for _, v := range vals {
 		if !finite(v) {
 			return errors.New("non-finite value")
 		}
 	}
-	if r.Mass < 0 {
-		return fmt.Errorf("negative mass %g", r.Mass)
+	if r.Mass < 0 || r.Radiated < 0 {
+		return fmt.Errorf("negative mass %g or radiated energy %g", r.Mass, r.Radiated)
 	}
 	for sp, m := range r.Species {
 		if !finite(m) || m < 0 || m > r.Mass*(1+1e-12) {
@@ -124,7 +137,7 @@ func applyElement(gas *Gas, recs []Record, rep *ApplyReport) Touched {
 	m := gas.Mass.At(i)
 	v := gas.velocity(i)
 	u := gas.InternalEnergy.At(i)
-	var dm, de float64
+	var dm, de, rad float64
 	var dp [3]float64
 	var dsp yields.Abundances
 	for k := range recs {
@@ -134,6 +147,7 @@ func applyElement(gas *Gas, recs []Record, rep *ApplyReport) Touched {
 			dp[a] += r.Momentum[a]
 		}
 		de += r.Energy
+		rad += r.Radiated
 		for s := range dsp {
 			dsp[s] += r.Species[s]
 		}
@@ -155,9 +169,16 @@ func applyElement(gas *Gas, recs []Record, rep *ApplyReport) Touched {
 	// 1/2 m' v'^2 - 1/2 m v^2.
 	dke := (2*m*dot(v, dp) + dot(dp, dp) - m*dm*dot(v, v)) / (2 * mt)
 	thermal := m*u + de - dke
+	if thermal < 0 && rad > 0 {
+		back := math.Min(-thermal, rad)
+		thermal += back
+		rep.Reclaimed += back
+		rep.Deposited.Energy += back
+	}
 	if thermal < 0 {
-		rep.ClampedEnergy += -thermal
-		rep.ClampedElements++
+		rep.Shortfall += -thermal
+		rep.ShortfallElements++
+		rep.Deposited.Energy += -thermal
 		thermal = 0
 	}
 	for a := 0; a < 3; a++ {

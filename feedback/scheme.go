@@ -39,6 +39,11 @@ type Deposit struct {
 	Momentum [3]float64
 	Energy   float64
 	Heat     float64
+	// Radiated is the energy booked as radiated on this element's behalf.
+	// Apply may take some of it back when several stars' kicks on one
+	// element add up to more kinetic energy than the heat can pay for
+	// (see ApplyReport.Reclaimed).
+	Radiated float64
 	Flags    Flags
 	// CoolingOffUntil is, with FlagCoolingOff, how long (code time from the
 	// step start) the host should keep the element's cooling off.
@@ -228,7 +233,8 @@ func (nb *Neighbourhood) CoupleRadial(out []Deposit) (radiated float64) {
 		dkeStar := (2*m*dot(w, kick) + dot(kick, kick) - m*dm*dot(w, w)) / (2 * mt)
 		heat := wj*E - dkeStar
 		if heat > nb.HeatCap[j] {
-			radiated += heat - nb.HeatCap[j]
+			d.Radiated = heat - nb.HeatCap[j]
+			radiated += d.Radiated
 			heat = nb.HeatCap[j]
 		}
 		var dp [3]float64

@@ -1,0 +1,129 @@
+package feedbacktest_test
+
+import (
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/require"
+
+	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
+)
+
+func TestBuiltInSchemesPass(t *testing.T) {
+	schemes := []struct {
+		name   string
+		scheme feedback.Scheme
+		// Pure kinetic injection leaves no heat to absorb coherent kicks of
+		// overlapping stars, so its shortfall bound is looser.
+		shortfall float64
+	}{
+		{"thermal-dump", feedback.ThermalDump{}, 0},
+		{"kinetic-sedov", feedback.Kinetic{}, 0},
+		{"kinetic-pure", feedback.Kinetic{KineticFraction: 1}, 0.5},
+		{"terminal-ko15", feedback.TerminalMomentum{Fit: feedback.KimOstriker2015}, 0},
+		{"terminal-cmb88", feedback.TerminalMomentum{Fit: feedback.CioffiMcKeeBertschinger1988}, 0},
+	}
+	for _, s := range schemes {
+		for _, w := range []feedback.Weighting{feedback.KernelVolume, feedback.SolidAngle} {
+			t.Run(s.name+"/"+w.String(), func(t *testing.T) {
+				feedbacktest.Check(t, s.scheme, feedbacktest.Options{Weighting: w, Seeds: []uint64{1, 2}, ShortfallBound: s.shortfall})
+			})
+		}
+	}
+}
+
+// losesMass drops one percent of the ejected mass.
+type losesMass struct{ feedback.TerminalMomentum }
+
+func (losesMass) Name() string { return "loses-mass" }
+func (s losesMass) Deposit(nb *feedback.Neighbourhood, out []feedback.Deposit) (float64, error) {
+	rad, err := s.TerminalMomentum.Deposit(nb, out)
+	for j := range out {
+		out[j].Mass *= 0.99
+	}
+	return rad, err
+}
+
+// wrongFrame forgets that the ejecta move with the star.
+type wrongFrame struct{ feedback.Kinetic }
+
+func (wrongFrame) Name() string { return "wrong-frame" }
+func (s wrongFrame) Deposit(nb *feedback.Neighbourhood, out []feedback.Deposit) (float64, error) {
+	rad, err := s.Kinetic.Deposit(nb, out)
+	for j := range out {
+		for a := 0; a < 3; a++ {
+			out[j].Momentum[a] -= out[j].Mass * nb.Source.Star.Vel[a]
+		}
+	}
+	return rad, err
+}
+
+// oneSided pushes every neighbour along +x, energy accounted but momentum
+// created.
+type oneSided struct{ feedback.Kinetic }
+
+func (oneSided) Name() string { return "one-sided" }
+func (s oneSided) Deposit(nb *feedback.Neighbourhood, out []feedback.Deposit) (float64, error) {
+	rad, err := s.Kinetic.Deposit(nb, out)
+	for j := range out {
+		out[j].Momentum[0] += 0.01 * nb.Mass[j]
+	}
+	return rad, err
+}
+
+// unbalancedRadial hands out equal radial momenta with no isotropy
+// correction at all, keeping conservation by letting the heat close the
+// energy (momentum is balanced by the coupler's net removal only if it uses
+// CoupleRadial; here it does not).
+type unbalancedRadial struct{}
+
+func (unbalancedRadial) Name() string { return "unbalanced-radial" }
+func (unbalancedRadial) Deposit(nb *feedback.Neighbourhood, out []feedback.Deposit) (float64, error) {
+	src := nb.Source
+	for j := range out {
+		w := nb.Weight[j]
+		out[j] = feedback.Deposit{Mass: w * src.Mass}
+		for a := 0; a < 3; a++ {
+			out[j].Momentum[a] = w*src.Mass*src.Star.Vel[a] + 1e-3*nb.Dir[j][a]
+		}
+		out[j].Energy = w * src.Energy
+	}
+	return 0, nil
+}
+
+func TestBrokenSchemesFail(t *testing.T) {
+	cases := []struct {
+		scheme feedback.Scheme
+		want   string
+	}{
+		{losesMass{}, "mass"},
+		{wrongFrame{}, "momentum"},
+		{oneSided{}, "momentum"},
+		{unbalancedRadial{}, "momentum"},
+	}
+	for _, c := range cases {
+		t.Run(c.scheme.Name(), func(t *testing.T) {
+			errs := feedbacktest.Run(c.scheme, feedbacktest.Options{Seeds: []uint64{1}})
+			require.NotEmpty(t, errs, "a broken scheme must fail the harness")
+			found := false
+			for _, e := range errs {
+				if strings.Contains(e.Error(), c.want) {
+					found = true
+				}
+			}
+			require.True(t, found, "expected a %q violation, got %v", c.want, errs[0])
+		})
+	}
+}
+
+func TestUncorrectedWeightsFailIsotropy(t *testing.T) {
+	errs := feedbacktest.Run(feedback.Kinetic{}, feedbacktest.Options{Seeds: []uint64{1}, SkipIsotropyCorrection: true})
+	found := false
+	for _, e := range errs {
+		if strings.Contains(e.Error(), "isotropic") {
+			found = true
+		}
+	}
+	require.True(t, found, "uncorrected radial kicks in clustered gas must exceed the isotropy bound")
+}
