@@ -19,8 +19,8 @@ const (
 	tableMinAge    = 1e-2 // Myr, first node after age 0
 	tableMaxAge    = 1e6  // Myr, last node
 	tablePerDecade = 32   // nodes per decade of age
-	tableZNodes    = 9    // nodes in log Z over [LifetimeMinZ, LifetimeMaxZ]
-	glNodes        = 20   // Gauss–Legendre nodes per smooth mass sub-interval
+	tableZNodes    = 25   // nodes in log Z over [LifetimeMinZ, LifetimeMaxZ]
+	glNodes        = 12   // Gauss–Legendre nodes per smooth mass sub-interval
 )
 
 // Population is the built-in Model: a simple stellar population (a single
@@ -35,9 +35,11 @@ const (
 // energy, ionising photons and massive-star winds, which a star emits all
 // through its life, are tabulated at construction: cumulative values on a
 // grid of 32 nodes per decade of age from 0.01 Myr to 1e6 Myr (and age 0)
-// and 9 nodes in log Z, computed by Gauss–Legendre quadrature over mass,
-// interpolated linearly in age (exact for a constant rate, monotone) and
-// linearly in log Z. Past 1e6 Myr the last cell's rate continues.
+// and 25 nodes in log Z, computed by Gauss–Legendre quadrature over mass
+// together with their rates (the time derivatives, known in closed form),
+// interpolated by monotone cubic Hermite polynomials in age (Fritsch &
+// Carlson 1980 slope limiting; exact for a constant rate) and linearly in
+// log Z: about 1e-4 relative at a metallicity node and 2e-3 between nodes. Past 1e6 Myr the last rate continues.
 //
 // A Population is immutable after NewPopulation and safe for concurrent
 // use; Release allocates nothing.
@@ -57,6 +59,9 @@ type Population struct {
 	rad                    []float64 // cumulative radiant energy, Lsun Myr, [iz*nt+it]
 	phot                   []float64 // cumulative ionising photons, photons/s Myr
 	wind                   []float64 // cumulative massive-wind mass per unit metallicity factor, Msun
+	// Rates at the nodes (the cumulative values' time derivatives), limited
+	// so that the cubic Hermite interpolant is monotone.
+	dRad, dPhot, dWind []float64
 }
 
 // NewPopulation checks cfg and builds the population and its tables.
@@ -169,6 +174,9 @@ func (p *Population) buildTables() error {
 	p.rad = make([]float64, nt*tableZNodes)
 	p.phot = make([]float64, nt*tableZNodes)
 	p.wind = make([]float64, nt*tableZNodes)
+	p.dRad = make([]float64, nt*tableZNodes)
+	p.dPhot = make([]float64, nt*tableZNodes)
+	p.dWind = make([]float64, nt*tableZNodes)
 
 	gx := make([]float64, glNodes)
 	gw := make([]float64, glNodes)
@@ -235,8 +243,12 @@ func (p *Population) buildTables() error {
 					aW = preW[j-1] + gl(aliveW, edges[j-1], x)
 				}
 			}
-			rad := t*p.lum.integrate(&p.imf, lo, x) + dL
-			phot := t*p.ion.integrate(&p.imf, lo, x) + dQ
+			// The rates are the light of the living stars and the wind of the
+			// living massive stars (the terms from stars dying at t cancel).
+			lRate := p.lum.integrate(&p.imf, lo, x)
+			qRate := p.ion.integrate(&p.imf, lo, x)
+			rad := t*lRate + dL
+			phot := t*qRate + dQ
 			// Winds: living stars have lost t/τ of their wind mass, dead ones all of it.
 			w := t*aW + p.windTo*p.massiveMoment2(math.Max(x, wlo), hi)
 			if math.IsNaN(rad) || math.IsNaN(phot) || math.IsNaN(w) {
@@ -244,14 +256,42 @@ func (p *Population) buildTables() error {
 			}
 			k := iz*nt + it
 			p.rad[k], p.phot[k], p.wind[k] = rad, phot, w
+			p.dRad[k], p.dPhot[k], p.dWind[k] = lRate, qRate, aW
 			if it > 0 { // keep the tables monotone against quadrature round-off
 				p.rad[k] = math.Max(p.rad[k], p.rad[k-1])
 				p.phot[k] = math.Max(p.phot[k], p.phot[k-1])
 				p.wind[k] = math.Max(p.wind[k], p.wind[k-1])
 			}
 		}
+		for _, tab := range [][2][]float64{{p.rad, p.dRad}, {p.phot, p.dPhot}, {p.wind, p.dWind}} {
+			limitSlopes(p.tabT, tab[0][iz*nt:(iz+1)*nt], tab[1][iz*nt:(iz+1)*nt])
+		}
 	}
 	return nil
+}
+
+// limitSlopes makes the cubic Hermite interpolant of the non-decreasing
+// values y with slopes d monotone, by the Fritsch & Carlson 1980 (SIAM J.
+// Numer. Anal. 17, 238) condition: in each cell, with Δ the secant slope,
+// the slopes are zero if Δ = 0 and otherwise scaled down so that
+// (d_i/Δ)² + (d_{i+1}/Δ)² <= 9. Scaling a slope down never breaks the
+// condition in the neighbouring cell.
+func limitSlopes(t, y, d []float64) {
+	for i := range d {
+		d[i] = math.Max(d[i], 0)
+	}
+	for i := 0; i+1 < len(t); i++ {
+		delta := (y[i+1] - y[i]) / (t[i+1] - t[i])
+		if !(delta > 0) {
+			d[i], d[i+1] = 0, 0
+			continue
+		}
+		a, b := d[i]/delta, d[i+1]/delta
+		if r := a*a + b*b; r > 9 {
+			s := 3 / math.Sqrt(r)
+			d[i], d[i+1] = s*d[i], s*d[i+1]
+		}
+	}
 }
 
 // edges lists the IMF range's ends and the masses inside it where a
@@ -374,15 +414,33 @@ func (p *Population) tableAt(c *evalContext, age float64) (rad, phot, wind float
 			i++
 		}
 	}
-	f := (age - p.tabT[i]) / (p.tabT[i+1] - p.tabT[i])
+	t0, t1 := p.tabT[i], p.tabT[i+1]
+	h := t1 - t0
 	k0 := c.iz*nt + i
 	k1 := k0 + nt
-	lerp := func(t []float64) float64 {
-		a := t[k0] + f*(t[k0+1]-t[k0])
-		b := t[k1] + f*(t[k1+1]-t[k1])
+	if age >= p.tabT[nt-1] {
+		// Past the last node the last rate continues.
+		dt := age - p.tabT[nt-1]
+		last := func(y, d []float64, k int) float64 { return y[k+1] + d[k+1]*dt }
+		mix := func(y, d []float64) float64 {
+			a, b := last(y, d, k0), last(y, d, k1)
+			return a + c.wz*(b-a)
+		}
+		return mix(p.rad, p.dRad), mix(p.phot, p.dPhot), mix(p.wind, p.dWind) * c.wsc
+	}
+	// Cubic Hermite basis on the cell.
+	u := (age - t0) / h
+	u2, u3 := u*u, u*u*u
+	h00, h10 := 2*u3-3*u2+1, u3-2*u2+u
+	h01, h11 := -2*u3+3*u2, u3-u2
+	herm := func(y, d []float64, k int) float64 {
+		return h00*y[k] + h10*h*d[k] + h01*y[k+1] + h11*h*d[k+1]
+	}
+	mix := func(y, d []float64) float64 {
+		a, b := herm(y, d, k0), herm(y, d, k1)
 		return a + c.wz*(b-a)
 	}
-	return lerp(p.rad), lerp(p.phot), lerp(p.wind) * c.wsc
+	return mix(p.rad, p.dRad), mix(p.phot, p.dPhot), mix(p.wind, p.dWind) * c.wsc
 }
 
 // tailSegment is a mass range [lo, hi] of a closed-form channel with the
