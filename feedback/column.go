@@ -93,6 +93,9 @@ func Strided(first unsafe.Pointer, n int, stride uintptr, t ElemType) Column {
 // Len is the number of elements the column holds.
 func (c Column) Len() int { return c.n }
 
+// Base is the address of element 0.
+func (c Column) Base() unsafe.Pointer { return c.base }
+
 // Bound reports whether the column points at memory.
 func (c Column) Bound() bool { return c.base != nil }
 
