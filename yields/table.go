@@ -1,0 +1,491 @@
+package yields
+
+import (
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"sort"
+	"strconv"
+	"strings"
+
+	"github.com/ejecta-dev/ejecta/yields/units"
+)
+
+// Table column layout. A column's header is "name[unit]"; the unit must be
+// written exactly as here. See the package documentation for the format.
+const (
+	colLuminosity = iota
+	colIonizingRate
+	colRadiant
+	colPhotons
+	colChannels // first channel column; each channel has colsPerChannel
+)
+
+// Offsets inside a channel's block.
+const (
+	chEvents = iota
+	chMass
+	chEnergy
+	chSpecies      // NumSpecies species columns follow
+	colsPerChannel = chSpecies + int(NumSpecies)
+)
+
+const numTableCols = colChannels + int(NumChannels)*colsPerChannel
+
+// tablePrefixes are the channel prefixes of the table columns.
+func tablePrefixes() [NumChannels]string {
+	return [NumChannels]string{"ccsn", "snia", "massive_wind", "agb_wind"}
+}
+
+// tableColumn describes one known column.
+type tableColumn struct {
+	name, unit string
+	index      int  // in the internal layout; -1 for age and metallicity
+	cumulative bool // must not decrease with age
+	required   bool
+}
+
+const (
+	tableAgeName = "age"
+	tableAgeUnit = "Myr"
+	tableZName   = "metallicity"
+	tableZUnit   = "mass_fraction"
+)
+
+// tableColumns lists every column the format knows.
+func tableColumns() []tableColumn {
+	cols := []tableColumn{
+		{tableAgeName, tableAgeUnit, -1, false, true},
+		{tableZName, tableZUnit, -2, false, true},
+		{"luminosity", "Lsun/Msun", colLuminosity, false, true},
+		{"ionizing_rate", "photons/s/Msun", colIonizingRate, false, true},
+		{"radiant_energy", "erg/Msun", colRadiant, true, true},
+		{"ionizing_photons", "photons/Msun", colPhotons, true, true},
+	}
+	for ch, pre := range tablePrefixes() {
+		base := colChannels + ch*colsPerChannel
+		cols = append(cols,
+			tableColumn{pre + "_events", "1/Msun", base + chEvents, true, Channel(ch).Discrete()},
+			tableColumn{pre + "_mass", "Msun/Msun", base + chMass, true, true},
+			tableColumn{pre + "_energy", "erg/Msun", base + chEnergy, true, true},
+		)
+		for s := Species(0); s < NumSpecies; s++ {
+			cols = append(cols, tableColumn{
+				pre + "_" + strings.ToLower(s.Symbol()), "Msun/Msun", base + chSpecies + int(s), true,
+				s == Metals || s == Hydrogen || s == Helium,
+			})
+		}
+	}
+	return cols
+}
+
+// Table is a Model read from a user's CSV table (see the package
+// documentation for the format): cumulative releases and instantaneous
+// light on a grid of ages and metallicities, interpolated linearly in log
+// age and log Z. Releases are differences of the interpolated cumulative
+// values, so they add up over consecutive intervals like Population's. Below
+// the first age, cumulative values grow linearly from zero at age 0; past the
+// last age they stay constant. Luminosity and photon rate are held at the
+// end values outside the grid, and metallicities outside the grid are
+// clamped to it. A Table is immutable and safe for concurrent use.
+type Table struct {
+	ages, logAges []float64
+	zs, logZs     []float64
+	data          []float64 // [iz][ia][numTableCols]
+	present       [numTableCols]bool
+}
+
+// Ages is the table's age grid in Myr (a copy).
+func (t *Table) Ages() []float64 { return append([]float64(nil), t.ages...) }
+
+// Metallicities is the table's metallicity grid (a copy).
+func (t *Table) Metallicities() []float64 { return append([]float64(nil), t.zs...) }
+
+// ReadTableFile reads a table from a file; errors name the file and line.
+func ReadTableFile(path string) (*Table, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("yields: table: %w", err)
+	}
+	defer f.Close()
+	t, err := ReadTable(f)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	return t, nil
+}
+
+// lineError is an error at a line of the table.
+func lineError(line int, format string, args ...any) error {
+	return fmt.Errorf("yields: table line %d: %s", line, fmt.Sprintf(format, args...))
+}
+
+// ReadTable reads a table in the documented CSV format. Any defect — an
+// unknown or missing column, a wrong unit, a value that is not a finite
+// non-negative number, a grid that is not rectangular and increasing, a
+// cumulative column that decreases with age (a negative rate), species that
+// do not add up to the ejected mass — is an error naming the line.
+func ReadTable(r io.Reader) (*Table, error) {
+	cr := csv.NewReader(r)
+	cr.Comment = '#'
+	cr.TrimLeadingSpace = true
+	cr.ReuseRecord = true
+	header, err := cr.Read()
+	if err != nil {
+		if errors.Is(err, io.EOF) {
+			return nil, errors.New("yields: table: empty, no header row")
+		}
+		return nil, fmt.Errorf("yields: table header: %w", err)
+	}
+	headerLine, _ := cr.FieldPos(0)
+	known := map[string]tableColumn{}
+	for _, c := range tableColumns() {
+		known[c.name] = c
+	}
+	t := &Table{}
+	colOf := make([]tableColumn, len(header)) // file column → known column
+	seen := map[string]bool{}
+	for i, h := range header {
+		h = strings.TrimSpace(h)
+		open := strings.IndexByte(h, '[')
+		if open < 0 || !strings.HasSuffix(h, "]") {
+			return nil, lineError(headerLine, "column %d %q: want name[unit]", i+1, h)
+		}
+		name, unit := h[:open], h[open+1:len(h)-1]
+		c, ok := known[name]
+		if !ok {
+			return nil, lineError(headerLine, "column %d: unknown quantity %q", i+1, name)
+		}
+		if unit != c.unit {
+			return nil, lineError(headerLine, "column %q: unit %q, want %q", name, unit, c.unit)
+		}
+		if seen[name] {
+			return nil, lineError(headerLine, "column %q appears twice", name)
+		}
+		seen[name] = true
+		colOf[i] = c
+		if c.index >= 0 {
+			t.present[c.index] = true
+		}
+	}
+	for _, c := range tableColumns() {
+		if c.required && !seen[c.name] {
+			return nil, lineError(headerLine, "missing column %s[%s]", c.name, c.unit)
+		}
+	}
+	cr.FieldsPerRecord = len(header)
+
+	type row struct {
+		line   int
+		age, z float64
+		v      [numTableCols]float64
+	}
+	var rows []row
+	for {
+		rec, err := cr.Read()
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		if err != nil {
+			var pe *csv.ParseError
+			if errors.As(err, &pe) {
+				return nil, lineError(pe.Line, "%v", pe.Err)
+			}
+			return nil, fmt.Errorf("yields: table: %w", err)
+		}
+		line, _ := cr.FieldPos(0)
+		rw := row{line: line}
+		for i, field := range rec {
+			v, err := strconv.ParseFloat(strings.TrimSpace(field), 64)
+			if err != nil {
+				return nil, lineError(line, "column %q: %q is not a number", colOf[i].name, field)
+			}
+			if math.IsNaN(v) || math.IsInf(v, 0) || v < 0 {
+				return nil, lineError(line, "column %q: %v, want a finite value >= 0", colOf[i].name, v)
+			}
+			switch colOf[i].index {
+			case -1:
+				rw.age = v
+			case -2:
+				rw.z = v
+			default:
+				rw.v[colOf[i].index] = v
+			}
+		}
+		if !(rw.age > 0) {
+			return nil, lineError(line, "age %v Myr: want > 0 (the grid is in log age)", rw.age)
+		}
+		if !(rw.z > 0) || rw.z >= 1 {
+			return nil, lineError(line, "metallicity %v: want in (0, 1) (the grid is in log Z)", rw.z)
+		}
+		if err := checkRowSpecies(&rw.v, line); err != nil {
+			return nil, err
+		}
+		rows = append(rows, rw)
+	}
+	if len(rows) == 0 {
+		return nil, lineError(headerLine, "no data rows")
+	}
+	// Grid: blocks of rising metallicity, each with the same rising ages.
+	for i, rw := range rows {
+		if i == 0 || rw.z != rows[i-1].z {
+			if i > 0 && rw.z < rows[i-1].z {
+				return nil, lineError(rw.line, "metallicity %v after %v: blocks must rise in metallicity", rw.z, rows[i-1].z)
+			}
+			t.zs = append(t.zs, rw.z)
+		}
+	}
+	na := len(rows) / len(t.zs)
+	if na*len(t.zs) != len(rows) {
+		return nil, lineError(rows[len(rows)-1].line, "%d rows do not split into %d metallicity blocks of equal size", len(rows), len(t.zs))
+	}
+	if na < 2 {
+		return nil, lineError(rows[0].line, "each metallicity needs at least two ages")
+	}
+	t.ages = make([]float64, na)
+	t.data = make([]float64, 0, len(rows)*numTableCols)
+	for i, rw := range rows {
+		iz, ia := i/na, i%na
+		if rw.z != t.zs[iz] {
+			return nil, lineError(rw.line, "metallicity %v: block %d of %d ages should be at %v", rw.z, iz+1, na, t.zs[iz])
+		}
+		if iz == 0 {
+			t.ages[ia] = rw.age
+			if ia > 0 && !(rw.age > t.ages[ia-1]) {
+				return nil, lineError(rw.line, "age %v Myr does not rise after %v", rw.age, t.ages[ia-1])
+			}
+		} else if rw.age != t.ages[ia] {
+			return nil, lineError(rw.line, "age %v Myr: metallicity %v has a different age grid (want %v)", rw.age, rw.z, t.ages[ia])
+		}
+		if ia > 0 {
+			prev := &rows[i-1]
+			for _, c := range tableColumns() {
+				if c.cumulative && c.index >= 0 && rw.v[c.index] < prev.v[c.index] {
+					return nil, lineError(rw.line, "column %q falls from %v to %v: cumulative values cannot decrease (negative rate)", c.name, prev.v[c.index], rw.v[c.index])
+				}
+			}
+		}
+		t.data = append(t.data, rw.v[:]...)
+	}
+	t.logAges = make([]float64, na)
+	for i, a := range t.ages {
+		t.logAges[i] = math.Log(a)
+	}
+	t.logZs = make([]float64, len(t.zs))
+	for i, z := range t.zs {
+		t.logZs[i] = math.Log(z)
+	}
+	return t, nil
+}
+
+// checkRowSpecies checks that each channel's H + He + metals matches its mass
+// (to 1e-6 relative, for rounded tables), that no element exceeds the
+// metals, and then sets the mass to the species sum so that releases keep
+// H + He + metals = mass to round-off.
+func checkRowSpecies(v *[numTableCols]float64, line int) error {
+	for ch, pre := range tablePrefixes() {
+		b := colChannels + ch*colsPerChannel
+		mass := v[b+chMass]
+		sp := v[b+chSpecies : b+colsPerChannel]
+		sum := sp[Hydrogen] + sp[Helium] + sp[Metals]
+		if math.Abs(sum-mass) > 1e-6*math.Max(mass, sum)+1e-300 {
+			return lineError(line, "%s: H + He + metals = %v but mass = %v", pre, sum, mass)
+		}
+		var elems float64
+		for s := Carbon; s < NumSpecies; s++ {
+			elems += sp[s]
+		}
+		if elems > sp[Metals]*(1+1e-6)+1e-300 {
+			return lineError(line, "%s: elements sum to %v, more than the metals %v", pre, elems, sp[Metals])
+		}
+		v[b+chMass] = sum
+	}
+	return nil
+}
+
+// ageWeights locates an age: the two grid indices and the weight of the
+// second; below the first age it returns scale < 1 (values grow linearly
+// from zero), past the last the last node.
+func (t *Table) ageWeights(age float64) (i0, i1 int, w, scale float64) {
+	n := len(t.ages)
+	switch {
+	case age <= t.ages[0]:
+		return 0, 0, 0, age / t.ages[0]
+	case age >= t.ages[n-1]:
+		return n - 1, n - 1, 0, 1
+	}
+	j := sort.SearchFloat64s(t.ages, age) // ages[j-1] < age <= ages[j]
+	w = (math.Log(age) - t.logAges[j-1]) / (t.logAges[j] - t.logAges[j-1])
+	return j - 1, j, w, 1
+}
+
+func (t *Table) zWeights(z float64) (i0, i1 int, w float64) {
+	n := len(t.zs)
+	switch {
+	case z <= t.zs[0]:
+		return 0, 0, 0
+	case z >= t.zs[n-1]:
+		return n - 1, n - 1, 0
+	}
+	j := sort.SearchFloat64s(t.zs, z)
+	w = (math.Log(z) - t.logZs[j-1]) / (t.logZs[j] - t.logZs[j-1])
+	return j - 1, j, w
+}
+
+// at interpolates one column; rates are not scaled below the first age.
+func (t *Table) at(col, a0, a1 int, wa, scale float64, z0, z1 int, wz float64) float64 {
+	na := len(t.ages)
+	get := func(iz, ia int) float64 { return t.data[(iz*na+ia)*numTableCols+col] }
+	lo := get(z0, a0) + wa*(get(z0, a1)-get(z0, a0))
+	hi := get(z1, a0) + wa*(get(z1, a1)-get(z1, a0))
+	return scale * (lo + wz*(hi-lo))
+}
+
+// Release returns the difference of the interpolated cumulative columns
+// between age0 and age1.
+func (t *Table) Release(age0, age1, z float64) (Release, error) {
+	if err := checkAges(age0, age1, z); err != nil {
+		return Release{}, err
+	}
+	z0, z1, wz := t.zWeights(z)
+	a00, a01, w0, s0 := t.ageWeights(age0)
+	a10, a11, w1, s1 := t.ageWeights(age1)
+	diff := func(col int) float64 {
+		return t.at(col, a10, a11, w1, s1, z0, z1, wz) - t.at(col, a00, a01, w0, s0, z0, z1, wz)
+	}
+	r := Release{Age0: age0, Age1: age1, Metallicity: z}
+	for ch := Channel(0); ch < NumChannels; ch++ {
+		b := colChannels + int(ch)*colsPerChannel
+		e := &r.Channels[ch]
+		if ch.Discrete() {
+			e.Events = diff(b + chEvents)
+		}
+		e.Energy = diff(b + chEnergy)
+		for s := Species(0); s < NumSpecies; s++ {
+			if t.present[b+chSpecies+int(s)] {
+				e.Species[s] = diff(b + chSpecies + int(s))
+			}
+		}
+		e.Mass = e.Species[Hydrogen] + e.Species[Helium] + e.Species[Metals]
+		if !ch.Discrete() && e.Mass > 0 {
+			e.WindSpeed = math.Sqrt(2*e.Energy/(e.Mass*units.SolarMass)) / units.Kilometre
+		}
+	}
+	r.RadiantEnergy = diff(colRadiant)
+	r.IonizingPhotons = diff(colPhotons)
+	return r, nil
+}
+
+// Luminosity is the tabulated luminosity in Lsun per Msun formed,
+// interpolated (held at the end values outside the grid).
+func (t *Table) Luminosity(age, z float64) (float64, error) {
+	return t.rate(colLuminosity, age, z)
+}
+
+// IonizingRate is the tabulated ionising photon rate per Msun formed,
+// interpolated as Luminosity.
+func (t *Table) IonizingRate(age, z float64) (float64, error) {
+	return t.rate(colIonizingRate, age, z)
+}
+
+func (t *Table) rate(col int, age, z float64) (float64, error) {
+	if err := checkAge(age, z); err != nil {
+		return 0, err
+	}
+	z0, z1, wz := t.zWeights(z)
+	a0, a1, w, _ := t.ageWeights(age)
+	return t.at(col, a0, a1, w, 1, z0, z1, wz), nil
+}
+
+// TableLayout says which grid and which optional columns WriteTable writes.
+type TableLayout struct {
+	// Ages in Myr (> 0, rising) and Metallicities (in (0, 1), rising).
+	Ages, Metallicities []float64
+	// Species selects the element columns written (zero: all).
+	Species SpeciesSet
+	// Digits is the number of significant digits; 0 writes the shortest
+	// representation that reads back exactly.
+	Digits int
+}
+
+// WriteTable writes a model in the table format: the cumulative release
+// Release(0, age, z) and the light at every grid point. ReadTable reads it
+// back; at the grid points the two models agree to the digits written.
+func WriteTable(w io.Writer, m Model, layout TableLayout) error {
+	if len(layout.Ages) < 2 || len(layout.Metallicities) < 1 {
+		return errors.New("yields: write table: need at least two ages and one metallicity")
+	}
+	var cols []tableColumn
+	for _, c := range tableColumns() {
+		if c.index >= colChannels {
+			off := (c.index - colChannels) % colsPerChannel
+			if off >= chSpecies && !layout.Species.Has(Species(off-chSpecies)) {
+				continue
+			}
+			if off == chEvents && !Channel((c.index-colChannels)/colsPerChannel).Discrete() {
+				continue
+			}
+		}
+		cols = append(cols, c)
+	}
+	cw := csv.NewWriter(w)
+	head := make([]string, len(cols))
+	for i, c := range cols {
+		head[i] = c.name + "[" + c.unit + "]"
+	}
+	if err := cw.Write(head); err != nil {
+		return fmt.Errorf("yields: write table: %w", err)
+	}
+	format := func(v float64) string {
+		if layout.Digits > 0 {
+			return strconv.FormatFloat(v, 'g', layout.Digits, 64)
+		}
+		return strconv.FormatFloat(v, 'g', -1, 64)
+	}
+	rec := make([]string, len(cols))
+	for _, z := range layout.Metallicities {
+		for _, age := range layout.Ages {
+			r, err := m.Release(0, age, z)
+			if err != nil {
+				return fmt.Errorf("yields: write table at %v Myr, Z %v: %w", age, z, err)
+			}
+			l, err := m.Luminosity(age, z)
+			if err != nil {
+				return fmt.Errorf("yields: write table at %v Myr, Z %v: %w", age, z, err)
+			}
+			q, err := m.IonizingRate(age, z)
+			if err != nil {
+				return fmt.Errorf("yields: write table at %v Myr, Z %v: %w", age, z, err)
+			}
+			var v [numTableCols]float64
+			v[colLuminosity], v[colIonizingRate] = l, q
+			v[colRadiant], v[colPhotons] = r.RadiantEnergy, r.IonizingPhotons
+			for ch, e := range r.Channels {
+				b := colChannels + ch*colsPerChannel
+				v[b+chEvents], v[b+chMass], v[b+chEnergy] = e.Events, e.Mass, e.Energy
+				copy(v[b+chSpecies:b+colsPerChannel], e.Species[:])
+			}
+			for i, c := range cols {
+				switch c.index {
+				case -1:
+					rec[i] = format(age)
+				case -2:
+					rec[i] = format(z)
+				default:
+					rec[i] = format(v[c.index])
+				}
+			}
+			if err := cw.Write(rec); err != nil {
+				return fmt.Errorf("yields: write table: %w", err)
+			}
+		}
+	}
+	cw.Flush()
+	if err := cw.Error(); err != nil {
+		return fmt.Errorf("yields: write table: %w", err)
+	}
+	return nil
+}
