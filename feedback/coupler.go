@@ -185,6 +185,17 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 	}
 	metals, hasMetals := gas.speciesColumn(yields.Metals)
 
+	// With a fixed neighbour count every star's records go straight to
+	// their final place in out.Records (k slots per star, compacted after);
+	// with a radius they collect in per-worker buffers and are copied.
+	fixed := c.cfg.Radius == 0
+	k := c.cfg.Neighbours
+	if fixed {
+		if cap(out.Records) < n*k {
+			out.Records = make([]Record, n*k)
+		}
+		out.Records = out.Records[:n*k]
+	}
 	var next atomic.Int64
 	const chunk = 16
 	work := func(w int) {
@@ -197,9 +208,22 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 			hi := min(lo+chunk, n)
 			for i := lo; i < hi; i++ {
 				sl := &c.slots[i]
-				sl.worker, sl.start = w, len(ws.records)
-				sl.ledger, sl.err = c.coupleOne(ws, gas, finder, &sources[i], i, metals, hasMetals)
-				sl.count = len(ws.records) - sl.start
+				sl.worker = w
+				var dst []Record
+				if fixed {
+					sl.start = i * k
+					dst = out.Records[i*k : i*k : i*k+k]
+				} else {
+					sl.start = len(ws.records)
+					dst = ws.records
+				}
+				dst, sl.ledger, sl.err = c.coupleOne(ws, gas, finder, &sources[i], i, metals, hasMetals, dst)
+				if fixed {
+					sl.count = len(dst)
+				} else {
+					sl.count = len(dst) - sl.start
+					ws.records = dst
+				}
 			}
 		}
 	}
@@ -214,13 +238,24 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 		wg.Wait()
 	}
 
+	kept := 0
 	for i := range c.slots {
 		sl := &c.slots[i]
-		out.Records = append(out.Records, c.workers[sl.worker].records[sl.start:sl.start+sl.count]...)
+		if fixed {
+			if kept != sl.start {
+				copy(out.Records[kept:], out.Records[sl.start:sl.start+sl.count])
+			}
+			kept += sl.count
+		} else {
+			out.Records = append(out.Records, c.workers[sl.worker].records[sl.start:sl.start+sl.count]...)
+		}
 		if sl.err != nil {
 			out.Problems = append(out.Problems, Problem{StarID: sources[i].Star.ID, Index: i, Err: sl.err})
 		}
 		c.order[i] = i
+	}
+	if fixed {
+		out.Records = out.Records[:kept]
 	}
 	// Sum ledgers in star-ID order so the totals do not depend on the input
 	// order of the stars.
@@ -257,7 +292,13 @@ func undeposited(src *Source, err error) (Ledger, error) {
 
 // coupleOne handles one source: find its gas, weigh it, let the scheme
 // split the release, and append records.
-func (c *Coupler) coupleOne(ws *workerScratch, gas *Gas, finder neighbor.Finder, src *Source, idx int, metals Column, hasMetals bool) (Ledger, error) {
+func (c *Coupler) coupleOne(ws *workerScratch, gas *Gas, finder neighbor.Finder, src *Source, idx int, metals Column, hasMetals bool, recs []Record) ([]Record, Ledger, error) {
+	l, err := c.coupleInto(ws, gas, finder, src, idx, metals, hasMetals, &recs)
+	return recs, l, err
+}
+
+// coupleInto does the work of coupleOne, appending records to *recs.
+func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder, src *Source, idx int, metals Column, hasMetals bool, recs *[]Record) (Ledger, error) {
 	if err := src.Validate(); err != nil {
 		// A malformed release (NaN, negative) cannot be booked: nothing of
 		// it enters the ledger and the caller keeps it, told why.
@@ -274,6 +315,9 @@ func (c *Coupler) coupleOne(ws *workerScratch, gas *Gas, finder neighbor.Finder,
 		return undeposited(src, fmt.Errorf("star %d: neighbour search: %w", src.Star.ID, err))
 	}
 	k := len(ws.found)
+	if c.cfg.Radius == 0 && k > c.cfg.Neighbours {
+		return undeposited(src, fmt.Errorf("star %d: finder returned %d neighbours, %d asked for", src.Star.ID, k, c.cfg.Neighbours))
+	}
 	if k == 0 {
 		return undeposited(src, fmt.Errorf("star %d: %w", src.Star.ID, errNoNeighbours))
 	}
@@ -349,7 +393,7 @@ func (c *Coupler) coupleOne(ws *workerScratch, gas *Gas, finder neighbor.Finder,
 		for a := 0; a < 3; a++ {
 			dv[a] = (d.Momentum[a] - d.Mass*nb.Vel[j][a]) / mt
 		}
-		ws.records = append(ws.records, Record{
+		*recs = append(*recs, Record{
 			GasIndex: nb.Index[j], GasID: nb.ID[j], StarID: src.Star.ID, Channel: src.Channel,
 			Deposit: *d, Kick: math.Sqrt(dot(dv, dv)), Heating: d.Heat / mt,
 		})

@@ -1,6 +1,86 @@
 // Package feedback couples what star particles release into the gas around
-// them: it shares each release over the neighbouring gas with positive,
-// isotropy-corrected weights, splits it into mass, species, momentum and
-// heat according to a scheme, and writes deposit records and a ledger in
-// which everything that went in is accounted for.
+// them, conserving mass, every species, momentum and energy to round-off.
+//
+// # Data
+//
+// Gas is a view on the host's gas, column by column: each Column has a base
+// address, a byte stride and an element type (float64 or float32; IDs may be
+// int64 or int32), so struct-of-arrays and array-of-structs hosts are read
+// and written in place. Everything is in the host's code units, stated once
+// in Config.Units; the few published fits that need physical units
+// (terminal momentum, cooling radius) convert inside.
+//
+// A Source is one star's release for one call: ejected mass and species,
+// energy, number of events, and an optional radial momentum budget
+// (radiation), all in the star's frame.
+//
+// # Weights and the isotropy correction
+//
+// Each star couples to its k nearest gas elements (or all within a radius,
+// or a host-supplied list). Neighbour j gets a base weight: KernelVolume,
+// the star's cubic-spline kernel at the neighbour times its volume m/rho, or
+// SolidAngle, the share of the sky the neighbour covers seen from the star.
+//
+// The base weights are then corrected so that the weighted sum of unit
+// vectors from the star to its neighbours vanishes, keeping every weight
+// positive. Among all positive weights with that property and the same
+// total, the correction picks the one closest to the base weights in
+// relative entropy (sum w' log(w'/w)); the answer is an exponential tilt
+// w'_j ∝ w_j exp(lambda · n_j), with the 3-vector lambda found by Newton's
+// method on a convex function (weights.go has the details). The same
+// correction is applied to the radial momenta a scheme asks for, since they
+// differ from the weights by per-neighbour factors. When the gas lies in
+// one half-space around the star, no positive correction exists: the tilt
+// stops at a bounded lambda, and the residual |sum p_j n_j| / sum |p_j| is
+// reported (Ledger.MaxIsotropyResidual), never hidden. Whatever net vector
+// remains is removed in proportion to the weights, so the kicks always sum
+// to zero in the star's frame and momentum is conserved.
+//
+// # Schemes
+//
+// A Scheme decides how much of each neighbour's share becomes radial
+// momentum and how much heat it keeps: ThermalDump (all heat), Kinetic (a
+// fixed kinetic fraction), TerminalMomentum (energy-conserving sweep-up
+// while the cooling radius is resolved, capped at the terminal momentum of
+// a published fit — Kim & Ostriker 2015 or Cioffi, McKee & Bertschinger
+// 1988 — once it is not, with the post-cooling heat of Thornton et al.
+// 1998 and the rest booked as radiated). Users write their own Scheme and
+// check it with package feedbacktest.
+//
+// # Frames and energy
+//
+// Momentum is split in the star's frame; the ejecta carry the star's
+// velocity into the lab frame. Neighbour j's heat is its energy share less
+// its gain of kinetic energy in the star's frame; because the star-frame
+// kicks sum to zero, the lab-frame energy deposited equals the released
+// energy plus the ejecta's lab-frame kinetic energy, less what is radiated,
+// for a moving star in moving gas. If any neighbour's heat would be
+// negative (gas already moving outward fast), all the star's kicks are
+// scaled down together, which keeps momentum conserved (FlagLimited).
+//
+// # Records, Apply and the ledger
+//
+// Couple writes Records (gas index and ID, star ID, dm, dm per species,
+// lab-frame dp, total energy change, heat, flags, kick and heating for the
+// host's timestep limiter) and a Ledger: In = Deposited + Radiated +
+// Undeposited to round-off, with a star that has no gas around it returned
+// undeposited. Records can be applied in place (Apply) or routed to the rank
+// that owns a ghost element first (IDIndex). Apply sums each element's
+// records in a fixed order (gas ID, then star ID, then channel) and sets the
+// internal energy so the element's total energy grows by exactly the
+// records' energy: the final gas is bitwise the same for any number of
+// workers, any order of stars and any number of ranks.
+//
+// When several stars kick one element in the same direction in one step,
+// the element gains more kinetic energy than the deposits assumed
+// (|p1 + p2|^2 > |p1|^2 + |p2|^2); the energy those stars booked as radiated
+// for the element pays for it first (ApplyReport.Reclaimed), and any rest
+// is booked as ApplyReport.Shortfall rather than letting the internal
+// energy go negative.
+//
+// # Concurrency
+//
+// A Coupler runs its stars on Config.Workers goroutines with per-worker
+// scratch and allocates nothing per star in steady state. One Coupler
+// serves one Couple call at a time; separate Couplers are independent.
 package feedback
