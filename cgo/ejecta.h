@@ -1,0 +1,544 @@
+/*
+ * ejecta.h — the C interface of ejecta, a library that couples stellar
+ * feedback (supernova ejecta, metals, energy, momentum, winds) from star
+ * particles into the gas of a host hydrodynamics code, conserving mass,
+ * every species, momentum and energy, with a ledger of everything that went
+ * in.
+ *
+ * Link with libejecta.so (c-shared) or libejecta.a (c-archive); see
+ * cgo/README.md for the build and link commands.
+ *
+ * Conventions that hold for every function below
+ * -------------------------------------------------
+ * - Every function returns an int: EJECTA_OK (0) on success, otherwise one of
+ *   the EJECTA_ERR_* codes. After a failure on a context, ejecta_last_error
+ *   gives the reason as text.
+ * - Units: every quantity passed in or out is in the host's code units, as
+ *   declared once in ejecta_config (cm, g and cm/s per code unit of length,
+ *   mass and velocity; time is length/velocity, energy mass*velocity^2,
+ *   density mass/length^3, specific energy velocity^2).
+ * - Indices are 0-based everywhere (Fortran hosts subtract 1).
+ * - Ownership: ejecta never keeps or frees a pointer handed to it except the
+ *   gas columns bound with ejecta_bind_gas, which it reads and writes until
+ *   the next ejecta_bind_gas or ejecta_destroy on that context. Everything
+ *   ejecta returns is copied into memory the caller owns. No memory of the
+ *   library's runtime is ever handed to the caller.
+ * - Thread safety: a context may be used by one host thread at a time. A
+ *   call made on a context while another call on the same context is still
+ *   running returns EJECTA_ERR_BUSY and changes nothing. Separate contexts
+ *   share no state and may be used from separate threads at once. The
+ *   context-free functions (ejecta_version, ejecta_config_defaults,
+ *   ejecta_ledger_balanced) may be called from any thread at any time.
+ *   ejecta itself may run worker threads inside a call
+ *   (ejecta_config.worker_threads); they have finished when the call
+ *   returns.
+ * - Determinism: records, ledger and gas after ejecta_apply_* are bitwise the
+ *   same for any worker_threads, any order of the stars, and (radius mode,
+ *   with ghosts covering the coupling radius) any number of MPI ranks.
+ * - Bad input (NULL pointers, counts <= 0, strides smaller than the element,
+ *   unknown names, NaN values, a destroyed context) is reported with an
+ *   error code and never crashes. ejecta cannot check that a pointer points
+ *   at as many elements as the caller says: that is the caller's promise.
+ */
+#ifndef EJECTA_H
+#define EJECTA_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+/* Version of this header's binary interface: bumped when a struct layout or
+ * a function signature changes. */
+#define EJECTA_ABI_VERSION 1
+
+/* ---- error codes ---------------------------------------------------- */
+
+/* Success. */
+#define EJECTA_OK 0
+/* A required pointer argument was NULL. */
+#define EJECTA_ERR_NULL_POINTER 1
+/* A count, size, stride, element type, species code, mode or other argument
+ * is out of range, or the configuration is inconsistent. */
+#define EJECTA_ERR_INVALID_ARGUMENT 2
+/* A scheme, remnant fit or weighting name is not known, or a name field is
+ * not NUL-terminated inside its array. */
+#define EJECTA_ERR_UNKNOWN_NAME 3
+/* The context handle is 0, was destroyed, or is not an ejecta context. */
+#define EJECTA_ERR_INVALID_CONTEXT 4
+/* A step or apply was called before any gas was bound. */
+#define EJECTA_ERR_NO_GAS 5
+/* A value is NaN, infinite or negative where it must not be (a star, a
+ * release, a record). Nothing was changed. */
+#define EJECTA_ERR_BAD_VALUE 6
+/* The neighbour search or the host-supplied neighbour rows failed (rows
+ * malformed, fewer candidates than the neighbour count). Nothing was
+ * deposited. */
+#define EJECTA_ERR_NEIGHBOURS 7
+/* A caller buffer is too small; the call wrote what fitted (see its
+ * documentation) and reports the size needed. */
+#define EJECTA_ERR_BUFFER_TOO_SMALL 8
+/* A record names a gas ID (or index) this context's gas does not hold.
+ * Nothing was applied. */
+#define EJECTA_ERR_UNKNOWN_GAS 9
+/* Another call on the same context is running. Nothing was changed. */
+#define EJECTA_ERR_BUSY 10
+/* The step completed but the release of at least one star was returned
+ * undeposited (no gas within reach, or a neighbour with bad fields: NaN,
+ * non-positive mass or density). Records and ledger are valid; the ledger's
+ * undeposited quantities hold what was returned; ejecta_last_error names the
+ * first such star and the number of them. */
+#define EJECTA_ERR_UNDEPOSITED 11
+/* The ledger does not balance within the tolerance asked for. */
+#define EJECTA_ERR_IMBALANCE 12
+/* The records of the last step were already applied. */
+#define EJECTA_ERR_ALREADY_APPLIED 13
+/* An internal failure of the library (a bug): the call was abandoned and
+ * the context should be destroyed. The message says what happened. */
+#define EJECTA_ERR_INTERNAL 99
+
+/* ---- enumerations ---------------------------------------------------- */
+
+/* Element types of a gas column (ejecta_field.type). */
+#define EJECTA_FLOAT64 1
+#define EJECTA_FLOAT32 2
+#define EJECTA_INT64 3
+#define EJECTA_INT32 4
+
+/* Species codes: index into every species_mass array, and values for the
+ * species list of ejecta_gas. EJECTA_SPECIES_METALS is the total metal mass
+ * (everything heavier than helium). */
+#define EJECTA_SPECIES_METALS 0
+#define EJECTA_SPECIES_HYDROGEN 1
+#define EJECTA_SPECIES_HELIUM 2
+#define EJECTA_SPECIES_CARBON 3
+#define EJECTA_SPECIES_NITROGEN 4
+#define EJECTA_SPECIES_OXYGEN 5
+#define EJECTA_SPECIES_NEON 6
+#define EJECTA_SPECIES_MAGNESIUM 7
+#define EJECTA_SPECIES_SILICON 8
+#define EJECTA_SPECIES_SULFUR 9
+#define EJECTA_SPECIES_CALCIUM 10
+#define EJECTA_SPECIES_IRON 11
+#define EJECTA_NUM_SPECIES 12
+
+/* Release channels (ejecta_star.channel, ejecta_record.channel). */
+#define EJECTA_CHANNEL_CORE_COLLAPSE 0
+#define EJECTA_CHANNEL_TYPE_IA 1
+#define EJECTA_CHANNEL_MASSIVE_WINDS 2
+#define EJECTA_CHANNEL_AGB_WINDS 3
+
+/* Where a step finds each star's gas (ejecta_step's neighbour_mode). */
+/* ejecta's own k-d tree, built on the bound gas positions. */
+#define EJECTA_NEIGHBOURS_OWN_FINDER 0
+/* The host's compressed rows: the candidates of star s are
+ * row_indices[row_offsets[s] .. row_offsets[s+1]-1], 0-based gas indices. */
+#define EJECTA_NEIGHBOURS_HOST_ROWS 1
+
+/* How ejecta_apply_records finds each record's gas element. */
+/* By ejecta_record.gas_index (records made by this context's last step). */
+#define EJECTA_LOCATE_BY_INDEX 0
+/* By ejecta_record.gas_id: records made on another rank, where the element
+ * was a ghost. */
+#define EJECTA_LOCATE_BY_ID 1
+
+/* Bits of ejecta_record.flags. */
+/* The element's momentum was capped at its share of the terminal momentum
+ * (cooling radius unresolved). */
+#define EJECTA_FLAG_CAPPED 1u
+/* The star's kicks were scaled down so that no element's heat went
+ * negative. */
+#define EJECTA_FLAG_LIMITED 2u
+/* The element is photoionised. */
+#define EJECTA_FLAG_IONISED 4u
+/* The host should switch cooling off for the element until
+ * cooling_off_until (code time from the step start). */
+#define EJECTA_FLAG_COOLING_OFF 8u
+/* The element was chosen by stochastic heating. */
+#define EJECTA_FLAG_STOCHASTIC 16u
+
+/* Sizes of the name arrays in ejecta_config. */
+#define EJECTA_NAME_CAPACITY 48
+
+/* ---- types ------------------------------------------------------------ */
+
+/* An opaque context handle. 0 is never a valid context. Copying the value
+ * does not copy the context. */
+typedef uint64_t ejecta_context;
+
+/* Everything a context is created with. Fill it with ejecta_config_defaults
+ * first, then change what you need. */
+typedef struct ejecta_config {
+  /* Code units: cm, g and cm/s per code unit of length, mass and velocity.
+   * Finite and positive. */
+  double length_cm;
+  double mass_g;
+  double velocity_cm_per_s;
+  /* Kinetic scheme: fraction of the energy handed out as radial kinetic
+   * energy, in [0, 1]; 0 means the Sedov-Taylor value 0.28. Ignored by the
+   * other schemes. */
+  double kinetic_fraction;
+  /* Radius mode: when > 0, each star couples to every gas element within
+   * this distance (code length), and neighbour_count is ignored. With
+   * host rows, the members of the row within the radius. */
+  double coupling_radius;
+  /* Periodic box side per axis (code length); 0 leaves the axis open. */
+  double box_size[3];
+  /* Seed of the counter-based random streams of stochastic schemes.
+   * Recorded in the context; none of the built-in schemes draws yet. */
+  uint64_t seed;
+  /* Count mode: each star couples to its neighbour_count nearest gas
+   * elements (host rows: nearest of its row, which must be at least that
+   * long). 0 means 32. Must be >= 0. */
+  int32_t neighbour_count;
+  /* Goroutines used inside a step; 0 means 1; at most 4096. Results do not
+   * depend on it. */
+  int32_t worker_threads;
+  /* 1: apply the isotropy correction to weights and momenta (default);
+   * 0: do not (for comparisons). */
+  int32_t isotropy_correction;
+  int32_t reserved;
+  /* NUL-terminated names: scheme "thermal-dump", "kinetic" or
+   * "terminal-momentum"; remnant_fit (terminal-momentum only)
+   * "kim-ostriker-2015" or "cioffi-mckee-bertschinger-1988"; weighting
+   * "kernel-volume" or "solid-angle". An empty remnant_fit or weighting
+   * takes the default (kim-ostriker-2015, kernel-volume). */
+  char scheme[EJECTA_NAME_CAPACITY];
+  char remnant_fit[EJECTA_NAME_CAPACITY];
+  char weighting[EJECTA_NAME_CAPACITY];
+} ejecta_config;
+
+/* One column of the host's gas: element i is at byte address
+ * data + i*stride, of the given element type. A field of an array of
+ * structs is {&parts[0].field, sizeof(parts[0]), type}. */
+typedef struct ejecta_field {
+  void *data;
+  /* Bytes between consecutive elements; at least the element size and a
+   * multiple of it. */
+  int64_t stride;
+  /* EJECTA_FLOAT64, EJECTA_FLOAT32, EJECTA_INT64 or EJECTA_INT32. Columns
+   * ejecta writes (velocity, mass, internal energy, species fractions) must
+   * be float32 or float64. */
+  int32_t type;
+  int32_t reserved;
+} ejecta_field;
+
+/* The host's gas, column by column, in code units. position, density,
+ * smoothing_length and id are read only; velocity, mass, internal_energy
+ * and species_fraction are written by the ejecta_apply_* calls. Columns
+ * written must not overlap other columns in memory. */
+typedef struct ejecta_gas {
+  /* Number of elements, > 0. */
+  int64_t count;
+  ejecta_field position[3];
+  ejecta_field velocity[3];
+  ejecta_field mass;
+  ejecta_field density;
+  /* Specific internal energy (energy per mass). */
+  ejecta_field internal_energy;
+  /* Optional: data NULL when the host has none. */
+  ejecta_field smoothing_length;
+  /* Unique element IDs; they order the application of records. */
+  ejecta_field id;
+  /* Number of tracked species (0..EJECTA_NUM_SPECIES); species[k] is the
+   * EJECTA_SPECIES_* code of species_fraction[k], a mass-fraction column.
+   * If EJECTA_SPECIES_METALS is tracked, it is also the metallicity the
+   * remnant fits see. May be NULL when n_species is 0. */
+  int32_t n_species;
+  int32_t reserved;
+  const int32_t *species;
+  const ejecta_field *species_fraction;
+} ejecta_gas;
+
+/* One star and what it releases this step (star's rest frame). */
+typedef struct ejecta_star {
+  /* Unique among the stars of a step (and across ranks): orders records. */
+  int64_t id;
+  double position[3];
+  double velocity[3];
+  double mass;
+  /* Metal mass fraction. */
+  double metallicity;
+  /* Code time since formation. */
+  double age;
+  /* EJECTA_CHANNEL_*. */
+  int32_t channel;
+  int32_t reserved;
+  /* Release: ejected mass, its species masses (species_mass[s] <=
+   * ejected_mass), energy (explosion energy, wind kinetic energy), number
+   * of discrete events (supernovae; 0 for continuous release) and an extra
+   * radial momentum budget (radiation pressure; 0 for supernovae). All
+   * finite and >= 0. */
+  double ejected_mass;
+  double species_mass[EJECTA_NUM_SPECIES];
+  double energy;
+  double events;
+  double momentum;
+} ejecta_star;
+
+/* One star's deposit into one gas element. */
+typedef struct ejecta_record {
+  /* Index of the element in the gas bound when the step ran. */
+  int64_t gas_index;
+  int64_t gas_id;
+  int64_t star_id;
+  int32_t channel;
+  uint32_t flags; /* EJECTA_FLAG_* bits */
+  double mass;
+  double species_mass[EJECTA_NUM_SPECIES];
+  /* Lab-frame momentum added. */
+  double momentum[3];
+  /* Change of the element's total (thermal + lab-frame kinetic) energy. */
+  double energy;
+  /* Thermal part of energy. */
+  double heat;
+  /* Energy booked as radiated on the element's behalf. */
+  double radiated;
+  /* With EJECTA_FLAG_COOLING_OFF: code time from the step start. */
+  double cooling_off_until;
+  /* Speed change this deposit alone gives the element, and its heat per
+   * unit mass (timestep help). */
+  double kick;
+  double heating;
+} ejecta_record;
+
+/* An amount of every conserved quantity, code units: mass, mass per
+ * species (indexed by EJECTA_SPECIES_*), lab-frame momentum, total energy
+ * (thermal plus lab-frame kinetic). */
+typedef struct ejecta_quantities {
+  double mass;
+  double species_mass[EJECTA_NUM_SPECIES];
+  double momentum[3];
+  double energy;
+} ejecta_quantities;
+
+/* The account of one step: released = deposited + undeposited, and for
+ * energy released = deposited + radiated + undeposited, to round-off. */
+typedef struct ejecta_ledger {
+  /* What the stars released, lab frame (ejecta carry the star's velocity). */
+  ejecta_quantities released;
+  /* What the records carry into the gas. */
+  ejecta_quantities deposited;
+  /* What was returned to the caller (stars with no gas, bad neighbours). */
+  ejecta_quantities undeposited;
+  /* Energy booked as radiated by unresolved remnants. */
+  double radiated;
+  /* Stars handled; of those, returned undeposited; with a neighbour capped
+   * at the terminal momentum; with kicks scaled down. */
+  int64_t stars;
+  int64_t skipped;
+  int64_t capped;
+  int64_t limited;
+  /* Isotropy residual |sum p_j| / sum |p_j| before the net momentum was
+   * removed: the largest over stars, and the sum (for means). */
+  double max_isotropy_residual;
+  double sum_isotropy_residual;
+  /* Radial momentum handed out, star frame. */
+  double radial_momentum;
+  /* Round-off scales: sum of |kick| over records, and the kinetic energy
+   * of the touched gas plus what was released. */
+  double momentum_scale;
+  double energy_scale;
+} ejecta_ledger;
+
+/* What an ejecta_apply_* call did. */
+typedef struct ejecta_apply_report {
+  int64_t records;
+  int64_t elements;
+  /* What the gas gained, summed from the records (plus reclaimed and
+   * shortfall energy). */
+  ejecta_quantities deposited;
+  /* Radiated energy taken back into the gas where kicks of several stars
+   * added up coherently on one element. */
+  double reclaimed;
+  /* Energy the gas received beyond what records and reclaimed energy
+   * carried (an element's heat would have gone negative); the balance of
+   * a step is released + shortfall = gas gain + (radiated - reclaimed) +
+   * undeposited. shortfall_elements counts the elements concerned. */
+  double shortfall;
+  int64_t shortfall_elements;
+} ejecta_apply_report;
+
+/* Timestep help for one element that received records in the last apply:
+ * the largest speed change and heating per unit mass any single record gave
+ * it, and the union of the flags. */
+typedef struct ejecta_touched {
+  int64_t gas_index;
+  int64_t gas_id;
+  double max_kick;
+  double max_heating;
+  double cooling_off_until;
+  uint32_t flags;
+  int32_t reserved;
+} ejecta_touched;
+
+#ifndef EJECTA_NO_PROTOTYPES
+
+/* ---- library ---------------------------------------------------------- */
+
+/* ejecta_version writes the library version ("MAJOR.MINOR.PATCH") as a
+ * NUL-terminated string into buffer (capacity bytes) and, when abi_version
+ * is not NULL, the library's EJECTA_ABI_VERSION (compare it with the
+ * header's). Errors: EJECTA_ERR_NULL_POINTER (buffer NULL),
+ * EJECTA_ERR_BUFFER_TOO_SMALL (the version is truncated to capacity-1
+ * bytes; capacity 0 writes nothing). Thread safe. */
+int ejecta_version(char *buffer, int64_t capacity, int32_t *abi_version);
+
+/* ejecta_config_defaults fills *config with the defaults: cgs code units
+ * (1, 1, 1), scheme "terminal-momentum" with "kim-ostriker-2015",
+ * weighting "kernel-volume", isotropy correction on, 32 neighbours, no
+ * coupling radius, open box, seed 0, one worker. Errors:
+ * EJECTA_ERR_NULL_POINTER. Thread safe. */
+int ejecta_config_defaults(ejecta_config *config);
+
+/* ---- context ---------------------------------------------------------- */
+
+/* ejecta_create checks *config and creates a context, written to *context
+ * (0 on failure). The config is copied; the caller keeps ownership.
+ * On failure a NUL-terminated reason is written to error_text (capacity
+ * bytes, truncated to fit; error_text may be NULL when capacity is 0),
+ * since there is no context to ask. Errors: EJECTA_ERR_NULL_POINTER
+ * (config or context NULL), EJECTA_ERR_INVALID_ARGUMENT (units not finite
+ * and positive, negative neighbour count or radius, NaN or negative box,
+ * worker_threads outside 0..4096, kinetic_fraction outside [0, 1],
+ * isotropy_correction not 0 or 1), EJECTA_ERR_UNKNOWN_NAME. Thread safe. */
+int ejecta_create(const ejecta_config *config, ejecta_context *context,
+                  char *error_text, int64_t capacity);
+
+/* ejecta_destroy frees the context *context and sets *context to 0. The
+ * bound gas is not touched. Destroying 0 is a no-op returning EJECTA_OK;
+ * destroying a context already destroyed (through another copy of the
+ * handle) returns EJECTA_ERR_INVALID_CONTEXT. Errors:
+ * EJECTA_ERR_NULL_POINTER, EJECTA_ERR_INVALID_CONTEXT, EJECTA_ERR_BUSY. */
+int ejecta_destroy(ejecta_context *context);
+
+/* ejecta_last_error writes the message of the last failed call on the
+ * context (empty after a success) into buffer (capacity bytes,
+ * NUL-terminated, truncated to fit) and its full length in bytes, without
+ * the NUL, into *length when length is not NULL. For an invalid context it
+ * writes a message saying so and returns EJECTA_ERR_INVALID_CONTEXT.
+ * Errors: EJECTA_ERR_NULL_POINTER (buffer NULL with capacity > 0),
+ * EJECTA_ERR_INVALID_CONTEXT, EJECTA_ERR_BUFFER_TOO_SMALL (truncated). */
+int ejecta_last_error(ejecta_context context, char *buffer, int64_t capacity,
+                      int64_t *length);
+
+/* ---- gas -------------------------------------------------------------- */
+
+/* ejecta_bind_gas points the context at the host's gas. The descriptor and
+ * the species list are copied; the column memory is not: it must stay valid
+ * until the next ejecta_bind_gas or ejecta_destroy, and the host must not
+ * change it during a call on this context. Positions are read at the first
+ * step with EJECTA_NEIGHBOURS_OWN_FINDER after binding (to build the tree):
+ * bind again after moving the gas. Other fields are read at each call.
+ * Errors: EJECTA_ERR_NULL_POINTER (gas, a required column's data, species
+ * lists with n_species > 0), EJECTA_ERR_INVALID_ARGUMENT (count <= 0,
+ * unknown element type, stride smaller than or not a multiple of the
+ * element, misaligned data, integer type in a written column, species code
+ * unknown or repeated, n_species outside 0..12, written columns overlapping
+ * others). On error the previous binding is dropped. */
+int ejecta_bind_gas(ejecta_context context, const ejecta_gas *gas);
+
+/* ---- step ------------------------------------------------------------- */
+
+/* ejecta_step couples the release of n_stars stars into the bound gas and
+ * keeps the records and the ledger in the context (read them with
+ * ejecta_record_count / ejecta_copy_records / ejecta_get_ledger, apply them
+ * with ejecta_apply_step_records or ejecta_apply_records). The gas is not
+ * changed. Stars are copied; all are checked before anything is done.
+ * neighbour_mode is EJECTA_NEIGHBOURS_OWN_FINDER (row_offsets and
+ * row_indices ignored, may be NULL) or EJECTA_NEIGHBOURS_HOST_ROWS:
+ * row_offsets has n_stars+1 non-decreasing entries starting at 0 and
+ * row_indices has row_offsets[n_stars] 0-based gas indices, no row naming
+ * an element twice. Errors: EJECTA_ERR_NULL_POINTER,
+ * EJECTA_ERR_INVALID_ARGUMENT (n_stars <= 0, unknown mode or channel),
+ * EJECTA_ERR_BAD_VALUE (NaN, infinite or negative star or release field,
+ * a species mass above the ejected mass; nothing is done),
+ * EJECTA_ERR_NO_GAS, EJECTA_ERR_NEIGHBOURS (malformed rows, or the
+ * positions or IDs of the gas unusable for the tree: NaN, duplicate IDs),
+ * EJECTA_ERR_UNDEPOSITED (completed, some stars returned: see above). */
+int ejecta_step(ejecta_context context, const ejecta_star *stars,
+                int64_t n_stars, int32_t neighbour_mode,
+                const int64_t *row_offsets, const int64_t *row_indices);
+
+/* ejecta_record_count writes the number of records of the last step to
+ * *count. Errors: EJECTA_ERR_NULL_POINTER, EJECTA_ERR_INVALID_CONTEXT. */
+int ejecta_record_count(ejecta_context context, int64_t *count);
+
+/* ejecta_copy_records copies the records of the last step, grouped by star
+ * in the order the stars were given (after ejecta_apply_step_records: in
+ * the order they were applied, by gas ID then star ID), into records
+ * (capacity entries), and the number copied into *written. Errors:
+ * EJECTA_ERR_NULL_POINTER (written NULL, or records NULL with capacity > 0),
+ * EJECTA_ERR_INVALID_ARGUMENT (capacity < 0), EJECTA_ERR_BUFFER_TOO_SMALL
+ * (the first capacity records were copied; ejecta_record_count gives the
+ * number needed). */
+int ejecta_copy_records(ejecta_context context, ejecta_record *records,
+                        int64_t capacity, int64_t *written);
+
+/* ejecta_get_ledger copies the ledger of the last step into *ledger (all
+ * zero before the first step). Errors: EJECTA_ERR_NULL_POINTER,
+ * EJECTA_ERR_INVALID_CONTEXT. */
+int ejecta_get_ledger(ejecta_context context, ejecta_ledger *ledger);
+
+/* ---- apply ------------------------------------------------------------ */
+
+/* ejecta_apply_step_records applies all records of the last step to the
+ * bound gas in place (records of ghost elements included: a host that
+ * sends ghost records to their owners uses ejecta_apply_records instead).
+ * Each element's records are summed in the order gas ID, star ID, channel,
+ * so the result does not depend on thread count or star order. The report
+ * goes to *report when report is not NULL. Errors: EJECTA_ERR_NO_GAS,
+ * EJECTA_ERR_ALREADY_APPLIED (called twice for one step), EJECTA_ERR_UNKNOWN_GAS
+ * (gas rebound since the step and an index or ID no longer matches;
+ * nothing applied). */
+int ejecta_apply_step_records(ejecta_context context,
+                              ejecta_apply_report *report);
+
+/* ejecta_apply_records applies n_records caller records to the bound gas in
+ * place, in the same fixed order as ejecta_apply_step_records: records of
+ * this rank's step for its own elements together with records received
+ * from other ranks. locate is EJECTA_LOCATE_BY_INDEX (gas_index is used and
+ * must hold gas_id) or EJECTA_LOCATE_BY_ID (gas_index is ignored; each
+ * gas_id is looked up in the bound gas). The records are copied, not
+ * changed. All records are checked before anything is written. n_records
+ * may be 0 (nothing to apply). Errors: EJECTA_ERR_NULL_POINTER (records
+ * NULL with n_records > 0), EJECTA_ERR_INVALID_ARGUMENT (n_records < 0,
+ * unknown locate), EJECTA_ERR_NO_GAS, EJECTA_ERR_UNKNOWN_GAS,
+ * EJECTA_ERR_BAD_VALUE (non-finite value, negative mass, species mass above
+ * the record's mass). */
+int ejecta_apply_records(ejecta_context context, const ejecta_record *records,
+                         int64_t n_records, int32_t locate,
+                         ejecta_apply_report *report);
+
+/* ejecta_copy_touched copies the timestep help of the last apply (one entry
+ * per element that received records, in gas-ID order) into touched
+ * (capacity entries) and the number of entries into *written; with
+ * EJECTA_ERR_BUFFER_TOO_SMALL *written is the number needed and the first
+ * capacity entries are copied. Errors: EJECTA_ERR_NULL_POINTER,
+ * EJECTA_ERR_INVALID_ARGUMENT (capacity < 0), EJECTA_ERR_BUFFER_TOO_SMALL. */
+int ejecta_copy_touched(ejecta_context context, ejecta_touched *touched,
+                        int64_t capacity, int64_t *written);
+
+/* ---- ledger arithmetic -------------------------------------------------- */
+
+/* ejecta_ledger_balanced checks that a ledger (one step's, or a sum over
+ * ranks) balances: every component of released - deposited - undeposited
+ * (energy: minus radiated too) within relative_tolerance of its scale (the
+ * larger of released and deposited, and momentum_scale / energy_scale).
+ * relative_tolerance ~1e-12 suits float64 round-off. On imbalance a
+ * NUL-terminated message goes to message (capacity bytes; may be NULL when
+ * capacity is 0). Errors: EJECTA_ERR_NULL_POINTER, EJECTA_ERR_INVALID_ARGUMENT
+ * (tolerance not finite and >= 0), EJECTA_ERR_IMBALANCE. Thread safe. */
+int ejecta_ledger_balanced(const ejecta_ledger *ledger,
+                           double relative_tolerance, char *message,
+                           int64_t capacity);
+
+#endif /* EJECTA_NO_PROTOTYPES */
+
+#ifdef __cplusplus
+}
+#endif
+
+#endif /* EJECTA_H */

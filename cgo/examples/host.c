@@ -1,0 +1,333 @@
+/*
+ * host.c — a small C host of ejecta: gas held as an array of structs with
+ * float32 positions and float64 everything else, a few supernovae, one
+ * step. It checks that the ledger balances, that the gas changed exactly as
+ * the records say, and that bad input through the ABI gives error codes,
+ * never a crash. Prints key=value lines and "result pass" on success; exits
+ * non-zero on the first failed check.
+ *
+ * Code units: pc, Msun, km/s.
+ */
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "ejecta.h"
+
+#define SIDE 8             /* gas lattice side: SIDE^3 elements */
+#define N_GAS (SIDE * SIDE * SIDE)
+#define BOX 16.0           /* periodic box side, pc */
+#define N_STARS 3
+
+typedef struct gas_element {
+  float pos[3];
+  double vel[3];
+  double mass;
+  double density;
+  double energy;  /* specific internal energy, (km/s)^2 */
+  double metals;  /* metal mass fraction */
+  double iron;    /* iron mass fraction */
+  int64_t id;
+} gas_element;
+
+static int failures = 0;
+
+#define CHECK(cond, ...)                                            \
+  do {                                                              \
+    if (!(cond)) {                                                  \
+      fprintf(stderr, "FAIL %s:%d: ", __FILE__, __LINE__);          \
+      fprintf(stderr, __VA_ARGS__);                                 \
+      fprintf(stderr, "\n");                                        \
+      failures++;                                                   \
+    }                                                               \
+  } while (0)
+
+static void must(ejecta_context ctx, int code, const char *what) {
+  if (code != EJECTA_OK) {
+    char msg[512];
+    ejecta_last_error(ctx, msg, sizeof msg, NULL);
+    fprintf(stderr, "FAIL %s: code %d: %s\n", what, code, msg);
+    exit(2);
+  }
+}
+
+static ejecta_field field(void *p, int32_t type) {
+  ejecta_field f = {p, (int64_t)sizeof(gas_element), type, 0};
+  return f;
+}
+
+static void describe(gas_element *g, ejecta_gas *d, int32_t *species,
+                     ejecta_field *fractions, int64_t n) {
+  memset(d, 0, sizeof *d);
+  d->count = n;
+  for (int a = 0; a < 3; a++) {
+    d->position[a] = field(&g[0].pos[a], EJECTA_FLOAT32);
+    d->velocity[a] = field(&g[0].vel[a], EJECTA_FLOAT64);
+  }
+  d->mass = field(&g[0].mass, EJECTA_FLOAT64);
+  d->density = field(&g[0].density, EJECTA_FLOAT64);
+  d->internal_energy = field(&g[0].energy, EJECTA_FLOAT64);
+  d->id = field(&g[0].id, EJECTA_INT64);
+  species[0] = EJECTA_SPECIES_METALS;
+  species[1] = EJECTA_SPECIES_IRON;
+  fractions[0] = field(&g[0].metals, EJECTA_FLOAT64);
+  fractions[1] = field(&g[0].iron, EJECTA_FLOAT64);
+  d->n_species = 2;
+  d->species = species;
+  d->species_fraction = fractions;
+}
+
+/* Checks of bad input through the real exports: each must return its
+ * documented code. */
+static void bad_input(ejecta_context ctx, gas_element *gas) {
+  ejecta_config cfg;
+  ejecta_context other = 0;
+  char msg[256];
+  CHECK(ejecta_config_defaults(NULL) == EJECTA_ERR_NULL_POINTER, "defaults(NULL)");
+  CHECK(ejecta_create(NULL, &other, msg, sizeof msg) == EJECTA_ERR_NULL_POINTER, "create(NULL config)");
+  ejecta_config_defaults(&cfg);
+  CHECK(ejecta_create(&cfg, NULL, msg, sizeof msg) == EJECTA_ERR_NULL_POINTER, "create(NULL out)");
+  snprintf(cfg.scheme, sizeof cfg.scheme, "%s", "shock-and-awe");
+  CHECK(ejecta_create(&cfg, &other, msg, sizeof msg) == EJECTA_ERR_UNKNOWN_NAME && other == 0, "unknown scheme");
+  CHECK(strstr(msg, "shock-and-awe") != NULL, "create error text names the scheme: %s", msg);
+  printf("create_error=%s\n", msg);
+  ejecta_config_defaults(&cfg);
+  memset(cfg.weighting, 'x', sizeof cfg.weighting);
+  CHECK(ejecta_create(&cfg, &other, msg, sizeof msg) == EJECTA_ERR_UNKNOWN_NAME, "unterminated name");
+  ejecta_config_defaults(&cfg);
+  cfg.mass_g = NAN;
+  CHECK(ejecta_create(&cfg, &other, msg, sizeof msg) == EJECTA_ERR_INVALID_ARGUMENT, "NaN units");
+  ejecta_config_defaults(&cfg);
+  cfg.neighbour_count = -3;
+  CHECK(ejecta_create(&cfg, &other, msg, sizeof msg) == EJECTA_ERR_INVALID_ARGUMENT, "negative count");
+
+  /* Bad gas descriptors on a scratch context. */
+  ejecta_config_defaults(&cfg);
+  must(0, ejecta_create(&cfg, &other, msg, sizeof msg), "create scratch");
+  ejecta_gas d;
+  int32_t species[2];
+  ejecta_field fractions[2];
+  CHECK(ejecta_bind_gas(other, NULL) == EJECTA_ERR_NULL_POINTER, "bind(NULL)");
+  describe(gas, &d, species, fractions, 0);
+  CHECK(ejecta_bind_gas(other, &d) == EJECTA_ERR_INVALID_ARGUMENT, "zero count");
+  describe(gas, &d, species, fractions, -5);
+  CHECK(ejecta_bind_gas(other, &d) == EJECTA_ERR_INVALID_ARGUMENT, "negative count");
+  describe(gas, &d, species, fractions, N_GAS);
+  d.mass.stride = 4;
+  CHECK(ejecta_bind_gas(other, &d) == EJECTA_ERR_INVALID_ARGUMENT, "stride below element");
+  describe(gas, &d, species, fractions, N_GAS);
+  d.density.data = NULL;
+  CHECK(ejecta_bind_gas(other, &d) == EJECTA_ERR_NULL_POINTER, "NULL column");
+  describe(gas, &d, species, fractions, N_GAS);
+  d.mass.type = 42;
+  CHECK(ejecta_bind_gas(other, &d) == EJECTA_ERR_INVALID_ARGUMENT, "unknown type");
+  describe(gas, &d, species, fractions, N_GAS);
+  d.velocity[1] = d.velocity[0];
+  CHECK(ejecta_bind_gas(other, &d) == EJECTA_ERR_INVALID_ARGUMENT, "overlapping written columns");
+  describe(gas, &d, species, fractions, N_GAS);
+  species[1] = 77;
+  CHECK(ejecta_bind_gas(other, &d) == EJECTA_ERR_INVALID_ARGUMENT, "unknown species");
+
+  ejecta_star s;
+  memset(&s, 0, sizeof s);
+  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_NO_GAS, "step before bind");
+  describe(gas, &d, species, fractions, N_GAS);
+  must(other, ejecta_bind_gas(other, &d), "bind scratch");
+  CHECK(ejecta_step(other, NULL, 1, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_NULL_POINTER, "NULL stars");
+  CHECK(ejecta_step(other, &s, 0, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "zero stars");
+  CHECK(ejecta_step(other, &s, -1, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "negative stars");
+  CHECK(ejecta_step(other, &s, 1, 9, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "unknown mode");
+  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBOURS_HOST_ROWS, NULL, NULL) == EJECTA_ERR_NULL_POINTER, "rows NULL");
+  s.energy = NAN;
+  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "NaN energy");
+  int64_t len = 0;
+  CHECK(ejecta_last_error(other, msg, sizeof msg, &len) == EJECTA_OK && len > 0, "last error after NaN");
+  printf("nan_error=%s\n", msg);
+  s.energy = 1;
+  s.ejected_mass = -1;
+  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "negative mass");
+  CHECK(ejecta_apply_step_records(other, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "apply without step");
+  ejecta_record r;
+  memset(&r, 0, sizeof r);
+  r.gas_id = 999999;
+  CHECK(ejecta_apply_records(other, &r, 1, EJECTA_LOCATE_BY_ID, NULL) == EJECTA_ERR_UNKNOWN_GAS, "unknown gas ID");
+  r.gas_id = gas[0].id;
+  r.mass = NAN;
+  CHECK(ejecta_apply_records(other, &r, 1, EJECTA_LOCATE_BY_ID, NULL) == EJECTA_ERR_BAD_VALUE, "NaN record");
+  CHECK(ejecta_apply_records(other, NULL, 1, EJECTA_LOCATE_BY_ID, NULL) == EJECTA_ERR_NULL_POINTER, "NULL records");
+  CHECK(ejecta_apply_records(other, &r, -1, EJECTA_LOCATE_BY_ID, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "negative records");
+
+  /* A destroyed context: every call reports it, none crashes. */
+  ejecta_context stale = other;
+  must(other, ejecta_destroy(&other), "destroy scratch");
+  CHECK(other == 0, "destroy zeroes the handle");
+  CHECK(ejecta_destroy(&other) == EJECTA_OK, "destroy(0) is a no-op");
+  CHECK(ejecta_destroy(&stale) == EJECTA_ERR_INVALID_CONTEXT, "double destroy");
+  CHECK(ejecta_bind_gas(stale, &d) == EJECTA_ERR_INVALID_CONTEXT, "bind on destroyed");
+  CHECK(ejecta_step(stale, &s, 1, 0, NULL, NULL) == EJECTA_ERR_INVALID_CONTEXT, "step on destroyed");
+  CHECK(ejecta_last_error(stale, msg, sizeof msg, NULL) == EJECTA_ERR_INVALID_CONTEXT, "last error on destroyed");
+  printf("destroyed_error=%s\n", msg);
+  CHECK(ejecta_step(12345, &s, 1, 0, NULL, NULL) == EJECTA_ERR_INVALID_CONTEXT, "made-up handle");
+  CHECK(ejecta_step(0, &s, 1, 0, NULL, NULL) == EJECTA_ERR_INVALID_CONTEXT, "zero handle");
+  (void)ctx;
+}
+
+int main(void) {
+  char version[32];
+  int32_t abi = 0;
+  must(0, ejecta_version(version, sizeof version, &abi), "version");
+  CHECK(abi == EJECTA_ABI_VERSION, "library ABI %d, header %d", abi, EJECTA_ABI_VERSION);
+  printf("version=%s abi=%d\n", version, abi);
+
+  /* Gas: a lattice in a periodic box, n_H ~ 1 cm^-3 (density in
+   * Msun/pc^3: 1.4 m_p n_H = 0.0345 Msun/pc^3), ~1e4 K. */
+  gas_element *gas = calloc(N_GAS, sizeof *gas);
+  gas_element *before = calloc(N_GAS, sizeof *gas);
+  double h = BOX / SIDE;
+  for (int i = 0; i < N_GAS; i++) {
+    int ix = i % SIDE, iy = (i / SIDE) % SIDE, iz = i / (SIDE * SIDE);
+    gas[i].pos[0] = (float)((ix + 0.5) * h);
+    gas[i].pos[1] = (float)((iy + 0.5) * h);
+    gas[i].pos[2] = (float)((iz + 0.5) * h);
+    gas[i].vel[0] = 0.1 * (ix - SIDE / 2);
+    gas[i].vel[1] = -0.05 * iy;
+    gas[i].vel[2] = 0.02 * iz;
+    gas[i].density = 0.0345;
+    gas[i].mass = gas[i].density * h * h * h;
+    gas[i].energy = 100.0;
+    gas[i].metals = 0.0134;
+    gas[i].iron = 0.0013;
+    gas[i].id = 1000 + 7 * (int64_t)i;
+  }
+  memcpy(before, gas, N_GAS * sizeof *gas);
+
+  ejecta_config cfg;
+  must(0, ejecta_config_defaults(&cfg), "defaults");
+  cfg.length_cm = 3.0856775814913673e18;
+  cfg.mass_g = 1.98841e33;
+  cfg.velocity_cm_per_s = 1e5;
+  cfg.neighbour_count = 48;
+  cfg.worker_threads = 2;
+  for (int a = 0; a < 3; a++) cfg.box_size[a] = BOX;
+  char err[256];
+  ejecta_context ctx = 0;
+  int code = ejecta_create(&cfg, &ctx, err, sizeof err);
+  if (code != EJECTA_OK) {
+    fprintf(stderr, "FAIL create: %d %s\n", code, err);
+    return 2;
+  }
+  ejecta_gas desc;
+  int32_t species[2];
+  ejecta_field fractions[2];
+  describe(gas, &desc, species, fractions, N_GAS);
+  must(ctx, ejecta_bind_gas(ctx, &desc), "bind");
+
+  /* Three supernovae of 1e51 erg ejecting 10 Msun (2 Msun metals, 0.1
+   * Msun iron); one sits near a box face so its gas wraps. */
+  ejecta_star stars[N_STARS];
+  memset(stars, 0, sizeof stars);
+  double where[N_STARS][3] = {{8.1, 7.9, 8.3}, {0.2, 15.9, 4.0}, {12.0, 3.3, 9.9}};
+  double foe = 1e51 / (1.98841e33 * 1e10); /* erg in Msun (km/s)^2 */
+  for (int s = 0; s < N_STARS; s++) {
+    stars[s].id = 50 - s;
+    for (int a = 0; a < 3; a++) stars[s].position[a] = where[s][a];
+    stars[s].velocity[0] = 3.0 * s;
+    stars[s].mass = 1e3;
+    stars[s].metallicity = 0.0134;
+    stars[s].age = 5.0;
+    stars[s].channel = EJECTA_CHANNEL_CORE_COLLAPSE;
+    stars[s].ejected_mass = 10.0;
+    stars[s].species_mass[EJECTA_SPECIES_METALS] = 2.0;
+    stars[s].species_mass[EJECTA_SPECIES_IRON] = 0.1;
+    stars[s].energy = foe;
+    stars[s].events = 1;
+  }
+  must(ctx, ejecta_step(ctx, stars, N_STARS, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL), "step");
+
+  int64_t n_rec = 0, written = 0;
+  must(ctx, ejecta_record_count(ctx, &n_rec), "record count");
+  CHECK(n_rec == N_STARS * 48, "records %lld", (long long)n_rec);
+  ejecta_record *recs = malloc((size_t)n_rec * sizeof *recs);
+  CHECK(ejecta_copy_records(ctx, recs, 2, &written) == EJECTA_ERR_BUFFER_TOO_SMALL && written == 2, "short buffer");
+  must(ctx, ejecta_copy_records(ctx, recs, n_rec, &written), "copy records");
+  CHECK(written == n_rec, "written %lld", (long long)written);
+
+  ejecta_ledger led;
+  must(ctx, ejecta_get_ledger(ctx, &led), "ledger");
+  char imb[256];
+  code = ejecta_ledger_balanced(&led, 1e-12, imb, sizeof imb);
+  CHECK(code == EJECTA_OK, "ledger balanced: %s", imb);
+  printf("ledger_released_mass=%.17g ledger_deposited_mass=%.17g radiated=%.17g capped=%lld\n",
+         led.released.mass, led.deposited.mass, led.radiated, (long long)led.capped);
+
+  ejecta_apply_report rep;
+  must(ctx, ejecta_apply_step_records(ctx, &rep), "apply");
+  CHECK(ejecta_apply_step_records(ctx, &rep) == EJECTA_ERR_ALREADY_APPLIED, "second apply refused");
+
+  /* Per element: the mass change is the sum of its records' dm, and its
+   * momentum and metal changes likewise. */
+  double *dm = calloc(N_GAS, sizeof *dm), *dz = calloc(N_GAS, sizeof *dz);
+  double (*dp)[3] = calloc(N_GAS, sizeof *dp);
+  double sum_dm = 0, sum_de = 0;
+  for (int64_t k = 0; k < n_rec; k++) {
+    int64_t i = recs[k].gas_index;
+    CHECK(i >= 0 && i < N_GAS && gas[i].id == recs[k].gas_id, "record %lld locates its gas", (long long)k);
+    dm[i] += recs[k].mass;
+    dz[i] += recs[k].species_mass[EJECTA_SPECIES_METALS];
+    for (int a = 0; a < 3; a++) dp[i][a] += recs[k].momentum[a];
+    sum_dm += recs[k].mass;
+    sum_de += recs[k].energy;
+  }
+  double gas_dm = 0, gas_de = 0, gas_dz = 0, gas_dp[3] = {0, 0, 0};
+  int changed = 0;
+  for (int i = 0; i < N_GAS; i++) {
+    gas_element *a = &before[i], *b = &gas[i];
+    double m0 = a->mass, m1 = b->mass;
+    CHECK(memcmp(a->pos, b->pos, sizeof a->pos) == 0 && a->id == b->id && a->density == b->density,
+          "read-only fields of %d unchanged", i);
+    if (dm[i] == 0) {
+      CHECK(memcmp(a, b, sizeof *a) == 0, "untouched element %d unchanged", i);
+      continue;
+    }
+    changed++;
+    CHECK(fabs((m1 - m0) - dm[i]) <= 1e-12 * m1, "element %d: mass change %.17g, records %.17g", i, m1 - m0, dm[i]);
+    CHECK(fabs((b->metals * m1 - a->metals * m0) - dz[i]) <= 1e-12 * m1, "element %d metals", i);
+    double ke0 = 0, ke1 = 0;
+    for (int ax = 0; ax < 3; ax++) {
+      double p = m1 * b->vel[ax] - m0 * a->vel[ax];
+      CHECK(fabs(p - dp[i][ax]) <= 1e-9 * (fabs(dp[i][ax]) + m1 * 1.0), "element %d momentum axis %d: %.17g vs %.17g", i, ax, p, dp[i][ax]);
+      gas_dp[ax] += p;
+      ke0 += 0.5 * m0 * a->vel[ax] * a->vel[ax];
+      ke1 += 0.5 * m1 * b->vel[ax] * b->vel[ax];
+    }
+    gas_dm += m1 - m0;
+    gas_dz += b->metals * m1 - a->metals * m0;
+    gas_de += (ke1 + m1 * b->energy) - (ke0 + m0 * a->energy);
+  }
+  printf("records=%lld elements_changed=%d report_elements=%lld\n", (long long)n_rec, changed, (long long)rep.elements);
+  printf("record_dm_sum=%.17g gas_mass_change=%.17g\n", sum_dm, gas_dm);
+  printf("record_de_sum=%.17g gas_energy_change=%.17g reclaimed=%.17g shortfall=%.17g\n", sum_de, gas_de, rep.reclaimed, rep.shortfall);
+  CHECK(changed == rep.elements, "changed %d vs report %lld", changed, (long long)rep.elements);
+  CHECK(fabs(gas_dm - led.deposited.mass) <= 1e-12 * led.deposited.mass, "gas mass change vs ledger");
+  CHECK(fabs(gas_dm - N_STARS * 10.0) <= 1e-12 * gas_dm, "all ejecta deposited");
+  CHECK(fabs(gas_dz - led.deposited.species_mass[EJECTA_SPECIES_METALS]) <= 1e-12 * gas_dz, "metals vs ledger");
+  double escale = led.energy_scale;
+  CHECK(fabs(gas_de - (sum_de + rep.reclaimed + rep.shortfall)) <= 1e-10 * escale,
+        "gas energy change %.17g vs records %.17g + reclaimed + shortfall", gas_de, sum_de);
+  for (int ax = 0; ax < 3; ax++)
+    CHECK(fabs(gas_dp[ax] - led.deposited.momentum[ax]) <= 1e-10 * led.momentum_scale, "momentum axis %d vs ledger", ax);
+
+  int64_t n_touched = 0;
+  CHECK(ejecta_copy_touched(ctx, NULL, 0, &n_touched) == EJECTA_ERR_BUFFER_TOO_SMALL && n_touched == rep.elements, "touched count");
+
+  bad_input(ctx, gas);
+  must(ctx, ejecta_destroy(&ctx), "destroy");
+  free(dm); free(dz); free(dp); free(recs); free(gas); free(before);
+  if (failures) {
+    printf("result fail (%d checks)\n", failures);
+    return 1;
+  }
+  printf("result pass\n");
+  return 0;
+}

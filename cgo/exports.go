@@ -1,0 +1,281 @@
+package main
+
+/*
+#define EJECTA_NO_PROTOTYPES
+#include "ejecta.h"
+*/
+import "C"
+
+import (
+	"fmt"
+	"unsafe"
+
+	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/yields"
+)
+
+// Each export converts its C arguments to the Go mirrors of abi.go and
+// calls the entry function of the same name there; the entry functions
+// recover every panic, so none crosses into C.
+
+//export ejecta_version
+func ejecta_version(buffer *C.char, capacity C.int64_t, abi *C.int32_t) C.int {
+	return C.int(entryVersion((*byte)(unsafe.Pointer(buffer)), int64(capacity), (*int32)(unsafe.Pointer(abi))))
+}
+
+//export ejecta_config_defaults
+func ejecta_config_defaults(config *C.ejecta_config) C.int {
+	return C.int(entryConfigDefaults((*configABI)(unsafe.Pointer(config))))
+}
+
+//export ejecta_create
+func ejecta_create(config *C.ejecta_config, context *C.ejecta_context, errorText *C.char, capacity C.int64_t) C.int {
+	return C.int(entryCreate((*configABI)(unsafe.Pointer(config)), (*uint64)(unsafe.Pointer(context)),
+		(*byte)(unsafe.Pointer(errorText)), int64(capacity)))
+}
+
+//export ejecta_destroy
+func ejecta_destroy(context *C.ejecta_context) C.int {
+	return C.int(entryDestroy((*uint64)(unsafe.Pointer(context))))
+}
+
+//export ejecta_last_error
+func ejecta_last_error(context C.ejecta_context, buffer *C.char, capacity C.int64_t, length *C.int64_t) C.int {
+	return C.int(entryLastError(uint64(context), (*byte)(unsafe.Pointer(buffer)), int64(capacity), (*int64)(unsafe.Pointer(length))))
+}
+
+//export ejecta_bind_gas
+func ejecta_bind_gas(context C.ejecta_context, gas *C.ejecta_gas) C.int {
+	return C.int(entryBindGas(uint64(context), (*gasABI)(unsafe.Pointer(gas))))
+}
+
+//export ejecta_step
+func ejecta_step(context C.ejecta_context, stars *C.ejecta_star, nStars C.int64_t, neighbourMode C.int32_t, rowOffsets, rowIndices *C.int64_t) C.int {
+	return C.int(entryStep(uint64(context), (*starABI)(unsafe.Pointer(stars)), int64(nStars), int32(neighbourMode),
+		(*int64)(unsafe.Pointer(rowOffsets)), (*int64)(unsafe.Pointer(rowIndices))))
+}
+
+//export ejecta_record_count
+func ejecta_record_count(context C.ejecta_context, count *C.int64_t) C.int {
+	return C.int(entryRecordCount(uint64(context), (*int64)(unsafe.Pointer(count))))
+}
+
+//export ejecta_copy_records
+func ejecta_copy_records(context C.ejecta_context, records *C.ejecta_record, capacity C.int64_t, written *C.int64_t) C.int {
+	return C.int(entryCopyRecords(uint64(context), (*recordABI)(unsafe.Pointer(records)), int64(capacity), (*int64)(unsafe.Pointer(written))))
+}
+
+//export ejecta_get_ledger
+func ejecta_get_ledger(context C.ejecta_context, ledger *C.ejecta_ledger) C.int {
+	return C.int(entryGetLedger(uint64(context), (*ledgerABI)(unsafe.Pointer(ledger))))
+}
+
+//export ejecta_apply_step_records
+func ejecta_apply_step_records(context C.ejecta_context, report *C.ejecta_apply_report) C.int {
+	return C.int(entryApplyStepRecords(uint64(context), (*applyReportABI)(unsafe.Pointer(report))))
+}
+
+//export ejecta_apply_records
+func ejecta_apply_records(context C.ejecta_context, records *C.ejecta_record, nRecords C.int64_t, locate C.int32_t, report *C.ejecta_apply_report) C.int {
+	return C.int(entryApplyRecords(uint64(context), (*recordABI)(unsafe.Pointer(records)), int64(nRecords), int32(locate),
+		(*applyReportABI)(unsafe.Pointer(report))))
+}
+
+//export ejecta_copy_touched
+func ejecta_copy_touched(context C.ejecta_context, touched *C.ejecta_touched, capacity C.int64_t, written *C.int64_t) C.int {
+	return C.int(entryCopyTouched(uint64(context), (*touchedABI)(unsafe.Pointer(touched)), int64(capacity), (*int64)(unsafe.Pointer(written))))
+}
+
+//export ejecta_ledger_balanced
+func ejecta_ledger_balanced(ledger *C.ejecta_ledger, relativeTolerance C.double, message *C.char, capacity C.int64_t) C.int {
+	return C.int(entryLedgerBalanced((*ledgerABI)(unsafe.Pointer(ledger)), float64(relativeTolerance),
+		(*byte)(unsafe.Pointer(message)), int64(capacity)))
+}
+
+// abiMismatches lists every difference between ejecta.h and the Go mirrors
+// of abi.go: struct sizes, field offsets and constants. Empty when they
+// agree.
+func abiMismatches() []string {
+	var bad []string
+	eq := func(what string, c, g uintptr) {
+		if c != g {
+			bad = append(bad, fmt.Sprintf("%s: C %d, Go %d", what, c, g))
+		}
+	}
+	eqi := func(what string, c, g int64) {
+		if c != g {
+			bad = append(bad, fmt.Sprintf("%s: C %d, Go %d", what, c, g))
+		}
+	}
+	var cc C.ejecta_config
+	var gc configABI
+	eq("sizeof config", unsafe.Sizeof(cc), unsafe.Sizeof(gc))
+	eq("config.kinetic_fraction", unsafe.Offsetof(cc.kinetic_fraction), unsafe.Offsetof(gc.KineticFraction))
+	eq("config.coupling_radius", unsafe.Offsetof(cc.coupling_radius), unsafe.Offsetof(gc.CouplingRadius))
+	eq("config.box_size", unsafe.Offsetof(cc.box_size), unsafe.Offsetof(gc.BoxSize))
+	eq("config.seed", unsafe.Offsetof(cc.seed), unsafe.Offsetof(gc.Seed))
+	eq("config.neighbour_count", unsafe.Offsetof(cc.neighbour_count), unsafe.Offsetof(gc.NeighbourCount))
+	eq("config.worker_threads", unsafe.Offsetof(cc.worker_threads), unsafe.Offsetof(gc.WorkerThreads))
+	eq("config.isotropy_correction", unsafe.Offsetof(cc.isotropy_correction), unsafe.Offsetof(gc.IsotropyCorrection))
+	eq("config.scheme", unsafe.Offsetof(cc.scheme), unsafe.Offsetof(gc.Scheme))
+	eq("config.remnant_fit", unsafe.Offsetof(cc.remnant_fit), unsafe.Offsetof(gc.RemnantFit))
+	eq("config.weighting", unsafe.Offsetof(cc.weighting), unsafe.Offsetof(gc.Weighting))
+
+	var cf C.ejecta_field
+	var gf fieldABI
+	eq("sizeof field", unsafe.Sizeof(cf), unsafe.Sizeof(gf))
+	eq("field.stride", unsafe.Offsetof(cf.stride), unsafe.Offsetof(gf.Stride))
+	eq("field.type", unsafe.Offsetof(cf._type), unsafe.Offsetof(gf.Type))
+
+	var cg C.ejecta_gas
+	var gg gasABI
+	eq("sizeof gas", unsafe.Sizeof(cg), unsafe.Sizeof(gg))
+	eq("gas.velocity", unsafe.Offsetof(cg.velocity), unsafe.Offsetof(gg.Velocity))
+	eq("gas.mass", unsafe.Offsetof(cg.mass), unsafe.Offsetof(gg.Mass))
+	eq("gas.density", unsafe.Offsetof(cg.density), unsafe.Offsetof(gg.Density))
+	eq("gas.internal_energy", unsafe.Offsetof(cg.internal_energy), unsafe.Offsetof(gg.InternalEnergy))
+	eq("gas.smoothing_length", unsafe.Offsetof(cg.smoothing_length), unsafe.Offsetof(gg.SmoothingLength))
+	eq("gas.id", unsafe.Offsetof(cg.id), unsafe.Offsetof(gg.ID))
+	eq("gas.n_species", unsafe.Offsetof(cg.n_species), unsafe.Offsetof(gg.NSpecies))
+	eq("gas.species", unsafe.Offsetof(cg.species), unsafe.Offsetof(gg.Species))
+	eq("gas.species_fraction", unsafe.Offsetof(cg.species_fraction), unsafe.Offsetof(gg.SpeciesFraction))
+
+	var cs C.ejecta_star
+	var gs starABI
+	eq("sizeof star", unsafe.Sizeof(cs), unsafe.Sizeof(gs))
+	eq("star.position", unsafe.Offsetof(cs.position), unsafe.Offsetof(gs.Position))
+	eq("star.velocity", unsafe.Offsetof(cs.velocity), unsafe.Offsetof(gs.Velocity))
+	eq("star.mass", unsafe.Offsetof(cs.mass), unsafe.Offsetof(gs.Mass))
+	eq("star.metallicity", unsafe.Offsetof(cs.metallicity), unsafe.Offsetof(gs.Metallicity))
+	eq("star.age", unsafe.Offsetof(cs.age), unsafe.Offsetof(gs.Age))
+	eq("star.channel", unsafe.Offsetof(cs.channel), unsafe.Offsetof(gs.Channel))
+	eq("star.ejected_mass", unsafe.Offsetof(cs.ejected_mass), unsafe.Offsetof(gs.EjectedMass))
+	eq("star.species_mass", unsafe.Offsetof(cs.species_mass), unsafe.Offsetof(gs.SpeciesMass))
+	eq("star.energy", unsafe.Offsetof(cs.energy), unsafe.Offsetof(gs.Energy))
+	eq("star.events", unsafe.Offsetof(cs.events), unsafe.Offsetof(gs.Events))
+	eq("star.momentum", unsafe.Offsetof(cs.momentum), unsafe.Offsetof(gs.Momentum))
+
+	var cr C.ejecta_record
+	var gr recordABI
+	eq("sizeof record", unsafe.Sizeof(cr), unsafe.Sizeof(gr))
+	eq("record.gas_id", unsafe.Offsetof(cr.gas_id), unsafe.Offsetof(gr.GasID))
+	eq("record.star_id", unsafe.Offsetof(cr.star_id), unsafe.Offsetof(gr.StarID))
+	eq("record.channel", unsafe.Offsetof(cr.channel), unsafe.Offsetof(gr.Channel))
+	eq("record.flags", unsafe.Offsetof(cr.flags), unsafe.Offsetof(gr.Flags))
+	eq("record.mass", unsafe.Offsetof(cr.mass), unsafe.Offsetof(gr.Mass))
+	eq("record.species_mass", unsafe.Offsetof(cr.species_mass), unsafe.Offsetof(gr.SpeciesMass))
+	eq("record.momentum", unsafe.Offsetof(cr.momentum), unsafe.Offsetof(gr.Momentum))
+	eq("record.energy", unsafe.Offsetof(cr.energy), unsafe.Offsetof(gr.Energy))
+	eq("record.heat", unsafe.Offsetof(cr.heat), unsafe.Offsetof(gr.Heat))
+	eq("record.radiated", unsafe.Offsetof(cr.radiated), unsafe.Offsetof(gr.Radiated))
+	eq("record.cooling_off_until", unsafe.Offsetof(cr.cooling_off_until), unsafe.Offsetof(gr.CoolingOffUntil))
+	eq("record.kick", unsafe.Offsetof(cr.kick), unsafe.Offsetof(gr.Kick))
+	eq("record.heating", unsafe.Offsetof(cr.heating), unsafe.Offsetof(gr.Heating))
+
+	var cq C.ejecta_quantities
+	var gq quantitiesABI
+	eq("sizeof quantities", unsafe.Sizeof(cq), unsafe.Sizeof(gq))
+	eq("quantities.species_mass", unsafe.Offsetof(cq.species_mass), unsafe.Offsetof(gq.SpeciesMass))
+	eq("quantities.momentum", unsafe.Offsetof(cq.momentum), unsafe.Offsetof(gq.Momentum))
+	eq("quantities.energy", unsafe.Offsetof(cq.energy), unsafe.Offsetof(gq.Energy))
+
+	var cl C.ejecta_ledger
+	var gl ledgerABI
+	eq("sizeof ledger", unsafe.Sizeof(cl), unsafe.Sizeof(gl))
+	eq("ledger.deposited", unsafe.Offsetof(cl.deposited), unsafe.Offsetof(gl.Deposited))
+	eq("ledger.undeposited", unsafe.Offsetof(cl.undeposited), unsafe.Offsetof(gl.Undeposited))
+	eq("ledger.radiated", unsafe.Offsetof(cl.radiated), unsafe.Offsetof(gl.Radiated))
+	eq("ledger.stars", unsafe.Offsetof(cl.stars), unsafe.Offsetof(gl.Stars))
+	eq("ledger.limited", unsafe.Offsetof(cl.limited), unsafe.Offsetof(gl.Limited))
+	eq("ledger.max_isotropy_residual", unsafe.Offsetof(cl.max_isotropy_residual), unsafe.Offsetof(gl.MaxIsotropyResidual))
+	eq("ledger.energy_scale", unsafe.Offsetof(cl.energy_scale), unsafe.Offsetof(gl.EnergyScale))
+
+	var ca C.ejecta_apply_report
+	var ga applyReportABI
+	eq("sizeof apply_report", unsafe.Sizeof(ca), unsafe.Sizeof(ga))
+	eq("apply_report.deposited", unsafe.Offsetof(ca.deposited), unsafe.Offsetof(ga.Deposited))
+	eq("apply_report.reclaimed", unsafe.Offsetof(ca.reclaimed), unsafe.Offsetof(ga.Reclaimed))
+	eq("apply_report.shortfall_elements", unsafe.Offsetof(ca.shortfall_elements), unsafe.Offsetof(ga.ShortfallElements))
+
+	var ct C.ejecta_touched
+	var gt touchedABI
+	eq("sizeof touched", unsafe.Sizeof(ct), unsafe.Sizeof(gt))
+	eq("touched.max_kick", unsafe.Offsetof(ct.max_kick), unsafe.Offsetof(gt.MaxKick))
+	eq("touched.cooling_off_until", unsafe.Offsetof(ct.cooling_off_until), unsafe.Offsetof(gt.CoolingOffUntil))
+	eq("touched.flags", unsafe.Offsetof(ct.flags), unsafe.Offsetof(gt.Flags))
+
+	consts := []namedCode{
+		{"EJECTA_OK", C.EJECTA_OK, int64(codeOK)},
+		{"EJECTA_ERR_NULL_POINTER", C.EJECTA_ERR_NULL_POINTER, int64(codeNullPointer)},
+		{"EJECTA_ERR_INVALID_ARGUMENT", C.EJECTA_ERR_INVALID_ARGUMENT, int64(codeInvalidArgument)},
+		{"EJECTA_ERR_UNKNOWN_NAME", C.EJECTA_ERR_UNKNOWN_NAME, int64(codeUnknownName)},
+		{"EJECTA_ERR_INVALID_CONTEXT", C.EJECTA_ERR_INVALID_CONTEXT, int64(codeInvalidContext)},
+		{"EJECTA_ERR_NO_GAS", C.EJECTA_ERR_NO_GAS, int64(codeNoGas)},
+		{"EJECTA_ERR_BAD_VALUE", C.EJECTA_ERR_BAD_VALUE, int64(codeBadValue)},
+		{"EJECTA_ERR_NEIGHBOURS", C.EJECTA_ERR_NEIGHBOURS, int64(codeNeighbours)},
+		{"EJECTA_ERR_BUFFER_TOO_SMALL", C.EJECTA_ERR_BUFFER_TOO_SMALL, int64(codeBufferTooSmall)},
+		{"EJECTA_ERR_UNKNOWN_GAS", C.EJECTA_ERR_UNKNOWN_GAS, int64(codeUnknownGas)},
+		{"EJECTA_ERR_BUSY", C.EJECTA_ERR_BUSY, int64(codeBusy)},
+		{"EJECTA_ERR_UNDEPOSITED", C.EJECTA_ERR_UNDEPOSITED, int64(codeUndeposited)},
+		{"EJECTA_ERR_IMBALANCE", C.EJECTA_ERR_IMBALANCE, int64(codeImbalance)},
+		{"EJECTA_ERR_ALREADY_APPLIED", C.EJECTA_ERR_ALREADY_APPLIED, int64(codeAlreadyApplied)},
+		{"EJECTA_ERR_INTERNAL", C.EJECTA_ERR_INTERNAL, int64(codeInternal)},
+		{"EJECTA_ABI_VERSION", C.EJECTA_ABI_VERSION, int64(abiVersion)},
+		{"EJECTA_NAME_CAPACITY", C.EJECTA_NAME_CAPACITY, nameCapacity},
+		{"EJECTA_NUM_SPECIES", C.EJECTA_NUM_SPECIES, int64(numSpecies)},
+		{"EJECTA_FLOAT64", C.EJECTA_FLOAT64, 1},
+		{"EJECTA_FLOAT32", C.EJECTA_FLOAT32, 2},
+		{"EJECTA_INT64", C.EJECTA_INT64, 3},
+		{"EJECTA_INT32", C.EJECTA_INT32, 4},
+		{"EJECTA_NEIGHBOURS_OWN_FINDER", C.EJECTA_NEIGHBOURS_OWN_FINDER, int64(modeOwnFinder)},
+		{"EJECTA_NEIGHBOURS_HOST_ROWS", C.EJECTA_NEIGHBOURS_HOST_ROWS, int64(modeHostRows)},
+		{"EJECTA_LOCATE_BY_INDEX", C.EJECTA_LOCATE_BY_INDEX, int64(locateByIndex)},
+		{"EJECTA_LOCATE_BY_ID", C.EJECTA_LOCATE_BY_ID, int64(locateByID)},
+	}
+	for _, k := range consts {
+		eqi(k.name, k.c, k.g)
+	}
+	for _, k := range speciesAndChannelCodes() {
+		eqi(k.name, k.c, k.g)
+	}
+	flags := []namedCode{
+		{"EJECTA_FLAG_CAPPED", C.EJECTA_FLAG_CAPPED, int64(feedback.FlagCapped)},
+		{"EJECTA_FLAG_LIMITED", C.EJECTA_FLAG_LIMITED, int64(feedback.FlagLimited)},
+		{"EJECTA_FLAG_IONISED", C.EJECTA_FLAG_IONISED, int64(feedback.FlagIonised)},
+		{"EJECTA_FLAG_COOLING_OFF", C.EJECTA_FLAG_COOLING_OFF, int64(feedback.FlagCoolingOff)},
+		{"EJECTA_FLAG_STOCHASTIC", C.EJECTA_FLAG_STOCHASTIC, int64(feedback.FlagStochastic)},
+	}
+	for _, k := range flags {
+		eqi(k.name, k.c, k.g)
+	}
+	return bad
+}
+
+// namedCode is a constant of ejecta.h and its Go counterpart.
+type namedCode struct {
+	name string
+	c, g int64
+}
+
+// speciesAndChannelCodes pairs the species and channel codes of ejecta.h
+// with package yields.
+func speciesAndChannelCodes() []namedCode {
+	return []namedCode{
+		{"EJECTA_SPECIES_METALS", C.EJECTA_SPECIES_METALS, int64(yields.Metals)},
+		{"EJECTA_SPECIES_HYDROGEN", C.EJECTA_SPECIES_HYDROGEN, int64(yields.Hydrogen)},
+		{"EJECTA_SPECIES_HELIUM", C.EJECTA_SPECIES_HELIUM, int64(yields.Helium)},
+		{"EJECTA_SPECIES_CARBON", C.EJECTA_SPECIES_CARBON, int64(yields.Carbon)},
+		{"EJECTA_SPECIES_NITROGEN", C.EJECTA_SPECIES_NITROGEN, int64(yields.Nitrogen)},
+		{"EJECTA_SPECIES_OXYGEN", C.EJECTA_SPECIES_OXYGEN, int64(yields.Oxygen)},
+		{"EJECTA_SPECIES_NEON", C.EJECTA_SPECIES_NEON, int64(yields.Neon)},
+		{"EJECTA_SPECIES_MAGNESIUM", C.EJECTA_SPECIES_MAGNESIUM, int64(yields.Magnesium)},
+		{"EJECTA_SPECIES_SILICON", C.EJECTA_SPECIES_SILICON, int64(yields.Silicon)},
+		{"EJECTA_SPECIES_SULFUR", C.EJECTA_SPECIES_SULFUR, int64(yields.Sulfur)},
+		{"EJECTA_SPECIES_CALCIUM", C.EJECTA_SPECIES_CALCIUM, int64(yields.Calcium)},
+		{"EJECTA_SPECIES_IRON", C.EJECTA_SPECIES_IRON, int64(yields.Iron)},
+		{"EJECTA_CHANNEL_CORE_COLLAPSE", C.EJECTA_CHANNEL_CORE_COLLAPSE, int64(yields.CoreCollapse)},
+		{"EJECTA_CHANNEL_TYPE_IA", C.EJECTA_CHANNEL_TYPE_IA, int64(yields.TypeIa)},
+		{"EJECTA_CHANNEL_MASSIVE_WINDS", C.EJECTA_CHANNEL_MASSIVE_WINDS, int64(yields.MassiveWinds)},
+		{"EJECTA_CHANNEL_AGB_WINDS", C.EJECTA_CHANNEL_AGB_WINDS, int64(yields.AGBWinds)},
+	}
+}
