@@ -5,5 +5,75 @@
 // metallicity.
 //
 // Ages are in Myr, masses in Msun (per Msun formed), energies in erg, wind
-// speeds in km/s; see package units for the constants behind conversions.
+// speeds in km/s, metallicity a metal mass fraction in [0, 1); see package
+// units for the constants behind conversions.
+//
+// # Models
+//
+// A Model answers Release(age0, age1, z): everything one Msun formed releases
+// between two ages, channel by channel (CoreCollapse, TypeIa, MassiveWinds,
+// AGBWinds), with per-species masses (total metals, H, He, C, N, O, Ne, Mg,
+// Si, S, Ca, Fe; H + He + metals is the ejected mass), plus the radiant
+// energy and ionising photons emitted. Two models are provided:
+//
+//   - Population, the built-in simple stellar population, configured by
+//     Config (DefaultConfig documents every default and its source): an IMF
+//     (Salpeter 1955, Kroupa 2001 or Chabrier 2003; NewIMF), lifetimes from
+//     the fit of Raiteri, Villata & Navarro 1996 (Lifetimes), core-collapse
+//     supernovae in a progenitor window, Type Ia supernovae from a t^-1
+//     delay-time distribution, winds of massive stars spread over their
+//     lives, AGB mass loss from an initial–final mass relation, and the light
+//     and ionising photons of the stars still on the main sequence.
+//   - Table, read from a user's CSV file (ReadTable), for the output of any
+//     population-synthesis model; WriteTable writes any Model in the format.
+//
+// In both, each quantity is a cumulative function of age and a release is
+// the difference C(age1) − C(age0): releases of consecutive intervals add up
+// to the release of their union to round-off, so a star's total does not
+// depend on the time steps it was advanced with. Release allocates nothing
+// and is safe for concurrent use.
+//
+// # Table format
+//
+// A table is a CSV file. Lines starting with # are comments. The first
+// other line is the header: every column is named quantity[unit], with the
+// unit written exactly as below (a different unit is an error, not a
+// conversion). Each following row is one grid point:
+//
+//	age[Myr]                       age since formation, > 0
+//	metallicity[mass_fraction]     metal mass fraction, in (0, 1)
+//	luminosity[Lsun/Msun]          bolometric luminosity at that age
+//	ionizing_rate[photons/s/Msun]  hydrogen-ionising photon rate at that age
+//	radiant_energy[erg/Msun]       cumulative: light emitted since formation
+//	ionizing_photons[photons/Msun] cumulative: ionising photons since formation
+//
+// and, for each channel prefix ccsn, snia, massive_wind and agb_wind, all
+// cumulative since formation:
+//
+//	<prefix>_events[1/Msun]        supernovae (ccsn and snia only)
+//	<prefix>_mass[Msun/Msun]       ejected mass
+//	<prefix>_energy[erg/Msun]      explosion energy, or wind kinetic energy
+//	<prefix>_z[Msun/Msun]          metals; _h and _he likewise (required)
+//	<prefix>_c[Msun/Msun]          optional elements: _c _n _o _ne _mg _si _s _ca _fe
+//
+// Every value is a finite number >= 0. Rows come in blocks of one
+// metallicity, blocks in rising metallicity, each block with the same
+// strictly rising ages. Cumulative columns must not fall with age (a fall is
+// a negative rate). In each row and channel H + He + metals must equal the
+// mass to 1e-6 (the mass is then taken as that sum) and the elements must
+// not exceed the metals. Absent optional elements read as zero. Any defect
+// is reported with its line number.
+//
+// Between grid points a table is interpolated linearly in log age and log
+// metallicity. Before the first age cumulative values grow linearly from
+// zero; after the last they stay constant; metallicities outside the grid
+// are clamped to it. Wind speeds are recovered as sqrt(2 E / M). The file
+// testdata/yields/example_table.csv at the module root is an example,
+// written from the built-in Kroupa population.
+//
+// # Discrete events
+//
+// Supernova counts in a step are drawn with Poisson from a CounterRNG keyed
+// by (seed, star ID, step, stream): the draw is a pure function of those
+// numbers, so it is the same whatever thread, rank or order makes it.
 package yields
