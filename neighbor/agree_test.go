@@ -70,9 +70,9 @@ type gasKind struct {
 }
 
 func gasKinds(short bool) []gasKind {
-	n := 400
+	n := 300
 	if short {
-		n = 150
+		n = 120
 	}
 	return []gasKind{
 		{"uniform", func(rng *rand.Rand) ([]float64, []int64) { return uniformGas(rng, n) }},
@@ -93,7 +93,7 @@ var testBoxes = []Box{
 // HostLists return exactly what brute force and gonum's k-d tree return:
 // same indices, same order (ties by ID), same Dist2 bits.
 func TestFindersAgreeWithReferences(t *testing.T) {
-	seeds := 6
+	seeds := 4
 	if testing.Short() {
 		seeds = 2
 	}

@@ -13,9 +13,9 @@ import (
 func TestConcurrentQueries(t *testing.T) {
 	rng := rand.New(rand.NewPCG(17, 18))
 	box := Box{Size: [3]float64{1, 1, 1}}
-	n := 3000
+	n := 1200
 	if testing.Short() {
-		n = 800
+		n = 400
 	}
 	pos, ids := clusteredGas(rng, n)
 	queries := queryPoints(rng, box, 30)
@@ -42,12 +42,12 @@ func TestConcurrentQueries(t *testing.T) {
 		}
 		var wg sync.WaitGroup
 		errs := make(chan string, 64)
-		for g := 0; g < 8; g++ {
+		for g := 0; g < 6; g++ {
 			wg.Add(1)
 			go func(g int) {
 				defer wg.Done()
 				var buf []Neighbor
-				for rep := 0; rep < 3; rep++ {
+				for rep := 0; rep < 2; rep++ {
 					for i := range queries {
 						s := (i + g*7) % len(queries)
 						q := Query{Pos: queries[s], Star: s}

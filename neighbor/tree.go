@@ -7,8 +7,8 @@ import (
 	"slices"
 )
 
-// treeLeafSize is the most gas elements a leaf holds. Chosen by the
-// BenchmarkNearest figures in doc.go (k = 48 queries).
+// treeLeafSize is the most gas elements a leaf holds, chosen with
+// BenchmarkNearest (k = 48; figures in doc.go).
 const treeLeafSize = 16
 
 // treePoint is one gas element in tree order: its wrapped position and its
@@ -33,8 +33,8 @@ type treeNode struct {
 //
 // Build splits each node at its median along the widest axis of its bounding
 // box (quickselect on the flat arrays), O(n log n) in total. Queries keep
-// their state in the caller's buf (the bounded max-heap of Nearest is buf
-// itself) and a fixed-size stack array, so a built Tree is safe for any number
+// their state in the caller's buf (Nearest keeps its k best so far there,
+// sorted) and a fixed-size stack array, so a built Tree is safe for any number
 // of concurrent queries and a query allocates nothing once buf has capacity.
 type Tree struct {
 	box   Box
