@@ -368,6 +368,7 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 		tilt(nb.Weight, nb.Dir, nb.scratch)
 		normalise(nb.Weight)
 	}
+	copy(nb.EnergyWeight, nb.Weight)
 	if cap(ws.deps) < k {
 		ws.deps = make([]Deposit, k)
 	}
@@ -378,6 +379,7 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 	}
 	l := Ledger{Stars: 1, Radiated: radiated}
 	l.In = sourceQuantities(src)
+	l.Undeposited.Energy = nb.returned
 	for j := range deps {
 		d := &deps[j]
 		l.Deposited.Mass += d.Mass

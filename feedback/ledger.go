@@ -21,26 +21,26 @@ type Star struct {
 // Source is what one star releases into its gas in one call, in code units
 // and in the star's rest frame: the ejected mass (which moves with the star),
 // its species, and the energy (explosion energy for supernovae, wind kinetic
-// energy for winds). Events is the number of discrete events (supernovae)
-// the energy comes from; schemes that scale with energy per event (terminal
-// momentum) use it, and it is 0 for continuous release.
+// energy for winds, emitted light for radiation pressure). Events is the
+// number of discrete events (supernovae) the energy comes from, 0 for
+// continuous release. Photons is the number of hydrogen-ionising photons
+// emitted over the step and Duration the step's length (code time), used by
+// the photoionisation scheme.
 type Source struct {
-	Star    Star
-	Channel yields.Channel
-	Mass    float64
-	Species yields.Abundances
-	Energy  float64
-	Events  float64
-	// Momentum is an extra star-frame radial momentum budget, in code units,
-	// that the scheme hands out on top of what the energy gives (radiation
-	// pressure). Zero for supernovae.
-	Momentum float64
+	Star     Star
+	Channel  yields.Channel
+	Mass     float64
+	Species  yields.Abundances
+	Energy   float64
+	Events   float64
+	Photons  float64
+	Duration float64
 }
 
 // Validate checks that the release is finite, non-negative and that no
 // species outweighs the ejected mass.
 func (s *Source) Validate() error {
-	vals := []float64{s.Mass, s.Energy, s.Events, s.Momentum, s.Star.Mass, s.Star.Metallicity, s.Star.Age}
+	vals := [...]float64{s.Mass, s.Energy, s.Events, s.Photons, s.Duration, s.Star.Mass, s.Star.Metallicity, s.Star.Age}
 	for _, v := range vals {
 		if !finite(v) {
 			return fmt.Errorf("star %d: non-finite release or star field", s.Star.ID)
@@ -51,8 +51,8 @@ func (s *Source) Validate() error {
 			return fmt.Errorf("star %d: non-finite position or velocity", s.Star.ID)
 		}
 	}
-	if s.Mass < 0 || s.Energy < 0 || s.Events < 0 || s.Momentum < 0 {
-		return fmt.Errorf("star %d: negative release (mass %g, energy %g, events %g, momentum %g)", s.Star.ID, s.Mass, s.Energy, s.Events, s.Momentum)
+	if s.Mass < 0 || s.Energy < 0 || s.Events < 0 || s.Photons < 0 || s.Duration < 0 {
+		return fmt.Errorf("star %d: negative release (mass %g, energy %g, events %g, photons %g, duration %g)", s.Star.ID, s.Mass, s.Energy, s.Events, s.Photons, s.Duration)
 	}
 	for sp, m := range s.Species {
 		if !finite(m) || m < 0 {
@@ -99,8 +99,7 @@ func (q *Quantities) sub(o *Quantities) {
 
 // sourceQuantities is what a source brings in, lab frame: the ejecta carry
 // the star's velocity, so their momentum is M v and their kinetic energy
-// 1/2 M v^2 on top of the released energy. Momentum budgets (radiation) are
-// star-frame radial and sum to zero, so they add no net momentum.
+// 1/2 M v^2 on top of the released energy.
 func sourceQuantities(s *Source) Quantities {
 	q := Quantities{Mass: s.Mass, Species: s.Species}
 	v2 := 0.0

@@ -91,12 +91,18 @@ type Neighbourhood struct {
 	// positive, summing to one, isotropy-corrected unless the coupler was
 	// configured without the correction.
 	Weight []float64
+	// EnergyWeight is each neighbour's share of the energy used by
+	// CoupleRadial; the coupler fills it with Weight, and a scheme that
+	// concentrates energy (stochastic heating) overwrites it. Its sum must
+	// be one, or zero when the scheme returns the whole energy.
+	EnergyWeight []float64
 	// Momentum and HeatCap are scratch for schemes that use CoupleRadial:
 	// the radial momentum to give each neighbour (star frame, before the
 	// isotropy correction) and the most heat each may keep (the excess is
 	// radiated); +Inf keeps all.
 	Momentum, HeatCap []float64
 
+	returned float64 // energy handed back undeposited
 	correct  bool
 	residual float64 // isotropy residual of the radial momenta
 	radial   float64 // sum_j dp_j . n_j
@@ -123,6 +129,7 @@ func (nb *Neighbourhood) resize(k int) {
 		nb.Vel = make([][3]float64, k)
 		nb.RelVel = make([][3]float64, k)
 		nb.Weight = make([]float64, k)
+		nb.EnergyWeight = make([]float64, k)
 		nb.Momentum = make([]float64, k)
 		nb.HeatCap = make([]float64, k)
 		nb.scratch = make([]float64, k)
@@ -138,12 +145,18 @@ func (nb *Neighbourhood) resize(k int) {
 	nb.Vel = nb.Vel[:k]
 	nb.RelVel = nb.RelVel[:k]
 	nb.Weight = nb.Weight[:k]
+	nb.EnergyWeight = nb.EnergyWeight[:k]
 	nb.Momentum = nb.Momentum[:k]
 	nb.HeatCap = nb.HeatCap[:k]
 	nb.scratch = nb.scratch[:k]
-	nb.residual, nb.radial, nb.pscale = 0, 0, 0
+	nb.residual, nb.radial, nb.pscale, nb.returned = 0, 0, 0, 0
 	nb.limited, nb.capped = false, false
 }
+
+// ReturnEnergy books energy the scheme did not deposit as returned to the
+// caller (Ledger.Undeposited); the scheme must then give the neighbours only
+// the rest (by setting EnergyWeight to sum to the deposited fraction).
+func (nb *Neighbourhood) ReturnEnergy(e float64) { nb.returned += e }
 
 // MarkCapped records that the scheme capped at least one neighbour at the
 // terminal momentum; the coupler counts such stars in the ledger.
@@ -151,7 +164,8 @@ func (nb *Neighbourhood) MarkCapped() { nb.capped = true }
 
 // CoupleRadial completes the deposits of a scheme that has filled
 // nb.Momentum and nb.HeatCap. Each neighbour receives its share of the
-// ejected mass and species (nb.Weight), the ejecta's lab-frame momentum,
+// ejected mass and species (nb.Weight), its share of the energy
+// (nb.EnergyWeight, times the energy not returned), the ejecta's lab-frame momentum,
 // and a radial kick: the momenta are isotropy-corrected, any remaining net
 // vector is removed in proportion to the shares so that the kicks sum to
 // zero in the star's frame, and the kicks are scaled down together if any
@@ -164,7 +178,7 @@ func (nb *Neighbourhood) MarkCapped() { nb.capped = true }
 func (nb *Neighbourhood) CoupleRadial(out []Deposit) (radiated float64) {
 	src := nb.Source
 	k := nb.Len()
-	M, E := src.Mass, src.Energy
+	M, E := src.Mass, src.Energy-nb.returned
 	vs := src.Star.Vel
 	var kick [3]float64
 
@@ -198,7 +212,7 @@ func (nb *Neighbourhood) CoupleRadial(out []Deposit) (radiated float64) {
 			w := nb.RelVel[j]
 			a := dot(dp, dp) / (2 * mt)
 			b := m * dot(w, dp) / mt
-			c := -m*dm*dot(w, w)/(2*mt) - nb.Weight[j]*E
+			c := -m*dm*dot(w, w)/(2*mt) - nb.EnergyWeight[j]*E
 			if a <= 0 {
 				continue
 			}
@@ -231,7 +245,7 @@ func (nb *Neighbourhood) CoupleRadial(out []Deposit) (radiated float64) {
 		}
 		w := nb.RelVel[j]
 		dkeStar := (2*m*dot(w, kick) + dot(kick, kick) - m*dm*dot(w, w)) / (2 * mt)
-		heat := wj*E - dkeStar
+		heat := nb.EnergyWeight[j]*E - dkeStar
 		if heat > nb.HeatCap[j] {
 			d.Radiated = heat - nb.HeatCap[j]
 			radiated += d.Radiated
