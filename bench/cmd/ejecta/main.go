@@ -25,6 +25,7 @@ type command struct {
 func commands() []command {
 	return []command{
 		{"version", "print the ejecta version", runVersion},
+		{"bench", "compare coupling schemes on standard gas set-ups", runBench},
 		{"rates", "print what a stellar population releases, by age", runRates},
 	}
 }

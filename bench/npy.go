@@ -1,0 +1,262 @@
+package bench
+
+import (
+	"errors"
+	"fmt"
+	"io/fs"
+	"math"
+	"os"
+	"path/filepath"
+
+	"codeberg.org/sbinet/npyio"
+
+	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
+	"github.com/ejecta-dev/ejecta/neighbor"
+	"github.com/ejecta-dev/ejecta/yields"
+	"github.com/ejecta-dev/ejecta/yields/units"
+)
+
+// Files of a gas directory read by ReadGasDir. All arrays are NumPy .npy
+// files, little- or big-endian, float32 or float64 (IDs: int32, int64 or
+// integral floats), C or Fortran order, in the code units the caller
+// states:
+//
+//	pos.npy              (n, 3)  positions                      [length]
+//	vel.npy              (n, 3)  velocities                     [velocity]
+//	mass.npy             (n,)    element masses                 [mass]
+//	density.npy          (n,)    mass densities                 [mass / length^3]
+//	internal_energy.npy  (n,)    specific internal energies     [velocity^2]
+//	id.npy               (n,)    unique IDs (optional; 1..n if absent)
+//	metallicity.npy      (n,)    metal mass fractions (optional; none tracked if absent)
+//	stars.npy            (s, 3)  star positions (optional)      [length]
+//
+// Without stars.npy one star is placed at the densest element. Each star
+// releases one supernova (SupernovaEnergyErg, EjectaMassMsun) at rest in
+// the code frame, with the metallicity of the gas nearest to it (solar when
+// no metallicity is given).
+const (
+	GasPositionsFile      = "pos.npy"
+	GasVelocitiesFile     = "vel.npy"
+	GasMassesFile         = "mass.npy"
+	GasDensitiesFile      = "density.npy"
+	GasInternalEnergyFile = "internal_energy.npy"
+	GasIDsFile            = "id.npy"
+	GasMetallicityFile    = "metallicity.npy"
+	StarPositionsFile     = "stars.npy"
+)
+
+// ReadGasDir reads a user's gas from the .npy arrays in dir (see
+// GasPositionsFile for the layout), in code units u, with periodic box box
+// (zero for open), into a case named "user-gas".
+func ReadGasDir(dir string, u units.CodeUnits, box neighbor.Box) (*Case, error) {
+	if err := u.Validate(); err != nil {
+		return nil, fmt.Errorf("read gas %s: %w", dir, err)
+	}
+	if err := box.Validate(); err != nil {
+		return nil, fmt.Errorf("read gas %s: %w", dir, err)
+	}
+	pos, n, err := readArray(dir, GasPositionsFile, 3, -1, true)
+	if err != nil {
+		return nil, err
+	}
+	if n == 0 {
+		return nil, fmt.Errorf("read gas %s: %s holds no elements", dir, GasPositionsFile)
+	}
+	vel, _, err := readArray(dir, GasVelocitiesFile, 3, n, true)
+	if err != nil {
+		return nil, err
+	}
+	cols := map[string][]float64{}
+	for _, name := range []string{GasMassesFile, GasDensitiesFile, GasInternalEnergyFile} {
+		v, _, err := readArray(dir, name, 1, n, true)
+		if err != nil {
+			return nil, err
+		}
+		cols[name] = v
+	}
+	ids, _, err := readArray(dir, GasIDsFile, 1, n, false)
+	if err != nil {
+		return nil, err
+	}
+	metals, _, err := readArray(dir, GasMetallicityFile, 1, n, false)
+	if err != nil {
+		return nil, err
+	}
+	starPos, ns, err := readArray(dir, StarPositionsFile, 3, -1, false)
+	if err != nil {
+		return nil, err
+	}
+
+	g := &feedbacktest.GasArrays{}
+	for a := 0; a < 3; a++ {
+		g.Pos[a] = make([]float64, n)
+		g.Vel[a] = make([]float64, n)
+		for i := 0; i < n; i++ {
+			g.Pos[a][i] = pos[3*i+a]
+			g.Vel[a][i] = vel[3*i+a]
+		}
+	}
+	g.Mass, g.Density, g.Energy = cols[GasMassesFile], cols[GasDensitiesFile], cols[GasInternalEnergyFile]
+	g.ID = make([]int64, n)
+	seen := make(map[int64]int, n)
+	for i := range g.ID {
+		id := int64(i + 1)
+		if ids != nil {
+			v := ids[i]
+			if v != math.Trunc(v) || math.Abs(v) > 1<<53 {
+				return nil, fmt.Errorf("read gas %s: %s element %d: ID %g is not an integer", dir, GasIDsFile, i, v)
+			}
+			id = int64(v)
+		}
+		if j, dup := seen[id]; dup {
+			return nil, fmt.Errorf("read gas %s: %s: elements %d and %d share ID %d", dir, GasIDsFile, j, i, id)
+		}
+		seen[id] = i
+		g.ID[i] = id
+	}
+	if metals != nil {
+		g.Species = []yields.Species{yields.Metals}
+		g.Fractions = [][]float64{metals}
+	}
+	for i := 0; i < n; i++ {
+		if !(g.Mass[i] > 0) || !(g.Density[i] > 0) || !(g.Energy[i] >= 0) {
+			return nil, fmt.Errorf("read gas %s: element %d has mass %g, density %g, internal energy %g: need positive mass and density and non-negative energy",
+				dir, i, g.Mass[i], g.Density[i], g.Energy[i])
+		}
+		if metals != nil && !(metals[i] >= 0 && metals[i] <= 1) {
+			return nil, fmt.Errorf("read gas %s: element %d: metallicity %g outside [0, 1]", dir, i, metals[i])
+		}
+	}
+
+	c := &Case{Setup: "user-gas", Gas: g, Box: box, Units: u}
+	densest := 0
+	for i := range g.Density {
+		if g.Density[i] > g.Density[densest] {
+			densest = i
+		}
+	}
+	if starPos == nil {
+		starPos, ns = []float64{g.Pos[0][densest], g.Pos[1][densest], g.Pos[2][densest]}, 1
+	}
+	if ns == 0 {
+		return nil, fmt.Errorf("read gas %s: %s holds no stars", dir, StarPositionsFile)
+	}
+	tree, err := neighbor.NewTree(g.Packed(), g.ID, box)
+	if err != nil {
+		return nil, fmt.Errorf("read gas %s: %w", dir, err)
+	}
+	var buf []neighbor.Neighbor
+	mean := 0.0
+	for s := 0; s < ns; s++ {
+		p := [3]float64{starPos[3*s], starPos[3*s+1], starPos[3*s+2]}
+		buf, err = tree.Nearest(neighbor.Query{Pos: p}, 1, buf)
+		if err != nil {
+			return nil, fmt.Errorf("read gas %s: star %d: %w", dir, s, err)
+		}
+		z := feedback.SolarMetallicity
+		if metals != nil {
+			z = metals[buf[0].Index]
+		}
+		mean += g.Density[buf[0].Index]
+		c.Stars = append(c.Stars, feedback.Star{ID: int64(s + 1), Pos: p, Mass: 100 * units.SolarMass / u.MassG, Metallicity: z})
+	}
+	mean /= float64(ns)
+	c.DensityCm3 = mean * u.DensityGCm3() / (feedback.MassPerHydrogen * units.ProtonMass)
+	total := 0.0
+	for _, m := range g.Mass {
+		total += m
+	}
+	c.GasMassMsun = total / float64(n) * u.MassG / units.SolarMass
+	return c, nil
+}
+
+// readArray reads dir/name as float64s with the given number of columns
+// (1: shape (n,) or (n, 1); 3: shape (n, 3)), returned row-major, and the
+// row count. want >= 0 requires that many rows. A missing optional file
+// gives nil.
+func readArray(dir, name string, ncol, want int, required bool) ([]float64, int, error) {
+	path := filepath.Join(dir, name)
+	f, err := os.Open(path)
+	if errors.Is(err, fs.ErrNotExist) && !required {
+		return nil, 0, nil
+	}
+	if err != nil {
+		return nil, 0, fmt.Errorf("read gas: %w", err)
+	}
+	defer f.Close()
+	r, err := npyio.NewReader(f)
+	if err != nil {
+		return nil, 0, fmt.Errorf("read gas %s: %w", path, err)
+	}
+	shape := r.Header.Descr.Shape
+	var rows int
+	switch {
+	case ncol == 1 && len(shape) == 1:
+		rows = shape[0]
+	case len(shape) == 2 && shape[1] == ncol:
+		rows = shape[0]
+	default:
+		want := "(n, 3)"
+		if ncol == 1 {
+			want = "(n,)"
+		}
+		return nil, 0, fmt.Errorf("read gas %s: shape %v, want %s", path, shape, want)
+	}
+	if want >= 0 && rows != want {
+		return nil, 0, fmt.Errorf("read gas %s: %d rows, want %d (as in %s)", path, rows, want, GasPositionsFile)
+	}
+	var data []float64
+	switch r.Header.Descr.Type {
+	case "<f8", ">f8", "f8":
+		err = r.Read(&data)
+	case "<f4", ">f4", "f4":
+		var v []float32
+		if err = r.Read(&v); err == nil {
+			data = make([]float64, len(v))
+			for i, x := range v {
+				data[i] = float64(x)
+			}
+		}
+	case "<i8", ">i8", "i8":
+		var v []int64
+		if err = r.Read(&v); err == nil {
+			data = make([]float64, len(v))
+			for i, x := range v {
+				data[i] = float64(x)
+			}
+		}
+	case "<i4", ">i4", "i4":
+		var v []int32
+		if err = r.Read(&v); err == nil {
+			data = make([]float64, len(v))
+			for i, x := range v {
+				data[i] = float64(x)
+			}
+		}
+	default:
+		return nil, 0, fmt.Errorf("read gas %s: element type %q not supported (float32, float64, int32, int64)", path, r.Header.Descr.Type)
+	}
+	if err != nil {
+		return nil, 0, fmt.Errorf("read gas %s: %w", path, err)
+	}
+	if len(data) != rows*ncol {
+		return nil, 0, fmt.Errorf("read gas %s: %d values for %d rows of %d", path, len(data), rows, ncol)
+	}
+	if r.Header.Descr.Fortran && ncol > 1 {
+		// Column-major on disk: transpose to row-major.
+		t := make([]float64, len(data))
+		for i := 0; i < rows; i++ {
+			for a := 0; a < ncol; a++ {
+				t[ncol*i+a] = data[a*rows+i]
+			}
+		}
+		data = t
+	}
+	for i, v := range data {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, 0, fmt.Errorf("read gas %s: value %d (row %d) is %g", path, i, i/ncol, v)
+		}
+	}
+	return data, rows, nil
+}

@@ -1,0 +1,138 @@
+package bench
+
+import (
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strconv"
+)
+
+// Output file names written by WriteResults, besides the plots.
+const (
+	ResultsFile     = "results.json"
+	ConvergenceFile = "convergence.csv"
+	IsotropyFile    = "isotropy.csv"
+	EnergyFile      = "energy.csv"
+	SpeedFile       = "speed.csv"
+)
+
+// WriteResults writes results.json, one CSV per table and the plots into
+// dir (created if missing) and returns the paths written, in order.
+func WriteResults(dir string, res *Result) ([]string, error) {
+	if res == nil {
+		return nil, fmt.Errorf("write results: nil result")
+	}
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return nil, fmt.Errorf("write results: %w", err)
+	}
+	var written []string
+	js, err := json.MarshalIndent(res, "", "  ")
+	if err != nil {
+		return nil, fmt.Errorf("write results: encode JSON: %w", err)
+	}
+	p := filepath.Join(dir, ResultsFile)
+	if err := os.WriteFile(p, append(js, '\n'), 0o644); err != nil {
+		return nil, fmt.Errorf("write results: %w", err)
+	}
+	written = append(written, p)
+	tables := []struct {
+		name string
+		rows any
+	}{
+		{ConvergenceFile, res.Convergence}, {IsotropyFile, res.Isotropy},
+		{EnergyFile, res.Energy}, {SpeedFile, res.Speed},
+	}
+	for _, t := range tables {
+		p := filepath.Join(dir, t.name)
+		if err := writeCSV(p, t.rows); err != nil {
+			return written, fmt.Errorf("write results: %w", err)
+		}
+		written = append(written, p)
+	}
+	figs, err := Figures(res)
+	if err != nil {
+		return written, fmt.Errorf("write results: %w", err)
+	}
+	for _, f := range figs {
+		p := filepath.Join(dir, f.File)
+		if err := f.SavePNG(p); err != nil {
+			return written, fmt.Errorf("write results: %w", err)
+		}
+		written = append(written, p)
+	}
+	return written, nil
+}
+
+// writeCSV writes a slice of flat structs as CSV, one column per field,
+// headed by the fields' JSON names.
+func writeCSV(path string, rows any) error {
+	v := reflect.ValueOf(rows)
+	t := v.Type().Elem()
+	header := make([]string, t.NumField())
+	for i := range header {
+		header[i] = jsonName(t.Field(i))
+	}
+	f, err := os.Create(path)
+	if err != nil {
+		return fmt.Errorf("csv: %w", err)
+	}
+	w := csv.NewWriter(f)
+	if err := w.Write(header); err != nil {
+		f.Close()
+		return fmt.Errorf("csv %s: %w", path, err)
+	}
+	rec := make([]string, len(header))
+	for r := 0; r < v.Len(); r++ {
+		row := v.Index(r)
+		for i := range rec {
+			rec[i] = formatCell(row.Field(i))
+		}
+		if err := w.Write(rec); err != nil {
+			f.Close()
+			return fmt.Errorf("csv %s: %w", path, err)
+		}
+	}
+	w.Flush()
+	if err := w.Error(); err != nil {
+		f.Close()
+		return fmt.Errorf("csv %s: %w", path, err)
+	}
+	if err := f.Close(); err != nil {
+		return fmt.Errorf("csv %s: %w", path, err)
+	}
+	return nil
+}
+
+func jsonName(f reflect.StructField) string {
+	tag := f.Tag.Get("json")
+	for i := 0; i < len(tag); i++ {
+		if tag[i] == ',' {
+			tag = tag[:i]
+			break
+		}
+	}
+	if tag == "" {
+		return f.Name
+	}
+	return tag
+}
+
+func formatCell(v reflect.Value) string {
+	switch v.Kind() {
+	case reflect.Float64:
+		x := v.Float()
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return ""
+		}
+		return strconv.FormatFloat(x, 'g', -1, 64)
+	case reflect.Int, reflect.Int64:
+		return strconv.FormatInt(v.Int(), 10)
+	case reflect.String:
+		return v.String()
+	}
+	return fmt.Sprint(v.Interface())
+}
