@@ -336,24 +336,6 @@ func (p *Population) massiveMoment2(a, b float64) float64 {
 	return s
 }
 
-// massiveMoment1 is ∫ (m − remnant(m)) dN over [a, b].
-func (p *Population) massiveMoment1(a, b float64) float64 {
-	if !(a < b) {
-		return 0
-	}
-	f := &p.imf
-	bh := p.cfg.Remnants.BlackHoleMinMass
-	ns, bhm := p.cfg.Remnants.NeutronStarMass, p.cfg.Remnants.BlackHoleMass
-	var s float64
-	if u := math.Min(b, bh); a < u {
-		s += f.Moment(1, a, u) - ns*f.Moment(0, a, u)
-	}
-	if u := math.Max(a, bh); u < b {
-		s += f.Moment(1, u, b) - bhm*f.Moment(0, u, b)
-	}
-	return s
-}
-
 // evalContext holds what depends only on the metallicity of a call.
 type evalContext struct {
 	z     float64
