@@ -74,7 +74,8 @@ type gonumBench struct {
 func newGonumBench(g *benchGas) *gonumBench {
 	pts := make(kdtree.Points, g.n)
 	for i := range pts {
-		pts[i] = kdtree.Point{g.pos[3*i], g.pos[3*i+1], g.pos[3*i+2]}
+		w := g.box.Wrap([3]float64{g.pos[3*i], g.pos[3*i+1], g.pos[3*i+2]})
+		pts[i] = kdtree.Point{w[0], w[1], w[2]}
 	}
 	return &gonumBench{kdtree.New(pts, false), g.box}
 }
@@ -166,6 +167,45 @@ func BenchmarkNearest(b *testing.B) {
 			})
 		}
 	}
+}
+
+// BenchmarkNearestClustered: the same k = 48 queries on strongly clustered
+// gas (clusteredGas: 80% in three Gaussian clumps of widths 1e-2 to 1e-4),
+// centred on gas elements, where stars form.
+func BenchmarkNearestClustered(b *testing.B) {
+	const n = 65536
+	rng := rand.New(rand.NewPCG(8, 9))
+	g := &benchGas{n: n, box: Box{Size: [3]float64{1, 1, 1}}}
+	g.pos, g.ids = clusteredGas(rng, n)
+	g.queries = make([]Query, 4096)
+	for i := range g.queries {
+		j := rng.IntN(n)
+		g.queries[i] = Query{Pos: g.box.Wrap([3]float64{g.pos[3*j], g.pos[3*j+1], g.pos[3*j+2]})}
+	}
+	b.Run(fmt.Sprintf("default/n=%d", n), func(b *testing.B) {
+		tree, err := NewTree(g.pos, g.ids, g.box)
+		if err != nil {
+			b.Fatal(err)
+		}
+		buf := make([]Neighbor, 0, benchK)
+		b.ReportAllocs()
+		b.ResetTimer()
+		for i := 0; i < b.N; i++ {
+			if buf, err = tree.Nearest(g.queries[i%len(g.queries)], benchK, buf); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+	b.Run(fmt.Sprintf("gonum/n=%d", n), func(b *testing.B) {
+		gb := newGonumBench(g)
+		b.ReportAllocs()
+		b.ResetTimer()
+		for i := 0; i < b.N; i++ {
+			if gb.nearest(g.queries[i%len(g.queries)], benchK) < benchK {
+				b.Fatal("too few")
+			}
+		}
+	})
 }
 
 func BenchmarkBuild(b *testing.B) {

@@ -107,13 +107,28 @@ func (t *Tree) Rebuild(pos []float64, ids []int64) error {
 func (t *Tree) build(node, begin, end int) {
 	nd := &t.nodes[node]
 	nd.begin, nd.end = int32(begin), int32(end)
-	lo, hi := t.pts[begin].p, t.pts[begin].p
-	for _, tp := range t.pts[begin+1 : end] {
-		for a := 0; a < 3; a++ {
-			lo[a] = min(lo[a], tp.p[a])
-			hi[a] = max(hi[a], tp.p[a])
+	first := &t.pts[begin].p
+	x0, y0, z0 := first[0], first[1], first[2]
+	x1, y1, z1 := x0, y0, z0
+	for i := begin + 1; i < end; i++ {
+		p := &t.pts[i].p
+		if p[0] < x0 {
+			x0 = p[0]
+		} else if p[0] > x1 {
+			x1 = p[0]
+		}
+		if p[1] < y0 {
+			y0 = p[1]
+		} else if p[1] > y1 {
+			y1 = p[1]
+		}
+		if p[2] < z0 {
+			z0 = p[2]
+		} else if p[2] > z1 {
+			z1 = p[2]
 		}
 	}
+	lo, hi := [3]float64{x0, y0, z0}, [3]float64{x1, y1, z1}
 	nd.lo, nd.hi = lo, hi
 	if node >= t.first {
 		return
@@ -243,7 +258,7 @@ type treeVisit struct {
 }
 
 // Nearest returns the k nearest gas elements to q.Pos in (Dist2, ID) order.
-// buf serves as the bounded max-heap of the search.
+// buf holds the k best found so far, in order, during the search.
 func (t *Tree) Nearest(q Query, k int, buf []Neighbor) ([]Neighbor, error) {
 	if err := checkK(k, len(t.pts)); err != nil {
 		return buf[:0], fmt.Errorf("neighbor: tree nearest: %w", err)
