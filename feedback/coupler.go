@@ -304,6 +304,10 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 		// it enters the ledger and the caller keeps it, told why.
 		return Ledger{Stars: 1, Skipped: 1}, err
 	}
+	if src.Mass == 0 && src.Energy == 0 && src.Photons == 0 {
+		// Nothing released: nothing to find or book.
+		return Ledger{Stars: 1}, nil
+	}
 	q := neighbor.Query{Pos: src.Star.Pos, Star: idx}
 	var err error
 	if c.cfg.Radius > 0 {

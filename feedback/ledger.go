@@ -35,6 +35,8 @@ type Source struct {
 	Events   float64
 	Photons  float64
 	Duration float64
+	// Step is the host's step index, which keys counter-based draws.
+	Step uint64
 }
 
 // Validate checks that the release is finite, non-negative and that no

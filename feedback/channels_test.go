@@ -1,0 +1,261 @@
+package feedback_test
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
+	"github.com/ejecta-dev/ejecta/neighbor"
+	"github.com/ejecta-dev/ejecta/yields"
+	"github.com/ejecta-dev/ejecta/yields/units"
+)
+
+// latticeGas is a cubic lattice of side n, spacing dx (pc), at hydrogen
+// density nH, centred on the origin, at 100 K-like energy.
+func latticeGas(n int, dx, nH float64, u units.CodeUnits) *feedbacktest.GasArrays {
+	rho := nH * feedback.MassPerHydrogen * units.ProtonMass
+	m := rho * math.Pow(dx*units.Parsec, 3) / u.MassG
+	g := &feedbacktest.GasArrays{Species: []yields.Species{yields.Metals}, Fractions: make([][]float64, 1)}
+	off := float64(n-1) / 2
+	id := int64(1)
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			for k := 0; k < n; k++ {
+				p := [3]float64{(float64(i) - off) * dx, (float64(j) - off) * dx, (float64(k) - off) * dx}
+				for a := 0; a < 3; a++ {
+					g.Pos[a] = append(g.Pos[a], p[a]*units.Parsec/u.LengthCm)
+					g.Vel[a] = append(g.Vel[a], 0)
+				}
+				g.Mass = append(g.Mass, m)
+				g.Density = append(g.Density, rho/u.DensityGCm3())
+				g.Energy = append(g.Energy, 1e10/u.SpecificEnergy())
+				g.ID = append(g.ID, id)
+				g.Fractions[0] = append(g.Fractions[0], 0.0134)
+				id++
+			}
+		}
+	}
+	return g
+}
+
+func TestStromgrenBudget(t *testing.T) {
+	// A source of Q ionising photons per second in uniform gas of density
+	// n keeps ionised the Strömgren volume (4 pi/3) R_S^3 = Q / (alpha_B n^2)
+	// (Strömgren 1939, ApJ 89, 526; alpha_B = 2.6e-13 cm^3/s, Osterbrock &
+	// Ferland 2006, from memory).
+	u := pcMsunKms()
+	const nH, dx = 10.0, 1.0
+	g := latticeGas(21, dx, nH, u)
+	q := 1e48 // photons per second: R_S about 6.8 pc at n = 10
+	dt := units.Megayear / u.TimeS()
+	src := feedback.Source{Star: feedback.Star{ID: 1, Pos: [3]float64{0.1, 0.05, 0.02}}, Channel: feedback.PhotoionisationChannel,
+		Photons: q * units.Megayear, Duration: dt, Energy: 1e60 / u.EnergyErg()}
+	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.Photoionisation{}, Neighbours: 9000}, []feedback.Source{src})
+	n := nH
+	rs := math.Cbrt(3 * q / (4 * math.Pi * feedback.CaseBRecombination * n * n)) // cm
+	vs := 4 * math.Pi / 3 * rs * rs * rs
+	cell := math.Pow(dx*units.Parsec, 3)
+	ionised := 0.0
+	far := 0.0
+	for _, r := range out.Records {
+		if r.Flags&feedback.FlagIonised == 0 {
+			continue
+		}
+		ionised++
+		i := r.GasIndex
+		d := math.Sqrt(math.Pow(g.Pos[0][i]-0.1, 2) + math.Pow(g.Pos[1][i]-0.05, 2) + math.Pow(g.Pos[2][i]-0.02, 2))
+		far = math.Max(far, d)
+	}
+	// Whole ionised cells fill the Strömgren volume to within one cell.
+	assert.InDelta(t, vs/cell, ionised, 1.0)
+	assert.InDelta(t, rs/units.Parsec, far, 1.5*dx, "farthest ionised cell sits at the Strömgren radius")
+	for _, r := range out.Records {
+		if r.Flags&feedback.FlagIonised != 0 {
+			// Heated to 1e4 K: u = (3/2) k T / (0.59 m_p).
+			want := 1.5 * units.Boltzmann * 1e4 / (0.59 * units.ProtonMass) / u.SpecificEnergy()
+			assert.InEpsilon(t, want, g.Energy[r.GasIndex], 1e-9)
+		}
+	}
+}
+
+func TestRadiationPressureMomentum(t *testing.T) {
+	// Light absorbed once carries momentum L/c (common practice): 1e6 Lsun
+	// (IAU 2015 B3 nominal Lsun) for 1 Myr gives L t / c.
+	u := pcMsunKms()
+	l := 1e6 * units.SolarLuminosity
+	e := l * units.Megayear / u.EnergyErg()
+	want := l * units.Megayear / units.SpeedOfLight / u.MomentumGCmPS()
+	rp := feedback.RadiationPressure{UVOpacity: 1e9, IROpacity: 1e-300}
+	assert.InEpsilon(t, want, rp.Momentum(e, 1, 1, u), 1e-12)
+	// With infrared trapping the momentum grows by (1 + tau_IR).
+	rp2 := feedback.RadiationPressure{UVOpacity: 1e9, IROpacity: 5}
+	assert.InEpsilon(t, want*(1+5*0.2), rp2.Momentum(e, 0.2, 1, u), 1e-12)
+
+	// Through the coupler, in dense gas that absorbs everything.
+	g := uniformGas(12, 400, 100, 1e3, u)
+	src := feedback.Source{Star: feedback.Star{ID: 2}, Channel: feedback.RadiationChannel, Energy: e}
+	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: rp, Neighbours: 64}, []feedback.Source{src})
+	assert.InEpsilon(t, want, out.Ledger.RadialMomentum, 1e-6)
+	assert.Greater(t, out.Ledger.Radiated, 0.99*e, "the light's energy escapes, only the kicks stay")
+}
+
+func TestChannelSchemesPassTheHarness(t *testing.T) {
+	u := feedbacktest.Units()
+	wind := func(s feedback.Star) feedback.Source {
+		// 1e-3 Msun at 2000 km/s.
+		src := feedback.Source{Star: s, Channel: yields.MassiveWinds, Mass: 1e-3, Energy: 0.5 * 1e-3 * 2000 * 2000}
+		src.Species[yields.Metals] = 2e-5
+		return src
+	}
+	light := func(s feedback.Star) feedback.Source {
+		return feedback.Source{Star: s, Channel: feedback.RadiationChannel, Energy: 1e6 * units.SolarLuminosity * units.Megayear / u.EnergyErg()}
+	}
+	photons := func(s feedback.Star) feedback.Source {
+		n := 1e49 * units.Megayear
+		return feedback.Source{Star: s, Channel: feedback.PhotoionisationChannel, Photons: n,
+			Duration: units.Megayear / u.TimeS(), Energy: n * 3 * 1.602e-12 / u.EnergyErg()}
+	}
+	cases := []struct {
+		name    string
+		scheme  feedback.Scheme
+		release func(feedback.Star) feedback.Source
+	}{
+		{"winds", feedback.Winds{}, wind},
+		{"radiation-pressure", feedback.RadiationPressure{}, light},
+		{"photoionisation", feedback.Photoionisation{}, photons},
+		{"stochastic-heating", feedback.StochasticHeating{Seed: 5}, nil},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			feedbacktest.Check(t, c.scheme, feedbacktest.Options{Release: c.release, Seeds: []uint64{1, 2}})
+		})
+	}
+}
+
+func TestStochasticHeatingJump(t *testing.T) {
+	// Dalla Vecchia & Schaye 2012: heated elements receive the temperature
+	// jump on average; energy is exact in every draw.
+	u := pcMsunKms()
+	g := uniformGas(13, 500, 1e3, 1, u)
+	var srcs []feedback.Source
+	for s := 0; s < 40; s++ {
+		src := supernova(int64(s+1), u)
+		src.Star.Pos = [3]float64{g.Pos[0][s*7], g.Pos[1][s*7], g.Pos[2][s*7] + 0.5}
+		srcs = append(srcs, src)
+	}
+	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.StochasticHeating{Seed: 9}, Neighbours: 32}, srcs)
+	heated := 0
+	for _, r := range out.Records {
+		if r.Flags&feedback.FlagStochastic != 0 {
+			heated++
+		}
+	}
+	// Expected heated count: E / (du m) per star, about 1e51 erg over
+	// 1e3 Msun * (3/2) k 10^7.5 K / (0.59 m_p).
+	du := 1.5 * units.Boltzmann * math.Pow(10, 7.5) / (0.59 * units.ProtonMass)
+	perStar := units.FOE / (du * 1e3 * units.SolarMass)
+	expect := perStar * float64(len(srcs))
+	assert.InDelta(t, expect, float64(heated), 4*math.Sqrt(expect)+1)
+	assert.Greater(t, heated, 0)
+}
+
+func TestCoolingOffTime(t *testing.T) {
+	// McKee & Ostriker 1977 as used by Stinson et al. 2006 (from memory):
+	// 10^6.85 yr at E51 = 1, n = 1, P/k = 1e4 K cm^-3.
+	assert.InEpsilon(t, math.Pow(10, 6.85)*units.JulianYear, feedback.CoolingOffTime(units.FOE, 1, 1e4), 1e-12)
+	assert.Greater(t, feedback.CoolingOffTime(units.FOE, 10, 1e4), feedback.CoolingOffTime(units.FOE, 1, 1e4))
+}
+
+func TestStepperSingleStarHundredMyr(t *testing.T) {
+	// One star of 1e4 Msun stepped from 0 to 100 Myr: the released mass and
+	// metals equal the yields integral over that time to round-off, and the
+	// number of supernovae matches its expectation over many seeds.
+	u := pcMsunKms()
+	pop, err := yields.NewPopulation(yields.DefaultConfig())
+	require.NoError(t, err)
+	const formed = 1e4
+	const steps = 50
+	dt := 2 * units.Megayear / u.TimeS()
+	want, err := pop.Release(0, 100, 0.0134)
+	require.NoError(t, err)
+	wantTotal := want.Total()
+	expectedSN := want.Channels[yields.CoreCollapse].Events * formed
+
+	snCounts := 0
+	const seeds = 12
+	for seed := uint64(1); seed <= seeds; seed++ {
+		g := uniformGas(seed, 600, 200, 1, u)
+		st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u, Neighbours: 32}, Model: pop, Seed: seed})
+		require.NoError(t, err)
+		f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
+		require.NoError(t, err)
+		star := feedback.StarParticle{Star: feedback.Star{ID: 77, Mass: formed, Metallicity: 0.0134}, FormedMass: formed}
+		var total feedback.Ledger
+		var out feedback.StepOutput
+		view := g.View()
+		for step := 0; step < steps; step++ {
+			star.Age = float64(step) * dt
+			require.NoError(t, st.Step(view, f, []feedback.StarParticle{star}, uint64(step), dt, &out))
+			require.Empty(t, out.Problems)
+			require.NoError(t, out.Ledger.Balanced(1e-12))
+			_, rep, err := feedback.Apply(view, out.Records, nil)
+			require.NoError(t, err)
+			assert.Zero(t, rep.Shortfall)
+			total.Add(&out.Ledger)
+			snCounts += out.Supernovae[0]
+			star.Mass -= out.MassLoss[0]
+			star.CarriedEnergy = out.Carry[0]
+		}
+		assert.InEpsilon(t, wantTotal.Mass*formed, total.In.Mass, 1e-12, "mass released")
+		assert.InEpsilon(t, wantTotal.Species[yields.Metals]*formed, total.In.Species[yields.Metals], 1e-12, "metals released")
+		assert.InEpsilon(t, wantTotal.Mass*formed, formed-star.Mass, 1e-12, "star lost what it released")
+	}
+	mean := float64(snCounts) / seeds
+	// Poisson: the mean of 12 draws has standard deviation sqrt(N/12).
+	assert.InDelta(t, expectedSN, mean, 4*math.Sqrt(expectedSN/seeds), "supernovae per star")
+}
+
+func TestStepperSuggestsSmallerStep(t *testing.T) {
+	u := pcMsunKms()
+	pop, err := yields.NewPopulation(yields.DefaultConfig())
+	require.NoError(t, err)
+	g := uniformGas(3, 200, 100, 1, u)
+	st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u}, Model: pop, MaxSupernovaePerStep: 5})
+	require.NoError(t, err)
+	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
+	require.NoError(t, err)
+	dt := 10 * units.Megayear / u.TimeS()
+	star := feedback.StarParticle{Star: feedback.Star{ID: 1, Mass: 1e5, Age: 5 * units.Megayear / u.TimeS(), Metallicity: 0.0134}, FormedMass: 1e5}
+	var out feedback.StepOutput
+	require.NoError(t, st.Step(g.View(), f, []feedback.StarParticle{star}, 0, dt, &out))
+	assert.Greater(t, out.SuggestedStep, 0.0)
+	assert.Less(t, out.SuggestedStep, dt)
+}
+
+func TestStepperDelayedCoolingFlags(t *testing.T) {
+	u := pcMsunKms()
+	pop, err := yields.NewPopulation(yields.DefaultConfig())
+	require.NoError(t, err)
+	g := uniformGas(4, 300, 100, 1, u)
+	st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u}, Model: pop, DelayedCooling: true, Seed: 3})
+	require.NoError(t, err)
+	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
+	require.NoError(t, err)
+	star := feedback.StarParticle{Star: feedback.Star{ID: 1, Mass: 1e5, Age: 10 * units.Megayear / u.TimeS(), Metallicity: 0.0134}, FormedMass: 1e5}
+	var out feedback.StepOutput
+	require.NoError(t, st.Step(g.View(), f, []feedback.StarParticle{star}, 0, units.Megayear/u.TimeS(), &out))
+	require.Positive(t, out.Supernovae[0], "1e5 Msun at 10 Myr explodes within a Myr")
+	flagged := 0
+	for _, r := range out.Records {
+		if r.Flags&feedback.FlagCoolingOff != 0 {
+			flagged++
+			assert.Greater(t, r.CoolingOffUntil, 0.0)
+			assert.Equal(t, yields.CoreCollapse, r.Channel)
+		}
+	}
+	assert.Equal(t, feedback.DefaultNeighbours, flagged)
+}

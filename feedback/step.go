@@ -1,0 +1,330 @@
+package feedback
+
+import (
+	"errors"
+	"fmt"
+	"math"
+
+	"github.com/ejecta-dev/ejecta/neighbor"
+	"github.com/ejecta-dev/ejecta/yields"
+	"github.com/ejecta-dev/ejecta/yields/units"
+)
+
+// Channels of a step beyond the four release channels of package yields:
+// radiation pressure and photoionisation, which records carry in their
+// Channel field.
+const (
+	RadiationChannel       = yields.NumChannels
+	PhotoionisationChannel = yields.NumChannels + 1
+	// NumStepChannels counts every channel a step drives.
+	NumStepChannels = int(yields.NumChannels) + 2
+)
+
+// ChannelName names any channel a record can carry.
+func ChannelName(c yields.Channel) string {
+	switch c {
+	case RadiationChannel:
+		return "radiation-pressure"
+	case PhotoionisationChannel:
+		return "photoionisation"
+	}
+	return c.String()
+}
+
+// StarParticle is a star particle with the state a step needs: its star
+// (age in code time at the step's start), the stellar mass it formed with
+// (code mass; releases scale with it), and energy carried over from earlier
+// steps (returned undeposited, e.g. by stochastic heating when no neighbour
+// was drawn), which is added to this step's supernova energy.
+type StarParticle struct {
+	Star
+	FormedMass    float64
+	CarriedEnergy float64
+}
+
+// StepConfig sets up a Stepper.
+type StepConfig struct {
+	// Coupling is shared by every channel (units, weights, neighbours,
+	// workers, box). Its Scheme couples supernovae (core-collapse and Ia);
+	// nil means TerminalMomentum with Kim & Ostriker 2015.
+	Coupling Config
+	// Model says what the stars release; required.
+	Model yields.Model
+	// Seed keys the supernova draws.
+	Seed uint64
+	// Winds couples stellar winds; nil means Winds with the supernova
+	// scheme's fit (Kim & Ostriker 2015 if none).
+	Winds Scheme
+	// Radiation couples radiation pressure; nil means RadiationPressure{}.
+	Radiation Scheme
+	// Photoionisation heats ionised gas; nil means Photoionisation{}.
+	Photoionisation Scheme
+	// SkipWinds, SkipRadiation and SkipPhotoionisation turn channels off.
+	SkipWinds, SkipRadiation, SkipPhotoionisation bool
+	// DelayedCooling flags the gas touched by supernovae to have its
+	// cooling switched off for the blast-wave time of CoolingOffTime.
+	DelayedCooling bool
+	// MaxSupernovaePerStep: a step in which some star expects more
+	// supernovae than this suggests a smaller step; 0 means 10.
+	MaxSupernovaePerStep float64
+	// PhotoheatingPerPhoton is the heat one ionising photon can deposit,
+	// in erg; 0 means 3 eV (from memory: the mean photoelectron energy of
+	// a young cluster's spectrum, Osterbrock & Ferland 2006 order of
+	// magnitude).
+	PhotoheatingPerPhoton float64
+}
+
+// eV in erg (CODATA 2018: 1.602176634e-19 J, exact in the 2019 SI).
+const electronVolt = 1.602176634e-12
+
+// StepOutput receives what a step did. Its slices are reused.
+type StepOutput struct {
+	// Records of every channel, ready to apply or route.
+	Records []Record
+	// Ledger sums every channel; Channels holds each channel's own.
+	Ledger   Ledger
+	Channels [NumStepChannels]Ledger
+	// Supernovae counts the events drawn per channel (core-collapse, Ia).
+	Supernovae [2]int
+	// MassLoss is each star's mass released this step (code mass): the host
+	// takes it off the star particle.
+	MassLoss []float64
+	// Carry is each star's energy returned undeposited this step (code
+	// energy), to be passed back as StarParticle.CarriedEnergy next step.
+	Carry []float64
+	// SuggestedStep is a smaller step (code time) when some star expected
+	// more supernovae than MaxSupernovaePerStep; zero otherwise.
+	SuggestedStep float64
+	// Problems lists stars whose release was returned undeposited.
+	Problems []Problem
+}
+
+// Stepper drives every channel for a batch of stars over one step: it asks
+// the model what each star releases over [age, age + dt], draws the
+// supernovae with the counter-based generator keyed by (seed, star ID,
+// step), and couples each channel through its scheme with the shared
+// weights, records and ledger. Supernova ejecta mass and metals are
+// released as their expectation every step, so mass and metal budgets are
+// exact; the energy comes in whole events. Winds and radiation are
+// continuous.
+type Stepper struct {
+	cfg      StepConfig
+	couplers [NumStepChannels]*Coupler
+	sources  [NumStepChannels][]Source
+	outs     [NumStepChannels]Output
+}
+
+// NewStepper checks the configuration and prepares the couplers.
+func NewStepper(cfg StepConfig) (*Stepper, error) {
+	if cfg.Model == nil {
+		return nil, errors.New("stepper: no yields model")
+	}
+	if cfg.MaxSupernovaePerStep == 0 {
+		cfg.MaxSupernovaePerStep = 10
+	}
+	if !(cfg.MaxSupernovaePerStep > 0) {
+		return nil, fmt.Errorf("stepper: max supernovae per step %g must be positive", cfg.MaxSupernovaePerStep)
+	}
+	if cfg.PhotoheatingPerPhoton == 0 {
+		cfg.PhotoheatingPerPhoton = 3 * electronVolt
+	}
+	if !(cfg.PhotoheatingPerPhoton > 0) || math.IsInf(cfg.PhotoheatingPerPhoton, 0) {
+		return nil, fmt.Errorf("stepper: photoheating per photon %g erg must be positive", cfg.PhotoheatingPerPhoton)
+	}
+	fit := KimOstriker2015
+	if tm, ok := cfg.Coupling.Scheme.(TerminalMomentum); ok {
+		fit = tm.Fit
+	}
+	if cfg.Winds == nil {
+		cfg.Winds = Winds{Fit: fit}
+	}
+	if cfg.Radiation == nil {
+		cfg.Radiation = RadiationPressure{}
+	}
+	if cfg.Photoionisation == nil {
+		cfg.Photoionisation = Photoionisation{}
+	}
+	s := &Stepper{cfg: cfg}
+	schemes := [NumStepChannels]Scheme{
+		yields.CoreCollapse: cfg.Coupling.Scheme, yields.TypeIa: cfg.Coupling.Scheme,
+		yields.MassiveWinds: cfg.Winds, yields.AGBWinds: cfg.Winds,
+		RadiationChannel: cfg.Radiation, PhotoionisationChannel: cfg.Photoionisation,
+	}
+	for c, sch := range schemes {
+		cc := cfg.Coupling
+		cc.Scheme = sch
+		co, err := NewCoupler(cc)
+		if err != nil {
+			return nil, fmt.Errorf("stepper: channel %s: %w", ChannelName(yields.Channel(c)), err)
+		}
+		s.couplers[c] = co
+	}
+	return s, nil
+}
+
+// Step releases and couples one step of length dt (code time) for every
+// star. step is the host's step index (it keys the draws). Records are not
+// applied: call Apply (after routing ghost records to their owners).
+func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, step uint64, dt float64, out *StepOutput) error {
+	if out == nil {
+		return errors.New("step: nil output")
+	}
+	if !(dt >= 0) || math.IsInf(dt, 0) {
+		return fmt.Errorf("step: step length %g must be finite and non-negative", dt)
+	}
+	u := s.cfg.Coupling.Units
+	out.Records = out.Records[:0]
+	out.Problems = out.Problems[:0]
+	out.Ledger = Ledger{}
+	out.Channels = [NumStepChannels]Ledger{}
+	out.Supernovae = [2]int{}
+	out.SuggestedStep = 0
+	out.MassLoss = resizeFloats(out.MassLoss, len(stars))
+	out.Carry = resizeFloats(out.Carry, len(stars))
+	for c := range s.sources {
+		s.sources[c] = s.sources[c][:0]
+	}
+	myr := u.TimeS() / units.Megayear
+	msun := u.MassG / units.SolarMass // Msun per code mass
+	erg := 1 / u.EnergyErg()          // code energy per erg
+	mass := 1 / msun                  // code mass per Msun
+	maxExpected := 0.0
+	for i := range stars {
+		st := &stars[i]
+		if !(st.FormedMass >= 0) || math.IsInf(st.FormedMass, 0) || !(st.CarriedEnergy >= 0) || math.IsInf(st.CarriedEnergy, 0) {
+			return fmt.Errorf("step: star %d: formed mass %g and carried energy %g must be finite and non-negative", st.ID, st.FormedMass, st.CarriedEnergy)
+		}
+		age0 := st.Age * myr
+		rel, err := s.cfg.Model.Release(age0, age0+dt*myr, st.Metallicity)
+		if err != nil {
+			return fmt.Errorf("step: star %d: %w", st.ID, err)
+		}
+		clampRoundOff(&rel)
+		formed := st.FormedMass * msun // Msun formed
+		base := Source{Star: st.Star, Step: step, Duration: dt}
+		expected := 0.0
+		loss := 0.0
+		for c := yields.Channel(0); c < yields.NumChannels; c++ {
+			ej := rel.Channels[c]
+			src := base
+			src.Channel = c
+			src.Mass = ej.Mass * formed * mass
+			for sp := range src.Species {
+				src.Species[sp] = ej.Species[sp] * formed * mass
+			}
+			if c.Discrete() {
+				mean := ej.Events * formed
+				expected += mean
+				rng := yields.NewCounterRNG(s.cfg.Seed, uint64(st.ID), step, uint64(c))
+				n := yields.Poisson(&rng, mean)
+				src.Events = float64(n)
+				if n > 0 && ej.Events > 0 {
+					src.Energy = float64(n) * ej.Energy / ej.Events * erg
+				}
+				out.Supernovae[c] += n
+			} else {
+				src.Energy = ej.Energy * formed * erg
+			}
+			if c == yields.CoreCollapse {
+				src.Energy += st.CarriedEnergy
+			}
+			if !c.Discrete() && s.cfg.SkipWinds {
+				src = base
+				src.Channel = c
+			}
+			loss += src.Mass
+			s.sources[c] = append(s.sources[c], src)
+		}
+		out.MassLoss[i] = loss
+		maxExpected = math.Max(maxExpected, expected)
+
+		rad := base
+		rad.Channel = RadiationChannel
+		if !s.cfg.SkipRadiation {
+			rad.Energy = rel.RadiantEnergy * formed * erg
+		}
+		s.sources[RadiationChannel] = append(s.sources[RadiationChannel], rad)
+		ion := base
+		ion.Channel = PhotoionisationChannel
+		if !s.cfg.SkipPhotoionisation {
+			ion.Photons = rel.IonizingPhotons * formed
+			ion.Energy = ion.Photons * s.cfg.PhotoheatingPerPhoton * erg
+		}
+		s.sources[PhotoionisationChannel] = append(s.sources[PhotoionisationChannel], ion)
+	}
+	if maxExpected > s.cfg.MaxSupernovaePerStep {
+		out.SuggestedStep = dt * s.cfg.MaxSupernovaePerStep / maxExpected
+	}
+	for c := range s.couplers {
+		o := &s.outs[c]
+		if err := s.couplers[c].Couple(gas, finder, s.sources[c], o); err != nil {
+			return fmt.Errorf("step: channel %s: %w", ChannelName(yields.Channel(c)), err)
+		}
+		if s.cfg.DelayedCooling && yields.Channel(c).Discrete() {
+			s.delayCooling(gas, c, o.Records)
+		}
+		out.Records = append(out.Records, o.Records...)
+		out.Channels[c] = o.Ledger
+		out.Ledger.Add(&o.Ledger)
+		out.Problems = append(out.Problems, o.Problems...)
+	}
+	// What a star's couplers returned undeposited stays with the star: its
+	// mass is not lost, and supernova energy is carried to the next step.
+	for c := range s.couplers {
+		for i := range stars {
+			back := &s.couplers[c].slots[i].ledger.Undeposited
+			out.MassLoss[i] -= back.Mass
+			if yields.Channel(c).Discrete() {
+				out.Carry[i] += back.Energy
+			}
+		}
+	}
+	return nil
+}
+
+// delayCooling flags supernova records with the blast-wave cooling-off
+// time of each element.
+func (s *Stepper) delayCooling(gas *Gas, c int, recs []Record) {
+	u := s.cfg.Coupling.Units
+	srcs := s.sources[c]
+	j := 0
+	for k := range recs {
+		r := &recs[k]
+		// Records come grouped by source, in the sources' order.
+		for srcs[j].Star.ID != r.StarID {
+			j++
+		}
+		e := srcs[j].Energy
+		if e <= 0 {
+			continue
+		}
+		rho := gas.Density.At(r.GasIndex)
+		n := hydrogenDensity(rho, u)
+		pk := 2.0 / 3 * rho * u.DensityGCm3() * gas.InternalEnergy.At(r.GasIndex) * u.SpecificEnergy() / units.Boltzmann
+		r.Flags |= FlagCoolingOff
+		r.CoolingOffUntil = CoolingOffTime(e*u.EnergyErg(), n, pk) / u.TimeS()
+	}
+}
+
+// clampRoundOff sets to zero the tiny negative amounts a difference of
+// cumulative releases can show where nothing is released.
+func clampRoundOff(r *yields.Release) {
+	for c := range r.Channels {
+		e := &r.Channels[c]
+		e.Events, e.Mass, e.Energy = math.Max(e.Events, 0), math.Max(e.Mass, 0), math.Max(e.Energy, 0)
+		for sp := range e.Species {
+			e.Species[sp] = math.Max(e.Species[sp], 0)
+		}
+	}
+	r.RadiantEnergy = math.Max(r.RadiantEnergy, 0)
+	r.IonizingPhotons = math.Max(r.IonizingPhotons, 0)
+}
+
+func resizeFloats(s []float64, n int) []float64 {
+	if cap(s) < n {
+		return make([]float64, n)
+	}
+	s = s[:n]
+	clear(s)
+	return s
+}
