@@ -9,6 +9,8 @@ import (
 	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
 	"github.com/ejecta-dev/ejecta/neighbor"
+	"github.com/ejecta-dev/ejecta/yields"
+	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
 // benchWorld is the standard coupling benchmark: 10000 stars at random
@@ -88,33 +90,65 @@ func BenchmarkCouple(b *testing.B) {
 	const k = 64
 	w := newBenchWorld(b, 1<<20, 10000, k)
 	view := w.gas.View()
-	schemes := []feedback.Scheme{feedback.ThermalDump{}, feedback.Kinetic{}, feedback.TerminalMomentum{Fit: feedback.KimOstriker2015}}
+	u := pcMsunKms()
+	// Each channel with the release it is meant for.
+	wind := func(src feedback.Source) feedback.Source {
+		return feedback.Source{Star: src.Star, Channel: yields.MassiveWinds, Mass: 1e-3, Energy: 0.5 * 1e-3 * 2000 * 2000}
+	}
+	light := func(src feedback.Source) feedback.Source {
+		return feedback.Source{Star: src.Star, Channel: feedback.RadiationChannel, Energy: 1e6 * units.SolarLuminosity * units.Megayear / u.EnergyErg()}
+	}
+	photons := func(src feedback.Source) feedback.Source {
+		n := 1e49 * units.Megayear
+		return feedback.Source{Star: src.Star, Channel: feedback.PhotoionisationChannel, Photons: n,
+			Duration: units.Megayear / u.TimeS(), Energy: n * 3 * 1.602e-12 / u.EnergyErg()}
+	}
+	cases := []struct {
+		scheme  feedback.Scheme
+		release func(feedback.Source) feedback.Source
+	}{
+		{feedback.ThermalDump{}, nil},
+		{feedback.Kinetic{}, nil},
+		{feedback.TerminalMomentum{Fit: feedback.KimOstriker2015}, nil},
+		{feedback.StochasticHeating{Seed: 1}, nil},
+		{feedback.Winds{}, wind},
+		{feedback.RadiationPressure{}, light},
+		{feedback.Photoionisation{}, photons},
+	}
 	b.Run(fmt.Sprintf("touch/k=%d", k), func(b *testing.B) {
 		var buf []neighbor.Neighbor
 		var recs []feedback.Record
+		buf, recs, _ = touch(view, w.lists, w.srcs, buf, recs) // warm the buffers
 		b.ReportAllocs()
 		for b.Loop() {
 			buf, recs, _ = touch(view, w.lists, w.srcs, buf, recs)
 		}
 		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(w.srcs)), "ns/star")
 	})
-	for _, s := range schemes {
-		b.Run(fmt.Sprintf("%s/k=%d", s.Name(), k), func(b *testing.B) {
-			c, err := feedback.NewCoupler(feedback.Config{Units: pcMsunKms(), Scheme: s, Radius: math.MaxFloat64})
+	for _, cs := range cases {
+		srcs := w.srcs
+		if cs.release != nil {
+			srcs = make([]feedback.Source, len(w.srcs))
+			for i := range srcs {
+				srcs[i] = cs.release(w.srcs[i])
+			}
+		}
+		b.Run(fmt.Sprintf("%s/k=%d", cs.scheme.Name(), k), func(b *testing.B) {
+			c, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: cs.scheme, Radius: math.MaxFloat64})
 			if err != nil {
 				b.Fatal(err)
 			}
 			var out feedback.Output
-			if err := c.Couple(view, w.lists, w.srcs, &out); err != nil { // warm the scratch
+			if err := c.Couple(view, w.lists, srcs, &out); err != nil { // warm the scratch
 				b.Fatal(err)
 			}
 			b.ReportAllocs()
 			for b.Loop() {
-				if err := c.Couple(view, w.lists, w.srcs, &out); err != nil {
+				if err := c.Couple(view, w.lists, srcs, &out); err != nil {
 					b.Fatal(err)
 				}
 			}
-			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(w.srcs)), "ns/star")
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(srcs)), "ns/star")
 		})
 	}
 }
