@@ -7,6 +7,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strings"
 
 	"codeberg.org/sbinet/npyio"
 
@@ -207,10 +208,13 @@ func readArray(dir, name string, ncol, want int, required bool) ([]float64, int,
 		return nil, 0, fmt.Errorf("read gas %s: %d rows, want %d (as in %s)", path, rows, want, GasPositionsFile)
 	}
 	var data []float64
-	switch r.Header.Descr.Type {
-	case "<f8", ">f8", "f8":
+	// The byte order is npyio's business; the kind and size are ours.
+	kind := strings.Trim(r.Header.Descr.Type, "'\" ")
+	kind = strings.TrimLeft(kind, "<>=|")
+	switch kind {
+	case "f8":
 		err = r.Read(&data)
-	case "<f4", ">f4", "f4":
+	case "f4":
 		var v []float32
 		if err = r.Read(&v); err == nil {
 			data = make([]float64, len(v))
@@ -218,7 +222,7 @@ func readArray(dir, name string, ncol, want int, required bool) ([]float64, int,
 				data[i] = float64(x)
 			}
 		}
-	case "<i8", ">i8", "i8":
+	case "i8":
 		var v []int64
 		if err = r.Read(&v); err == nil {
 			data = make([]float64, len(v))
@@ -226,7 +230,7 @@ func readArray(dir, name string, ncol, want int, required bool) ([]float64, int,
 				data[i] = float64(x)
 			}
 		}
-	case "<i4", ">i4", "i4":
+	case "i4":
 		var v []int32
 		if err = r.Read(&v); err == nil {
 			data = make([]float64, len(v))
