@@ -105,7 +105,8 @@ type starABI struct {
 	SpeciesMass [numSpecies]float64
 	Energy      float64
 	Events      float64
-	Momentum    float64
+	Photons     float64
+	Duration    float64
 }
 
 type recordABI struct {
@@ -669,7 +670,7 @@ func starSource(st *starABI) (feedback.Source, error) {
 		Star: feedback.Star{ID: st.ID, Pos: st.Position, Vel: st.Velocity, Mass: st.Mass,
 			Metallicity: st.Metallicity, Age: st.Age},
 		Channel: yields.Channel(st.Channel), Mass: st.EjectedMass, Species: st.SpeciesMass,
-		Energy: st.Energy, Events: st.Events, Momentum: st.Momentum,
+		Energy: st.Energy, Events: st.Events, Photons: st.Photons, Duration: st.Duration,
 	}
 	if st.Channel < 0 || yields.Channel(st.Channel) >= yields.NumChannels {
 		return src, fail(codeInvalidArgument, "star %d: channel %d is not a channel code", st.ID, st.Channel)
@@ -989,4 +990,3 @@ func entryLedgerBalanced(l *ledgerABI, rel float64, msg *byte, capacity int64) i
 	}
 	return codeOf(err)
 }
-

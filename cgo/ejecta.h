@@ -267,15 +267,17 @@ typedef struct ejecta_star {
   int32_t channel;
   int32_t reserved;
   /* Release: ejected mass, its species masses (species_mass[s] <=
-   * ejected_mass), energy (explosion energy, wind kinetic energy), number
-   * of discrete events (supernovae; 0 for continuous release) and an extra
-   * radial momentum budget (radiation pressure; 0 for supernovae). All
-   * finite and >= 0. */
+   * ejected_mass), energy (explosion energy, wind kinetic energy, emitted
+   * light for radiation pressure), number of discrete events (supernovae;
+   * 0 for continuous release), hydrogen-ionising photons emitted over the
+   * step and the step's duration (code time; both used by
+   * photoionisation, 0 otherwise). All finite and >= 0. */
   double ejected_mass;
   double species_mass[EJECTA_NUM_SPECIES];
   double energy;
   double events;
-  double momentum;
+  double photons;
+  double duration;
 } ejecta_star;
 
 /* One star's deposit into one gas element. */

@@ -153,7 +153,8 @@ func abiMismatches() []string {
 	eq("star.species_mass", unsafe.Offsetof(cs.species_mass), unsafe.Offsetof(gs.SpeciesMass))
 	eq("star.energy", unsafe.Offsetof(cs.energy), unsafe.Offsetof(gs.Energy))
 	eq("star.events", unsafe.Offsetof(cs.events), unsafe.Offsetof(gs.Events))
-	eq("star.momentum", unsafe.Offsetof(cs.momentum), unsafe.Offsetof(gs.Momentum))
+	eq("star.photons", unsafe.Offsetof(cs.photons), unsafe.Offsetof(gs.Photons))
+	eq("star.duration", unsafe.Offsetof(cs.duration), unsafe.Offsetof(gs.Duration))
 
 	var cr C.ejecta_record
 	var gr recordABI

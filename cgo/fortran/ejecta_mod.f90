@@ -1,0 +1,296 @@
+! ejecta_mod — Fortran 2008 bindings (ISO_C_BINDING) of the ejecta C
+! interface, ejecta.h. Types mirror the C structs field for field; the
+! interfaces bind the C functions of the same names, with the same
+! arguments, return codes, units, ownership and thread-safety rules as
+! documented in ejecta.h. Indices in records and neighbour rows are 0-based
+! as in C. Helpers at the end fill name fields, describe strided columns
+! and fetch error text as Fortran strings.
+module ejecta_mod
+  use, intrinsic :: iso_c_binding
+  implicit none
+  private
+
+  ! Error codes (ejecta.h EJECTA_OK, EJECTA_ERR_*).
+  integer(c_int), parameter, public :: EJECTA_OK = 0, EJECTA_ERR_NULL_POINTER = 1, &
+       EJECTA_ERR_INVALID_ARGUMENT = 2, EJECTA_ERR_UNKNOWN_NAME = 3, &
+       EJECTA_ERR_INVALID_CONTEXT = 4, EJECTA_ERR_NO_GAS = 5, EJECTA_ERR_BAD_VALUE = 6, &
+       EJECTA_ERR_NEIGHBOURS = 7, EJECTA_ERR_BUFFER_TOO_SMALL = 8, EJECTA_ERR_UNKNOWN_GAS = 9, &
+       EJECTA_ERR_BUSY = 10, EJECTA_ERR_UNDEPOSITED = 11, EJECTA_ERR_IMBALANCE = 12, &
+       EJECTA_ERR_ALREADY_APPLIED = 13, EJECTA_ERR_INTERNAL = 99
+  integer(c_int32_t), parameter, public :: EJECTA_ABI_VERSION = 1
+  ! Element types.
+  integer(c_int32_t), parameter, public :: EJECTA_FLOAT64 = 1, EJECTA_FLOAT32 = 2, &
+       EJECTA_INT64 = 3, EJECTA_INT32 = 4
+  ! Species codes (0-based: add 1 to index a Fortran species_mass array).
+  integer(c_int32_t), parameter, public :: EJECTA_SPECIES_METALS = 0, EJECTA_SPECIES_HYDROGEN = 1, &
+       EJECTA_SPECIES_HELIUM = 2, EJECTA_SPECIES_CARBON = 3, EJECTA_SPECIES_NITROGEN = 4, &
+       EJECTA_SPECIES_OXYGEN = 5, EJECTA_SPECIES_NEON = 6, EJECTA_SPECIES_MAGNESIUM = 7, &
+       EJECTA_SPECIES_SILICON = 8, EJECTA_SPECIES_SULFUR = 9, EJECTA_SPECIES_CALCIUM = 10, &
+       EJECTA_SPECIES_IRON = 11
+  integer, parameter, public :: EJECTA_NUM_SPECIES = 12, EJECTA_NAME_CAPACITY = 48
+  ! Channels, neighbour modes, record locating, flags.
+  integer(c_int32_t), parameter, public :: EJECTA_CHANNEL_CORE_COLLAPSE = 0, EJECTA_CHANNEL_TYPE_IA = 1, &
+       EJECTA_CHANNEL_MASSIVE_WINDS = 2, EJECTA_CHANNEL_AGB_WINDS = 3
+  integer(c_int32_t), parameter, public :: EJECTA_NEIGHBOURS_OWN_FINDER = 0, EJECTA_NEIGHBOURS_HOST_ROWS = 1
+  integer(c_int32_t), parameter, public :: EJECTA_LOCATE_BY_INDEX = 0, EJECTA_LOCATE_BY_ID = 1
+  integer(c_int32_t), parameter, public :: EJECTA_FLAG_CAPPED = 1, EJECTA_FLAG_LIMITED = 2, &
+       EJECTA_FLAG_IONISED = 4, EJECTA_FLAG_COOLING_OFF = 8, EJECTA_FLAG_STOCHASTIC = 16
+
+  ! ejecta_config (seed is uint64_t in C: use non-negative values).
+  type, bind(c), public :: ejecta_config
+     real(c_double) :: length_cm, mass_g, velocity_cm_per_s
+     real(c_double) :: kinetic_fraction, coupling_radius
+     real(c_double) :: box_size(3)
+     integer(c_int64_t) :: seed
+     integer(c_int32_t) :: neighbour_count, worker_threads, isotropy_correction, reserved
+     character(kind=c_char) :: scheme(EJECTA_NAME_CAPACITY)
+     character(kind=c_char) :: remnant_fit(EJECTA_NAME_CAPACITY)
+     character(kind=c_char) :: weighting(EJECTA_NAME_CAPACITY)
+  end type ejecta_config
+
+  type, bind(c), public :: ejecta_field
+     type(c_ptr) :: data = c_null_ptr
+     integer(c_int64_t) :: stride = 0
+     integer(c_int32_t) :: elem_type = 0, reserved = 0
+  end type ejecta_field
+
+  type, bind(c), public :: ejecta_gas
+     integer(c_int64_t) :: count = 0
+     type(ejecta_field) :: position(3), velocity(3)
+     type(ejecta_field) :: mass, density, internal_energy, smoothing_length, id
+     integer(c_int32_t) :: n_species = 0, reserved = 0
+     type(c_ptr) :: species = c_null_ptr           ! int32_t codes
+     type(c_ptr) :: species_fraction = c_null_ptr  ! ejecta_field array
+  end type ejecta_gas
+
+  type, bind(c), public :: ejecta_star
+     integer(c_int64_t) :: id = 0
+     real(c_double) :: position(3) = 0, velocity(3) = 0
+     real(c_double) :: mass = 0, metallicity = 0, age = 0
+     integer(c_int32_t) :: channel = 0, reserved = 0
+     real(c_double) :: ejected_mass = 0
+     real(c_double) :: species_mass(EJECTA_NUM_SPECIES) = 0
+     real(c_double) :: energy = 0, events = 0, photons = 0, duration = 0
+  end type ejecta_star
+
+  type, bind(c), public :: ejecta_record
+     integer(c_int64_t) :: gas_index, gas_id, star_id
+     integer(c_int32_t) :: channel, flags
+     real(c_double) :: mass
+     real(c_double) :: species_mass(EJECTA_NUM_SPECIES)
+     real(c_double) :: momentum(3)
+     real(c_double) :: energy, heat, radiated, cooling_off_until, kick, heating
+  end type ejecta_record
+
+  type, bind(c), public :: ejecta_quantities
+     real(c_double) :: mass
+     real(c_double) :: species_mass(EJECTA_NUM_SPECIES)
+     real(c_double) :: momentum(3)
+     real(c_double) :: energy
+  end type ejecta_quantities
+
+  type, bind(c), public :: ejecta_ledger
+     type(ejecta_quantities) :: released, deposited, undeposited
+     real(c_double) :: radiated
+     integer(c_int64_t) :: stars, skipped, capped, limited
+     real(c_double) :: max_isotropy_residual, sum_isotropy_residual
+     real(c_double) :: radial_momentum, momentum_scale, energy_scale
+  end type ejecta_ledger
+
+  type, bind(c), public :: ejecta_apply_report
+     integer(c_int64_t) :: records, elements
+     type(ejecta_quantities) :: deposited
+     real(c_double) :: reclaimed, shortfall
+     integer(c_int64_t) :: shortfall_elements
+  end type ejecta_apply_report
+
+  type, bind(c), public :: ejecta_touched
+     integer(c_int64_t) :: gas_index, gas_id
+     real(c_double) :: max_kick, max_heating, cooling_off_until
+     integer(c_int32_t) :: flags, reserved
+  end type ejecta_touched
+
+  public :: ejecta_version, ejecta_config_defaults, ejecta_create, ejecta_destroy, &
+       ejecta_last_error, ejecta_bind_gas, ejecta_step, ejecta_record_count, &
+       ejecta_copy_records, ejecta_get_ledger, ejecta_apply_step_records, &
+       ejecta_apply_records, ejecta_copy_touched, ejecta_ledger_balanced
+  public :: ejecta_set_name, ejecta_strided, ejecta_error_text, ejecta_create_checked
+
+  interface
+     integer(c_int) function ejecta_version(buffer, capacity, abi_version) bind(c, name='ejecta_version')
+       import :: c_int, c_char, c_int64_t, c_int32_t
+       character(kind=c_char), intent(out) :: buffer(*)
+       integer(c_int64_t), value :: capacity
+       integer(c_int32_t), intent(out) :: abi_version
+     end function ejecta_version
+
+     integer(c_int) function ejecta_config_defaults(config) bind(c, name='ejecta_config_defaults')
+       import :: c_int, ejecta_config
+       type(ejecta_config), intent(out) :: config
+     end function ejecta_config_defaults
+
+     integer(c_int) function ejecta_create(config, context, error_text, capacity) bind(c, name='ejecta_create')
+       import :: c_int, c_int64_t, c_char, ejecta_config
+       type(ejecta_config), intent(in) :: config
+       integer(c_int64_t), intent(out) :: context
+       character(kind=c_char), intent(out) :: error_text(*)
+       integer(c_int64_t), value :: capacity
+     end function ejecta_create
+
+     integer(c_int) function ejecta_destroy(context) bind(c, name='ejecta_destroy')
+       import :: c_int, c_int64_t
+       integer(c_int64_t), intent(inout) :: context
+     end function ejecta_destroy
+
+     integer(c_int) function ejecta_last_error(context, buffer, capacity, length) bind(c, name='ejecta_last_error')
+       import :: c_int, c_int64_t, c_char
+       integer(c_int64_t), value :: context
+       character(kind=c_char), intent(out) :: buffer(*)
+       integer(c_int64_t), value :: capacity
+       integer(c_int64_t), intent(out) :: length
+     end function ejecta_last_error
+
+     integer(c_int) function ejecta_bind_gas(context, gas) bind(c, name='ejecta_bind_gas')
+       import :: c_int, c_int64_t, ejecta_gas
+       integer(c_int64_t), value :: context
+       type(ejecta_gas), intent(in) :: gas
+     end function ejecta_bind_gas
+
+     ! row_offsets and row_indices: c_loc of int64 arrays, or c_null_ptr
+     ! with EJECTA_NEIGHBOURS_OWN_FINDER.
+     integer(c_int) function ejecta_step(context, stars, n_stars, neighbour_mode, row_offsets, row_indices) &
+          bind(c, name='ejecta_step')
+       import :: c_int, c_int64_t, c_int32_t, c_ptr, ejecta_star
+       integer(c_int64_t), value :: context
+       type(ejecta_star), intent(in) :: stars(*)
+       integer(c_int64_t), value :: n_stars
+       integer(c_int32_t), value :: neighbour_mode
+       type(c_ptr), value :: row_offsets, row_indices
+     end function ejecta_step
+
+     integer(c_int) function ejecta_record_count(context, count) bind(c, name='ejecta_record_count')
+       import :: c_int, c_int64_t
+       integer(c_int64_t), value :: context
+       integer(c_int64_t), intent(out) :: count
+     end function ejecta_record_count
+
+     integer(c_int) function ejecta_copy_records(context, records, capacity, written) bind(c, name='ejecta_copy_records')
+       import :: c_int, c_int64_t, ejecta_record
+       integer(c_int64_t), value :: context
+       type(ejecta_record), intent(out) :: records(*)
+       integer(c_int64_t), value :: capacity
+       integer(c_int64_t), intent(out) :: written
+     end function ejecta_copy_records
+
+     integer(c_int) function ejecta_get_ledger(context, ledger) bind(c, name='ejecta_get_ledger')
+       import :: c_int, c_int64_t, ejecta_ledger
+       integer(c_int64_t), value :: context
+       type(ejecta_ledger), intent(out) :: ledger
+     end function ejecta_get_ledger
+
+     integer(c_int) function ejecta_apply_step_records(context, report) bind(c, name='ejecta_apply_step_records')
+       import :: c_int, c_int64_t, ejecta_apply_report
+       integer(c_int64_t), value :: context
+       type(ejecta_apply_report), intent(out) :: report
+     end function ejecta_apply_step_records
+
+     integer(c_int) function ejecta_apply_records(context, records, n_records, locate, report) &
+          bind(c, name='ejecta_apply_records')
+       import :: c_int, c_int64_t, c_int32_t, ejecta_record, ejecta_apply_report
+       integer(c_int64_t), value :: context
+       type(ejecta_record), intent(in) :: records(*)
+       integer(c_int64_t), value :: n_records
+       integer(c_int32_t), value :: locate
+       type(ejecta_apply_report), intent(out) :: report
+     end function ejecta_apply_records
+
+     integer(c_int) function ejecta_copy_touched(context, touched, capacity, written) bind(c, name='ejecta_copy_touched')
+       import :: c_int, c_int64_t, ejecta_touched
+       integer(c_int64_t), value :: context
+       type(ejecta_touched), intent(out) :: touched(*)
+       integer(c_int64_t), value :: capacity
+       integer(c_int64_t), intent(out) :: written
+     end function ejecta_copy_touched
+
+     integer(c_int) function ejecta_ledger_balanced(ledger, relative_tolerance, message, capacity) &
+          bind(c, name='ejecta_ledger_balanced')
+       import :: c_int, c_int64_t, c_double, c_char, ejecta_ledger
+       type(ejecta_ledger), intent(in) :: ledger
+       real(c_double), value :: relative_tolerance
+       character(kind=c_char), intent(out) :: message(*)
+       integer(c_int64_t), value :: capacity
+     end function ejecta_ledger_balanced
+  end interface
+
+contains
+
+  ! ejecta_set_name copies a Fortran string into a NUL-terminated name
+  ! field of ejecta_config (scheme, remnant_fit, weighting). Trailing blanks
+  ! are dropped; names longer than EJECTA_NAME_CAPACITY-1 are truncated
+  ! (and then refused by ejecta_create as unknown).
+  subroutine ejecta_set_name(field, name)
+    character(kind=c_char), intent(out) :: field(EJECTA_NAME_CAPACITY)
+    character(len=*), intent(in) :: name
+    integer :: i, n
+    field = c_null_char
+    n = min(len_trim(name), EJECTA_NAME_CAPACITY - 1)
+    do i = 1, n
+       field(i) = name(i:i)
+    end do
+  end subroutine ejecta_set_name
+
+  ! ejecta_strided describes one column: first is c_loc of element 1's
+  ! field (e.g. c_loc(gas(1)%mass)), stride the bytes between elements
+  ! (c_sizeof(gas(1)) for an array of derived type), elem_type one of
+  ! EJECTA_FLOAT64/FLOAT32/INT64/INT32.
+  function ejecta_strided(first, stride, elem_type) result(f)
+    type(c_ptr), intent(in) :: first
+    integer(c_size_t), intent(in) :: stride
+    integer(c_int32_t), intent(in) :: elem_type
+    type(ejecta_field) :: f
+    f%data = first
+    f%stride = int(stride, c_int64_t)
+    f%elem_type = elem_type
+    f%reserved = 0
+  end function ejecta_strided
+
+  ! ejecta_error_text returns the last error message of a context as a
+  ! Fortran string (up to 1023 characters).
+  function ejecta_error_text(context) result(text)
+    integer(c_int64_t), intent(in) :: context
+    character(len=:), allocatable :: text
+    character(kind=c_char) :: buf(1024)
+    integer(c_int64_t) :: length
+    integer(c_int) :: rc
+    integer :: i, n
+    buf = c_null_char
+    rc = ejecta_last_error(context, buf, int(size(buf), c_int64_t), length)
+    n = 0
+    do i = 1, size(buf)
+       if (buf(i) == c_null_char) exit
+       n = i
+    end do
+    allocate(character(len=n) :: text)
+    do i = 1, n
+       text(i:i) = buf(i)
+    end do
+  end function ejecta_error_text
+
+  ! ejecta_create_checked creates a context and returns the error text of a
+  ! failed create in message (blank on success).
+  integer(c_int) function ejecta_create_checked(config, context, message) result(rc)
+    type(ejecta_config), intent(in) :: config
+    integer(c_int64_t), intent(out) :: context
+    character(len=*), intent(out) :: message
+    character(kind=c_char) :: buf(512)
+    integer :: i
+    buf = c_null_char
+    rc = ejecta_create(config, context, buf, int(size(buf), c_int64_t))
+    message = ' '
+    do i = 1, min(len(message), size(buf))
+       if (buf(i) == c_null_char) exit
+       message(i:i) = buf(i)
+    end do
+  end function ejecta_create_checked
+
+end module ejecta_mod
