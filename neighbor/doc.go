@@ -46,25 +46,30 @@
 // the search visits the nearer child first, so no final sort is needed.
 //
 // Measured with the benchmarks in bench_test.go (k = 48, one query per op at
-// a random point in the unit periodic box, uniform random gas; 2 shared
-// cores, figures from one run of each benchmark function):
+// a random point in the unit periodic box, uniform random gas), on 2 cores
+// shared with other jobs, so absolute times moved by up to 2-3x between
+// runs; ratios are taken within one run. n = 1048576:
 //
-//	BenchmarkNearest               n = 65536      n = 1048576
-//	  default (Tree)                 8.5 µs          16.3 µs   0 allocs/op
-//	  gonum spatial/kdtree          27 µs            71.7 µs   (4.4x default)
-//	  kyroy/kdtree (KyroyFinder)   (load-inflated)  335 µs      (20.6x default)
-//	  brute force (one pass)       5.4 ms               -
+//	                                  quiet run       loaded run (load ~6)
+//	BenchmarkNearest default (Tree)    12.3 µs         14.2-14.9 µs  0 allocs/op
+//	BenchmarkNearest gonum kdtree      74.8 µs  6.1x   121-150 µs    8-10x
+//	BenchmarkNearest kyroy kdtree         -            466-726 µs   32-50x
+//	BenchmarkBuild default (Rebuild)    323 ms         294-438 ms    0 allocs/op
+//	BenchmarkBuild sortbaseline         111 ms  2.9x   192-245 ms   ~1.9x (medians)
 //
-//	BenchmarkBuild                 n = 65536      n = 1048576
-//	  default (Tree.Rebuild)         19 ms          350 ms   0 allocs/op
-//	  gonum spatial/kdtree           90 ms         1.19 s
-//	  kyroy/kdtree                  123 ms         8.2 s
-//	  sort.Float64s, 1048576 values    -            110 ms   (default = 3.2x)
+// Other figures from single loaded runs: at n = 65536 the tree answered in
+// 8.5-14 µs against 27-135 µs for gonum and 437-527 µs for kyroy, and a
+// one-pass brute force took 5.4-6.6 ms. On strongly clustered gas
+// (BenchmarkNearestClustered: 80% of 65536 elements in three Gaussian
+// clumps of widths 1e-2 to 1e-4, queries at gas elements) the tree took
+// 9.4-9.5 µs against 32-35 µs for gonum. Building at n = 1048576 took
+// 1.2-1.5 s with gonum and 8.1-8.2 s with kyroy.
 //
 // The gonum figure is a lower bound on a gonum-based finder: it runs
 // gonum's NKeeper at the query and at the images whose ball crosses a face,
-// without tie order or mapping back to gas indices. Leaf sizes 4, 8, 16 and
-// 32 gave 11.1, 9.9, 8.6 and 8.5 µs at n = 65536; 16 is kept as the smaller
-// of the two equal best. The sort baseline refills its input outside the
-// timer.
+// without tie order or mapping back to gas indices. kyroy runs through
+// KyroyFinder (its k nearest, then exact range searches). Leaf sizes 4, 8,
+// 16 and 32 gave 11.1, 9.9, 8.6 and 8.5 µs at n = 65536 while tuning; 16 is
+// kept as the smaller of the two equal best. The sort baseline refills its
+// input outside the timer.
 package neighbor
