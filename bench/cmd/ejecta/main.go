@@ -27,6 +27,7 @@ func commands() []command {
 		{"version", "print the ejecta version", runVersion},
 		{"bench", "compare coupling schemes on standard gas set-ups", runBench},
 		{"rates", "print what a stellar population releases, by age", runRates},
+		{"audit", "check a host's own feedback step for conservation", runAudit},
 	}
 }
 

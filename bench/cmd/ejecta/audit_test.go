@@ -1,0 +1,141 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"testing"
+
+	"codeberg.org/sbinet/npyio"
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
+)
+
+// writeDump writes a step as .npy arrays plus a manifest and returns the
+// manifest's path.
+func writeDump(t *testing.T, before, after *feedbacktest.GasArrays, stars []feedbacktest.AuditStar) string {
+	t.Helper()
+	dir := t.TempDir()
+	write := func(name string, v any) string {
+		f, err := os.Create(filepath.Join(dir, name))
+		require.NoError(t, err)
+		require.NoError(t, npyio.Write(f, v))
+		require.NoError(t, f.Close())
+		return name
+	}
+	gas := func(prefix string, g *feedbacktest.GasArrays) auditGasFiles {
+		n := g.Len()
+		pos, vel := make([]float64, 0, 3*n), make([]float64, 0, 3*n)
+		for i := 0; i < n; i++ {
+			pos = append(pos, g.Pos[0][i], g.Pos[1][i], g.Pos[2][i])
+			vel = append(vel, g.Vel[0][i], g.Vel[1][i], g.Vel[2][i])
+		}
+		files := auditGasFiles{
+			Position: write(prefix+"_pos.npy", reshape(pos, n)),
+			Velocity: write(prefix+"_vel.npy", reshape(vel, n)),
+			Mass:     write(prefix+"_mass.npy", g.Mass), InternalEnergy: write(prefix+"_u.npy", g.Energy),
+			ID: write(prefix+"_id.npy", g.ID), MassFractions: map[string]string{},
+		}
+		for c, sp := range g.Species {
+			files.MassFractions[sp.Symbol()] = write(prefix+"_x"+sp.Symbol()+".npy", g.Fractions[c])
+		}
+		return files
+	}
+	s := len(stars)
+	var id []int64
+	var pos, vel, radius, mass, energy, radiated []float64
+	species := map[string][]float64{}
+	for _, st := range stars {
+		id = append(id, st.ID)
+		pos = append(pos, st.Pos[:]...)
+		vel = append(vel, st.Vel[:]...)
+		radius, mass, energy, radiated = append(radius, st.Radius), append(mass, st.Mass), append(energy, st.Energy), append(radiated, st.Radiated)
+		for _, sp := range before.Species {
+			species[sp.Symbol()] = append(species[sp.Symbol()], st.Species[sp])
+		}
+	}
+	sf := auditStarsFiles{ID: write("s_id.npy", id), Position: write("s_pos.npy", reshape(pos, s)), Velocity: write("s_vel.npy", reshape(vel, s)),
+		Radius: write("s_r.npy", radius), EjectaMass: write("s_m.npy", mass), Energy: write("s_e.npy", energy),
+		Radiated: write("s_rad.npy", radiated), EjectaSpecies: map[string]string{}}
+	for sym, v := range species {
+		sf.EjectaSpecies[sym] = write("s_x"+sym+".npy", v)
+	}
+	m := auditManifest{GasBefore: gas("b", before), GasAfter: gas("a", after), Stars: sf}
+	raw, err := json.MarshalIndent(m, "", "  ")
+	require.NoError(t, err)
+	path := filepath.Join(dir, "manifest.json")
+	require.NoError(t, os.WriteFile(path, raw, 0o644))
+	return path
+}
+
+// reshape wraps a flat row-major (n, 3) array for npyio.
+func reshape(flat []float64, n int) any {
+	out := make([][3]float64, n)
+	for i := range out {
+		copy(out[i][:], flat[3*i:3*i+3])
+	}
+	return out
+}
+
+func TestAuditCommand(t *testing.T) {
+	cases := []struct {
+		name  string
+		plant func(a *feedbacktest.GasArrays, s []feedbacktest.AuditStar)
+		code  int
+		want  string
+	}{
+		{"exact ejecta dump", func(*feedbacktest.GasArrays, []feedbacktest.AuditStar) {}, 0, "passed"},
+		{"lost mass", func(a *feedbacktest.GasArrays, s []feedbacktest.AuditStar) { a.Mass[nearestTo(a, s[0])] *= 0.999 }, 1, "mass imbalance"},
+		{"wrong frame", func(a *feedbacktest.GasArrays, s []feedbacktest.AuditStar) {
+			i := nearestTo(a, s[0])
+			for k := 0; k < 3; k++ {
+				a.Vel[k][i] -= s[0].Mass * s[0].Vel[k] / a.Mass[i]
+			}
+		}, 1, "momentum x imbalance"},
+		{"one-sided momentum", func(a *feedbacktest.GasArrays, s []feedbacktest.AuditStar) {
+			a.Vel[1][nearestTo(a, s[0])] += 3
+		}, 1, "one-sided"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			before, after, stars, err := feedbacktest.Dump(feedback.TerminalMomentum{}, "moving", 2)
+			require.NoError(t, err)
+			c.plant(after, stars)
+			path := writeDump(t, before, after, stars)
+			var out, errOut bytes.Buffer
+			code := run([]string{"audit", "-manifest", path}, &out, &errOut)
+			assert.Equal(t, c.code, code, "stdout:\n%s\nstderr:\n%s", out.String(), errOut.String())
+			assert.Contains(t, out.String(), c.want)
+		})
+	}
+}
+
+func TestAuditCommandBadInput(t *testing.T) {
+	var out, errOut bytes.Buffer
+	assert.Equal(t, 2, run([]string{"audit"}, &out, &errOut))
+	assert.Equal(t, 2, run([]string{"audit", "-manifest", filepath.Join(t.TempDir(), "missing.json")}, &out, &errOut))
+	dir := t.TempDir()
+	bad := filepath.Join(dir, "m.json")
+	require.NoError(t, os.WriteFile(bad, []byte(`{"gas_before": {"position": "nope.npy"}, "unknown_key": 1}`), 0o644))
+	errOut.Reset()
+	assert.Equal(t, 2, run([]string{"audit", "-manifest", bad}, &out, &errOut))
+	assert.Contains(t, errOut.String(), "unknown")
+}
+
+func nearestTo(g *feedbacktest.GasArrays, s feedbacktest.AuditStar) int {
+	best, bd := 0, 1e300
+	for i := range g.Mass {
+		d := 0.0
+		for k := 0; k < 3; k++ {
+			d += (g.Pos[k][i] - s.Pos[k]) * (g.Pos[k][i] - s.Pos[k])
+		}
+		if d < bd {
+			best, bd = i, d
+		}
+	}
+	return best
+}
