@@ -30,7 +30,7 @@ func (ThermalDump) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
 // radial kicks and the rest as heat. Neighbour j, of mass m_j, receiving
 // ejecta dm_j and energy share e_j, gets the momentum whose kinetic energy
 // in the star's frame is KineticFraction times its share,
-// p_j = sqrt(2 (m_j + dm_j) f e_j). A fraction of zero is a thermal dump.
+// p_j = sqrt(2 (m_j + dm_j) f e_j).
 type Kinetic struct {
 	// KineticFraction in [0, 1]; the zero value means SedovKineticFraction.
 	KineticFraction float64
