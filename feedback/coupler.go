@@ -88,6 +88,21 @@ type Coupler struct {
 	slots   []slot
 	order   []int
 	mu      sync.Mutex
+	call    callState
+}
+
+// callState is what the workers of one Couple call share; it lives in the
+// Coupler so a call allocates nothing.
+type callState struct {
+	gas       *Gas
+	finder    neighbor.Finder
+	sources   []Source
+	out       *Output
+	fixed     bool
+	metals    Column
+	hasMetals bool
+	next      atomic.Int64
+	wg        sync.WaitGroup
 }
 
 type slot struct {
@@ -196,47 +211,20 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 		}
 		out.Records = out.Records[:n*k]
 	}
-	var next atomic.Int64
-	const chunk = 16
-	work := func(w int) {
-		ws := &c.workers[w]
-		for {
-			lo := int(next.Add(chunk)) - chunk
-			if lo >= n {
-				return
-			}
-			hi := min(lo+chunk, n)
-			for i := lo; i < hi; i++ {
-				sl := &c.slots[i]
-				sl.worker = w
-				var dst []Record
-				if fixed {
-					sl.start = i * k
-					dst = out.Records[i*k : i*k : i*k+k]
-				} else {
-					sl.start = len(ws.records)
-					dst = ws.records
-				}
-				dst, sl.ledger, sl.err = c.coupleOne(ws, gas, finder, &sources[i], i, metals, hasMetals, dst)
-				if fixed {
-					sl.count = len(dst)
-				} else {
-					sl.count = len(dst) - sl.start
-					ws.records = dst
-				}
-			}
-		}
-	}
-	if len(c.workers) == 1 || n <= chunk {
-		work(0)
+	cs := &c.call
+	cs.gas, cs.finder, cs.sources, cs.out, cs.fixed = gas, finder, sources, out, fixed
+	cs.metals, cs.hasMetals = metals, hasMetals
+	cs.next.Store(0)
+	if len(c.workers) == 1 || n <= couplerChunk {
+		c.work(0)
 	} else {
-		var wg sync.WaitGroup
 		for w := range c.workers {
-			wg.Add(1)
-			go func() { defer wg.Done(); work(w) }()
+			cs.wg.Add(1)
+			go c.workAndSignal(w)
 		}
-		wg.Wait()
+		cs.wg.Wait()
 	}
+	cs.gas, cs.finder, cs.sources, cs.out, cs.metals = nil, nil, nil, nil, Column{}
 
 	kept := 0
 	for i := range c.slots {
@@ -279,6 +267,48 @@ func cmpInt64(a, b int64) int {
 		return 1
 	}
 	return 0
+}
+
+// couplerChunk is how many consecutive stars a worker takes at a time.
+const couplerChunk = 16
+
+func (c *Coupler) workAndSignal(w int) {
+	defer c.call.wg.Done()
+	c.work(w)
+}
+
+// work couples stars, chunk by chunk, until none are left.
+func (c *Coupler) work(w int) {
+	cs := &c.call
+	ws := &c.workers[w]
+	n := len(cs.sources)
+	k := c.cfg.Neighbours
+	for {
+		lo := int(cs.next.Add(couplerChunk)) - couplerChunk
+		if lo >= n {
+			return
+		}
+		hi := min(lo+couplerChunk, n)
+		for i := lo; i < hi; i++ {
+			sl := &c.slots[i]
+			sl.worker = w
+			var dst []Record
+			if cs.fixed {
+				sl.start = i * k
+				dst = cs.out.Records[i*k : i*k : i*k+k]
+			} else {
+				sl.start = len(ws.records)
+				dst = ws.records
+			}
+			dst, sl.ledger, sl.err = c.coupleOne(ws, cs.gas, cs.finder, &cs.sources[i], i, cs.metals, cs.hasMetals, dst)
+			if cs.fixed {
+				sl.count = len(dst)
+			} else {
+				sl.count = len(dst) - sl.start
+				ws.records = dst
+			}
+		}
+	}
 }
 
 // undeposited books a whole source as returned to the caller.

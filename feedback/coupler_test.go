@@ -421,3 +421,25 @@ func TestIDIndexResolvesRecordsFromAnotherRank(t *testing.T) {
 	bad[0].GasID = -5
 	assert.Error(t, x.Resolve(bad))
 }
+
+func TestCoupleAllocatesNothingInSteadyState(t *testing.T) {
+	u := pcMsunKms()
+	g := uniformGas(1, 2000, 100, 1, u)
+	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
+	require.NoError(t, err)
+	var srcs []feedback.Source
+	for i := 0; i < 100; i++ {
+		s := supernova(int64(i+1), u)
+		s.Star.Pos = [3]float64{g.Pos[0][i], g.Pos[1][i], g.Pos[2][i] + 0.1}
+		srcs = append(srcs, s)
+	}
+	for _, radius := range []float64{0, 30} {
+		c, err := feedback.NewCoupler(feedback.Config{Units: u, Radius: radius})
+		require.NoError(t, err)
+		var out feedback.Output
+		view := g.View()
+		require.NoError(t, c.Couple(view, f, srcs, &out))
+		allocs := testing.AllocsPerRun(5, func() { _ = c.Couple(view, f, srcs, &out) })
+		assert.Zero(t, allocs, "radius %g: allocations per call of 100 stars", radius)
+	}
+}

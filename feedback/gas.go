@@ -54,19 +54,20 @@ func (g *Gas) Validate() error {
 		c        Column
 		writable bool
 	}
-	cols := []named{
-		{"pos.x", g.Pos[0], false}, {"pos.y", g.Pos[1], false}, {"pos.z", g.Pos[2], false},
-		{"vel.x", g.Vel[0], true}, {"vel.y", g.Vel[1], true}, {"vel.z", g.Vel[2], true},
-		{"mass", g.Mass, true}, {"density", g.Density, false},
-		{"internal energy", g.InternalEnergy, true}, {"id", g.ID, false},
-	}
+	// A fixed array keeps validation allocation-free (it runs every call).
+	var store [11 + int(yields.NumSpecies)]named
+	cols := append(store[:0],
+		named{"pos.x", g.Pos[0], false}, named{"pos.y", g.Pos[1], false}, named{"pos.z", g.Pos[2], false},
+		named{"vel.x", g.Vel[0], true}, named{"vel.y", g.Vel[1], true}, named{"vel.z", g.Vel[2], true},
+		named{"mass", g.Mass, true}, named{"density", g.Density, false},
+		named{"internal energy", g.InternalEnergy, true}, named{"id", g.ID, false})
 	if g.Smoothing.Bound() {
 		cols = append(cols, named{"smoothing", g.Smoothing, false})
 	}
 	if len(g.Species) != len(g.SpeciesFractions) {
 		return fmt.Errorf("gas: %d species named but %d species columns", len(g.Species), len(g.SpeciesFractions))
 	}
-	seen := map[yields.Species]bool{}
+	var seen [yields.NumSpecies]bool
 	for i, s := range g.Species {
 		if s < 0 || s >= yields.NumSpecies {
 			return fmt.Errorf("gas: species %d is not a known species", int(s))
@@ -75,7 +76,7 @@ func (g *Gas) Validate() error {
 			return fmt.Errorf("gas: species %s listed twice", s.Symbol())
 		}
 		seen[s] = true
-		cols = append(cols, named{"fraction of " + s.Symbol(), g.SpeciesFractions[i], true})
+		cols = append(cols, named{"species fraction", g.SpeciesFractions[i], true})
 	}
 	for _, c := range cols {
 		if err := c.c.check(c.name, g.N, c.writable); err != nil {
