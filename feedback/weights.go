@@ -135,8 +135,11 @@ func netVector(a []float64, n [][3]float64) float64 {
 
 const (
 	maxTilt       = 40.0
-	tiltTolerance = 1e-13
+	tiltTolerance = 1e-12
 	maxTiltSteps  = 40
+	maxBacktracks = 20
+	// newtonRegion is the gradient below which full Newton steps are taken.
+	newtonRegion = 1e-3
 )
 
 // tilt applies the isotropy correction to a in place (keeping its sum) and
@@ -163,19 +166,22 @@ func tilt(a []float64, n [][3]float64, scratch []float64) float64 {
 			// fall back to a gradient step.
 			step = g
 		}
-		// Newton direction is -step; backtrack until F decreases.
-		t := 1.0
+		// Newton direction is -step. Close to the minimum (small gradient)
+		// Newton converges quadratically and F changes by less than its
+		// round-off, so the full step is taken; farther out, backtrack
+		// until F decreases.
 		var nl [3]float64
 		var nf float64
 		var ng [3]float64
 		var nh [6]float64
 		accepted := false
-		for bt := 0; bt < 30; bt++ {
+		t := 1.0
+		for bt := 0; bt < maxBacktracks; bt++ {
 			for d := 0; d < 3; d++ {
 				nl[d] = lam[d] - t*step[d]
 			}
 			nf, ng, nh = tiltState(a, n, nl, scratch)
-			if nf <= f-1e-4*t*(g[0]*step[0]+g[1]*step[1]+g[2]*step[2]) || nf < f {
+			if gn < newtonRegion || nf <= f-1e-4*t*(g[0]*step[0]+g[1]*step[1]+g[2]*step[2]) {
 				accepted = true
 				break
 			}
