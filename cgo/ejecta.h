@@ -431,9 +431,11 @@ int ejecta_last_error(ejecta_context context, char *buffer, int64_t capacity,
 /* ejecta_bind_gas points the context at the host's gas. The descriptor and
  * the species list are copied; the column memory is not: it must stay valid
  * until the next ejecta_bind_gas or ejecta_destroy, and the host must not
- * change it during a call on this context. Positions are read at the first
- * step with EJECTA_NEIGHBOURS_OWN_FINDER after binding (to build the tree):
- * bind again after moving the gas. Other fields are read at each call.
+ * change it during a call on this context. Positions and IDs are read at
+ * the first step with EJECTA_NEIGHBOURS_OWN_FINDER after binding (to build
+ * the tree), and IDs at the first ejecta_apply_records with
+ * EJECTA_LOCATE_BY_ID (to index them): bind again after moving the gas or
+ * renumbering it. Other fields are read at each call.
  * Errors: EJECTA_ERR_NULL_POINTER (gas, a required column's data, species
  * lists with n_species > 0), EJECTA_ERR_INVALID_ARGUMENT (count <= 0,
  * unknown element type, stride smaller than or not a multiple of the
