@@ -59,22 +59,14 @@ func (s Winds) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
 	eErg := src.Energy * u.EnergyErg()
 	pWind := math.Sqrt(2 * src.Mass * src.Energy) // M v with v = sqrt(2E/M)
 	for j := range nb.Momentum {
-		w := nb.Weight[j]
-		m, dm := nb.Mass[j], w*src.Mass
-		mt := m + dm
-		fk := (dm + SedovKineticFraction*m) / mt
-		pec := math.Sqrt(2 * mt * fk * nb.EnergyWeight[j] * src.Energy)
+		pec, rem, capped := nb.sweepUp(j, s.Fit, eErg)
 		nb.Momentum[j] = pec
 		nb.HeatCap[j] = math.Inf(1)
-		if eErg <= 0 {
+		if !capped {
 			continue
 		}
-		rem := s.Fit.Remnant(eErg, hydrogenDensity(nb.Density[j], u), nb.Metallicity[j]/SolarMetallicity)
-		pt := w * rem.TerminalMomentum / u.MomentumGCmPS()
-		if pec <= pt {
-			continue
-		}
-		nb.Momentum[j] = math.Max(pt, w*pWind)
+		w := nb.Weight[j]
+		nb.Momentum[j] = math.Max(w*rem.TerminalMomentum/u.MomentumGCmPS(), w*pWind)
 		nb.HeatCap[j] = 0
 		nb.MarkCapped()
 	}

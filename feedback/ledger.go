@@ -77,7 +77,8 @@ type Quantities struct {
 	Energy   float64
 }
 
-func (q *Quantities) add(o *Quantities) {
+// Add adds o to q.
+func (q *Quantities) Add(o *Quantities) {
 	q.Mass += o.Mass
 	for i := range q.Species {
 		q.Species[i] += o.Species[i]
@@ -88,7 +89,8 @@ func (q *Quantities) add(o *Quantities) {
 	q.Energy += o.Energy
 }
 
-func (q *Quantities) sub(o *Quantities) {
+// Sub subtracts o from q.
+func (q *Quantities) Sub(o *Quantities) {
 	q.Mass -= o.Mass
 	for i := range q.Species {
 		q.Species[i] -= o.Species[i]
@@ -154,9 +156,9 @@ type Ledger struct {
 
 // Add accumulates another ledger into l.
 func (l *Ledger) Add(o *Ledger) {
-	l.In.add(&o.In)
-	l.Deposited.add(&o.Deposited)
-	l.Undeposited.add(&o.Undeposited)
+	l.In.Add(&o.In)
+	l.Deposited.Add(&o.Deposited)
+	l.Undeposited.Add(&o.Undeposited)
 	l.Radiated += o.Radiated
 	l.Stars += o.Stars
 	l.Skipped += o.Skipped
@@ -173,8 +175,8 @@ func (l *Ledger) Add(o *Ledger) {
 // for a conserving scheme.
 func (l *Ledger) Imbalance() Quantities {
 	q := l.In
-	q.sub(&l.Deposited)
-	q.sub(&l.Undeposited)
+	q.Sub(&l.Deposited)
+	q.Sub(&l.Undeposited)
 	q.Energy -= l.Radiated
 	return q
 }

@@ -3,8 +3,6 @@ package feedback
 import (
 	"fmt"
 	"math"
-
-	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
 // ThermalDump deposits all released energy as heat: each neighbour receives
@@ -55,7 +53,7 @@ func (s Kinetic) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
 	src := nb.Source
 	for j := range nb.Momentum {
 		w := nb.Weight[j]
-		nb.Momentum[j] = math.Sqrt(2 * (nb.Mass[j] + w*src.Mass) * f * w * src.Energy)
+		nb.Momentum[j] = math.Sqrt(2 * (nb.Mass[j] + w*src.Mass) * f * nb.EnergyWeight[j] * src.Energy)
 		nb.HeatCap[j] = math.Inf(1)
 	}
 	return nb.CoupleRadial(out), nil
@@ -92,6 +90,24 @@ type TerminalMomentum struct {
 // Name is "terminal-momentum".
 func (TerminalMomentum) Name() string { return "terminal-momentum" }
 
+// sweepUp is neighbour j's energy-conserving momentum (the loaded mass
+// m_j + dm_j taking the kinetic share f_K of its energy share), the remnant
+// of the release's energy eErg (erg) in the neighbour's gas, and whether
+// that momentum exceeds the neighbour's share of the terminal momentum.
+func (nb *Neighbourhood) sweepUp(j int, fit RemnantFit, eErg float64) (float64, Remnant, bool) {
+	src := nb.Source
+	w := nb.Weight[j]
+	m, dm := nb.Mass[j], w*src.Mass
+	mt := m + dm
+	fk := (dm + SedovKineticFraction*m) / mt
+	pec := math.Sqrt(2 * mt * fk * nb.EnergyWeight[j] * src.Energy)
+	if eErg <= 0 || w <= 0 {
+		return pec, Remnant{}, false
+	}
+	rem := fit.Remnant(eErg, hydrogenDensity(nb.Density[j], nb.Units), nb.Metallicity[j]/SolarMetallicity)
+	return pec, rem, pec > w*rem.TerminalMomentum/nb.Units.MomentumGCmPS()
+}
+
 // Deposit implements Scheme.
 func (s TerminalMomentum) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
 	src := nb.Source
@@ -102,26 +118,17 @@ func (s TerminalMomentum) Deposit(nb *Neighbourhood, out []Deposit) (float64, er
 	mUnit := u.MassG
 	for j := range nb.Momentum {
 		w := nb.Weight[j]
-		m, dm := nb.Mass[j], w*src.Mass
-		mt := m + dm
-		fk := (dm + SedovKineticFraction*m) / mt
-		e := w * src.Energy
-		pec := math.Sqrt(2 * mt * fk * e)
+		e := nb.EnergyWeight[j] * src.Energy
+		pec, rem, capped := nb.sweepUp(j, s.Fit, eErg)
 		nb.HeatCap[j] = math.Inf(1)
 		nb.Momentum[j] = pec
-		if eErg <= 0 || w <= 0 {
+		if !capped {
 			continue
 		}
-		rho := nb.Density[j] * rhoUnit
-		n := rho / (MassPerHydrogen * units.ProtonMass)
-		rem := s.Fit.Remnant(eErg, n, nb.Metallicity[j]/SolarMetallicity)
-		pcap := w * rem.TerminalMomentum / pUnit
-		if pec <= pcap {
-			continue
-		}
-		nb.Momentum[j] = pcap
+		nb.Momentum[j] = w * rem.TerminalMomentum / pUnit
 		nb.MarkCapped()
-		swept := mt / w * mUnit
+		rho := nb.Density[j] * rhoUnit
+		swept := (nb.Mass[j] + w*src.Mass) / w * mUnit
 		r := math.Cbrt(3 * swept / (4 * math.Pi * rho))
 		keep := SedovThermalFraction
 		if r > rem.CoolingRadius {

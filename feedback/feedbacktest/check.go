@@ -145,7 +145,7 @@ func CheckScenario(scheme feedback.Scheme, sc Scenario, opts Options) []error {
 	// plus any radiated energy Apply reclaimed for coherent kicks.
 	before, after := sc.Gas.Totals(), r.gas.Totals()
 	gained := after
-	sub(&gained, &before)
+	gained.Sub(&before)
 	scales := before
 	scales.Energy = led.EnergyScale + math.Abs(before.Energy)
 	pscale := led.MomentumScale + math.Abs(before.Momentum[0]) + math.Abs(before.Momentum[1]) + math.Abs(before.Momentum[2])
@@ -159,7 +159,7 @@ func CheckScenario(scheme feedback.Scheme, sc Scenario, opts Options) []error {
 	}
 	want := led.In
 	want.Energy -= led.Radiated - r.report.Reclaimed - r.report.Shortfall
-	sub(&want, &led.Undeposited)
+	want.Sub(&led.Undeposited)
 	if err := compare("gas gain vs release less radiated", gained, want, scales, tol, pscale); err != nil {
 		fail("%w", err)
 	}
@@ -220,17 +220,6 @@ func CheckScenario(scheme feedback.Scheme, sc Scenario, opts Options) []error {
 		}
 	}
 	return errs
-}
-
-func sub(q, o *feedback.Quantities) {
-	q.Mass -= o.Mass
-	for i := range q.Species {
-		q.Species[i] -= o.Species[i]
-	}
-	for a := 0; a < 3; a++ {
-		q.Momentum[a] -= o.Momentum[a]
-	}
-	q.Energy -= o.Energy
 }
 
 // compare checks two amounts component by component: each may differ by
