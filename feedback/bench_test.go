@@ -2,7 +2,6 @@ package feedback_test
 
 import (
 	"fmt"
-	"math"
 	"math/rand/v2"
 	"testing"
 
@@ -62,12 +61,12 @@ func newBenchWorld(b *testing.B, nGas, nStars, k int) *benchWorld {
 // touch is the memory floor: it finds each star's neighbours the same way,
 // reads every gas field the coupler reads and writes one record per
 // neighbour, with no physics.
-func touch(gas *feedback.Gas, f neighbor.Finder, srcs []feedback.Source, buf []neighbor.Neighbor, out []feedback.Record) ([]neighbor.Neighbor, []feedback.Record, float64) {
+func touch(gas *feedback.Gas, f neighbor.Finder, k int, srcs []feedback.Source, buf []neighbor.Neighbor, out []feedback.Record) ([]neighbor.Neighbor, []feedback.Record, float64) {
 	out = out[:0]
 	sink := 0.0
 	for s := range srcs {
 		var err error
-		buf, err = f.Within(neighbor.Query{Pos: srcs[s].Star.Pos, Star: s}, math.MaxFloat64, buf)
+		buf, err = f.Nearest(neighbor.Query{Pos: srcs[s].Star.Pos, Star: s}, k, buf)
 		if err != nil {
 			panic(err)
 		}
@@ -118,10 +117,10 @@ func BenchmarkCouple(b *testing.B) {
 	b.Run(fmt.Sprintf("touch/k=%d", k), func(b *testing.B) {
 		var buf []neighbor.Neighbor
 		var recs []feedback.Record
-		buf, recs, _ = touch(view, w.lists, w.srcs, buf, recs) // warm the buffers
+		buf, recs, _ = touch(view, w.lists, k, w.srcs, buf, recs) // warm the buffers
 		b.ReportAllocs()
 		for b.Loop() {
-			buf, recs, _ = touch(view, w.lists, w.srcs, buf, recs)
+			buf, recs, _ = touch(view, w.lists, k, w.srcs, buf, recs)
 		}
 		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(w.srcs)), "ns/star")
 	})
@@ -134,7 +133,7 @@ func BenchmarkCouple(b *testing.B) {
 			}
 		}
 		b.Run(fmt.Sprintf("%s/k=%d", cs.scheme.Name(), k), func(b *testing.B) {
-			c, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: cs.scheme, Radius: math.MaxFloat64})
+			c, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: cs.scheme, Neighbours: k})
 			if err != nil {
 				b.Fatal(err)
 			}
@@ -159,7 +158,7 @@ func BenchmarkCoupleWorkers(b *testing.B) {
 	view := w.gas.View()
 	for _, workers := range []int{1, 2} {
 		b.Run(fmt.Sprintf("terminal-momentum/workers=%d", workers), func(b *testing.B) {
-			c, err := feedback.NewCoupler(feedback.Config{Units: pcMsunKms(), Radius: math.MaxFloat64, Workers: workers})
+			c, err := feedback.NewCoupler(feedback.Config{Units: pcMsunKms(), Neighbours: 64, Workers: workers})
 			if err != nil {
 				b.Fatal(err)
 			}

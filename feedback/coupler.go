@@ -359,7 +359,9 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 	nb.resize(k)
 	nb.Source = src
 	vs := src.Star.Vel
-	kinetic := 0.0
+	// Gather first, in a tight loop that keeps many cache misses in
+	// flight (neighbours are scattered in the host's memory); check and
+	// derive afterwards. Positions wait in Dir until then.
 	for j, f := range ws.found {
 		i := f.Index
 		if i < 0 || i >= gas.N {
@@ -367,17 +369,26 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 		}
 		nb.Index[j] = i
 		nb.ID[j] = gas.ID.Int(i)
-		m, rho, u := gas.Mass.At(i), gas.Density.At(i), gas.InternalEnergy.At(i)
+		nb.Mass[j], nb.Density[j], nb.InternalEnergy[j] = gas.Mass.At(i), gas.Density.At(i), gas.InternalEnergy.At(i)
+		nb.Dir[j] = gas.position(i)
+		nb.Vel[j] = gas.velocity(i)
+	}
+	if hasMetals {
+		for j, i := range nb.Index {
+			nb.Metallicity[j] = metals.At(i)
+		}
+	} else {
+		for j := range nb.Metallicity {
+			nb.Metallicity[j] = src.Star.Metallicity
+		}
+	}
+	kinetic := 0.0
+	for j := range nb.Index {
+		m, rho, u, z := nb.Mass[j], nb.Density[j], nb.InternalEnergy[j], nb.Metallicity[j]
 		if !(m > 0) || !(rho > 0) || !(u >= 0) || math.IsInf(m, 0) || math.IsInf(rho, 0) || math.IsInf(u, 0) {
-			return undeposited(src, fmt.Errorf("star %d: gas element %d (ID %d) has mass %g, density %g, internal energy %g: need positive finite mass and density and finite non-negative energy", src.Star.ID, i, nb.ID[j], m, rho, u))
+			return undeposited(src, fmt.Errorf("star %d: gas element %d (ID %d) has mass %g, density %g, internal energy %g: need positive finite mass and density and finite non-negative energy", src.Star.ID, nb.Index[j], nb.ID[j], m, rho, u))
 		}
-		nb.Mass[j], nb.Density[j], nb.InternalEnergy[j] = m, rho, u
-		z := src.Star.Metallicity
-		if hasMetals {
-			z = metals.At(i)
-		}
-		nb.Metallicity[j] = z
-		p, v := gas.position(i), gas.velocity(i)
+		p, v := nb.Dir[j], nb.Vel[j]
 		var d [3]float64
 		for a := 0; a < 3; a++ {
 			d[a] = p[a] - src.Star.Pos[a]
@@ -385,7 +396,7 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 		d = c.cfg.Box.MinImage(d)
 		r := math.Sqrt(dot(d, d))
 		if !finite(r) || !finite(dot(v, v)) || !finite(z) {
-			return undeposited(src, fmt.Errorf("star %d: gas element %d (ID %d) has a non-finite position, velocity or metallicity", src.Star.ID, i, nb.ID[j]))
+			return undeposited(src, fmt.Errorf("star %d: gas element %d (ID %d) has a non-finite position, velocity or metallicity", src.Star.ID, nb.Index[j], nb.ID[j]))
 		}
 		nb.Dist[j] = r
 		if r > 0 {
@@ -393,7 +404,6 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 		} else {
 			nb.Dir[j] = [3]float64{}
 		}
-		nb.Vel[j] = v
 		nb.RelVel[j] = [3]float64{v[0] - vs[0], v[1] - vs[1], v[2] - vs[2]}
 		kinetic += 0.5 * m * dot(v, v)
 	}

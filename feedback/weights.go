@@ -135,7 +135,7 @@ func netVector(a []float64, n [][3]float64) float64 {
 
 const (
 	maxTilt       = 40.0
-	tiltTolerance = 1e-12
+	tiltTolerance = 1e-10
 	maxTiltSteps  = 40
 	maxBacktracks = 20
 	// newtonRegion is the gradient below which full Newton steps are taken.
@@ -210,18 +210,25 @@ func tilt(a []float64, n [][3]float64, scratch []float64) float64 {
 // tiltState evaluates F, its gradient and Hessian (packed xx, xy, xz, yy,
 // yz, zz) at lambda, leaving the unnormalised tilted amounts in t.
 func tiltState(a []float64, n [][3]float64, lam [3]float64, t []float64) (float64, [3]float64, [6]float64) {
+	zero := lam == [3]float64{}
 	// Shift the exponent by its maximum for stability.
-	emax := math.Inf(-1)
-	for j := range a {
-		e := lam[0]*n[j][0] + lam[1]*n[j][1] + lam[2]*n[j][2]
-		t[j] = e
-		emax = math.Max(emax, e)
+	emax := 0.0
+	if !zero {
+		emax = math.Inf(-1)
+		for j := range a {
+			e := lam[0]*n[j][0] + lam[1]*n[j][1] + lam[2]*n[j][2]
+			t[j] = e
+			emax = math.Max(emax, e)
+		}
 	}
 	var s float64
 	var m [3]float64
 	var q [6]float64
 	for j := range a {
-		v := a[j] * math.Exp(t[j]-emax)
+		v := a[j]
+		if !zero {
+			v *= expNonPositive(t[j] - emax)
+		}
 		t[j] = v
 		s += v
 		x, y, z := n[j][0], n[j][1], n[j][2]
@@ -242,6 +249,26 @@ func tiltState(a []float64, n [][3]float64, lam [3]float64, t []float64) (float6
 		q[3]*inv - g[1]*g[1], q[4]*inv - g[1]*g[2], q[5]*inv - g[2]*g[2],
 	}
 	return math.Log(s) + emax, g, h
+}
+
+// expNonPositive is e^x for x <= 0, accurate to about 1e-13 relative and
+// several times faster than math.Exp: x = k ln 2 + r with |r| <= ln2/2
+// (Cody–Waite reduction), e^r by its Taylor series to degree 11, times 2^k
+// set in the exponent bits. The tilt needs no more: it balances the
+// weights it actually computes, whatever small error the exponential has.
+func expNonPositive(x float64) float64 {
+	if x < -700 {
+		return 0
+	}
+	const (
+		log2e = 1.4426950408889634
+		ln2hi = 6.93147180369123816490e-01
+		ln2lo = 1.90821492927058770002e-10
+	)
+	k := math.Floor(float64(x*log2e) + 0.5)
+	r := float64(x-float64(k*ln2hi)) - float64(k*ln2lo)
+	p := 1 + r*(1+r*(1.0/2+r*(1.0/6+r*(1.0/24+r*(1.0/120+r*(1.0/720+r*(1.0/5040+r*(1.0/40320+r*(1.0/362880+r*(1.0/3628800+r*(1.0/39916800)))))))))))
+	return p * math.Float64frombits(uint64(int64(k)+1023)<<52)
 }
 
 // solve3 solves the symmetric 3x3 system h x = b (h packed xx, xy, xz, yy,

@@ -86,3 +86,17 @@ func TestBaseWeights(t *testing.T) {
 	baseWeights(SolidAngle, []float64{2}, []float64{4 * math.Pi / 3}, []float64{1}, w)
 	assert.InDelta(t, 1, w[0], 0) // a single neighbour takes everything
 }
+
+func TestExpNonPositive(t *testing.T) {
+	for x := -700.0; x <= 0; x += 0.0137 {
+		want := math.Exp(x)
+		got := expNonPositive(x)
+		if want == 0 {
+			assert.Zero(t, got)
+			continue
+		}
+		require.InEpsilon(t, want, got, 1e-13, "x = %g", x)
+	}
+	assert.Equal(t, 1.0, expNonPositive(0))
+	assert.Zero(t, expNonPositive(-800))
+}
