@@ -228,6 +228,9 @@ type session struct {
 	cfg     feedback.Config
 	seed    uint64
 	coupler *feedback.Coupler
+	// steps counts ejecta_step calls that ran; it is each step's index,
+	// which keys stochastic draws with the seed and star ID.
+	steps uint64
 
 	bound     bool
 	gas       feedback.Gas
@@ -335,16 +338,11 @@ func parseConfig(c *configABI) (feedback.Config, error) {
 	if !(c.KineticFraction >= 0 && c.KineticFraction <= 1) {
 		return cfg, fail(codeInvalidArgument, "config kinetic_fraction %g outside [0, 1]", c.KineticFraction)
 	}
-	switch scheme {
-	case feedback.ThermalDump{}.Name():
-		cfg.Scheme = feedback.ThermalDump{}
-	case feedback.Kinetic{}.Name():
-		cfg.Scheme = feedback.Kinetic{KineticFraction: c.KineticFraction}
-	case feedback.TerminalMomentum{}.Name():
-		cfg.Scheme = feedback.TerminalMomentum{Fit: fit}
-	default:
-		return cfg, fail(codeUnknownName, "config scheme %q: want thermal-dump, kinetic or terminal-momentum", scheme)
+	sch, err := feedback.SchemeByName(scheme, feedback.SchemeOptions{Fit: fit, KineticFraction: c.KineticFraction, Seed: c.Seed})
+	if err != nil {
+		return cfg, fail(codeUnknownName, "config: %w", err)
 	}
+	cfg.Scheme = sch
 	switch weighting {
 	case "", feedback.KernelVolume.String():
 		cfg.Weighting = feedback.KernelVolume
@@ -706,6 +704,7 @@ func (s *session) step(stars *starABI, n int64, mode int32, offsets, indices *in
 		if err != nil {
 			return fmt.Errorf("star %d of %d: %w", i, n, err)
 		}
+		src.Step = s.steps
 		s.sources = append(s.sources, src)
 		s.starIDs = append(s.starIDs, src.Star.ID)
 	}
@@ -730,6 +729,7 @@ func (s *session) step(stars *starABI, n int64, mode int32, offsets, indices *in
 		return fail(codeInvalidArgument, "step: %w", err)
 	}
 	s.stepped = true
+	s.steps++
 	if p := s.out.Problems; len(p) > 0 {
 		return fail(codeUndeposited, "%d of %d stars returned undeposited; first: star %d (index %d): %v",
 			len(p), n, p[0].StarID, p[0].Index, p[0].Err)

@@ -339,7 +339,7 @@ func TestVersionAndDefaults(t *testing.T) {
 // applies them there located by gas ID: both copies must end bitwise
 // identical, also when the records arrive in reverse order.
 func TestRecordsFromAnotherRank(t *testing.T) {
-	for _, scheme := range []string{"thermal-dump", "kinetic", "terminal-momentum"} {
+	for _, scheme := range feedback.SchemeNames() {
 		t.Run(scheme, func(t *testing.T) {
 			c := pcConfig()
 			c.Scheme = [nameCapacity]byte{}

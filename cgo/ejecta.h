@@ -186,8 +186,11 @@ typedef struct ejecta_config {
   double coupling_radius;
   /* Periodic box side per axis (code length); 0 leaves the axis open. */
   double box_size[3];
-  /* Seed of the counter-based random streams of stochastic schemes.
-   * Recorded in the context; none of the built-in schemes draws yet. */
+  /* Seed of the counter-based random streams of stochastic schemes
+   * (stochastic-heating). Draws are keyed by (seed, star ID, step index),
+   * the step index being the number of ejecta_step calls the context has
+   * run before, so contexts on different ranks stepped in lockstep draw
+   * the same numbers for the same star. */
   uint64_t seed;
   /* Count mode: each star couples to its neighbour_count nearest gas
    * elements (host rows: nearest of its row, which must be at least that
@@ -200,8 +203,10 @@ typedef struct ejecta_config {
    * 0: do not (for comparisons). */
   int32_t isotropy_correction;
   int32_t reserved;
-  /* NUL-terminated names: scheme "thermal-dump", "kinetic" or
-   * "terminal-momentum"; remnant_fit (terminal-momentum only)
+  /* NUL-terminated names: scheme "thermal-dump", "kinetic",
+   * "terminal-momentum", "stochastic-heating", "stellar-winds",
+   * "radiation-pressure" or "photoionisation"; remnant_fit
+   * (terminal-momentum and stellar-winds)
    * "kim-ostriker-2015" or "cioffi-mckee-bertschinger-1988"; weighting
    * "kernel-volume" or "solid-angle". An empty remnant_fit or weighting
    * takes the default (kim-ostriker-2015, kernel-volume). */

@@ -158,7 +158,8 @@ func (s RadiationPressure) Deposit(nb *Neighbourhood, out []Deposit) (float64, e
 // rounding of the ionised fraction). The heat is paid from the source's
 // Energy (the photoheating energy of the photons); if it is not enough,
 // every heating is scaled down together. What the photons' energy does not
-// heat is booked as radiated.
+// heat is booked as radiated. Any ejected mass the source carries is shared
+// by weight as in a thermal dump.
 type Photoionisation struct{}
 
 // Name is "photoionisation".
@@ -168,44 +169,55 @@ func (Photoionisation) Name() string { return "photoionisation" }
 func (Photoionisation) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
 	src := nb.Source
 	u := nb.Units
-	for j := range out {
-		out[j] = Deposit{}
+	heat := nb.scratch // free: no kicks, so CoupleRadial does not tilt
+	for j := range heat {
+		heat[j] = 0
 	}
-	if src.Photons <= 0 || src.Duration <= 0 {
-		return src.Energy, nil
-	}
-	q := src.Photons / (src.Duration * u.TimeS()) // photons per second
-	floor := specificEnergyAt(IonisedTemperature, IonisedMeanMolecularWeight) / u.SpecificEnergy()
+	// Neighbours come nearest first, so the ionised ones are a prefix.
+	flagged := 0
 	need := 0.0
-	for j := range out {
-		n := hydrogenDensity(nb.Density[j], u)
-		v := nb.Mass[j] / nb.Density[j] * u.LengthCm * u.LengthCm * u.LengthCm
-		rec := CaseBRecombination * n * n * v
-		f := 1.0
-		if rec > q {
-			f = q / rec
-		}
-		q -= f * rec
-		heat := f * nb.Mass[j] * math.Max(floor-nb.InternalEnergy[j], 0)
-		out[j].Heat, out[j].Energy = heat, heat
-		if f >= 0.5 {
-			out[j].Flags |= FlagIonised
-		}
-		need += heat
-		if f < 1 {
-			break
+	if src.Photons > 0 && src.Duration > 0 {
+		q := src.Photons / (src.Duration * u.TimeS()) // photons per second
+		floor := specificEnergyAt(IonisedTemperature, IonisedMeanMolecularWeight) / u.SpecificEnergy()
+		for j := range heat {
+			n := hydrogenDensity(nb.Density[j], u)
+			v := nb.Mass[j] / nb.Density[j] * u.LengthCm * u.LengthCm * u.LengthCm
+			rec := CaseBRecombination * n * n * v
+			f := 1.0
+			if rec > q {
+				f = q / rec
+			}
+			q -= f * rec
+			heat[j] = f * nb.Mass[j] * math.Max(floor-nb.InternalEnergy[j], 0)
+			need += heat[j]
+			if f >= 0.5 {
+				flagged = j + 1
+			}
+			if f < 1 {
+				break
+			}
 		}
 	}
+	scale := 1.0
 	if need > src.Energy {
-		scale := src.Energy / need
-		need = 0
-		for j := range out {
-			out[j].Heat *= scale
-			out[j].Energy = out[j].Heat
-			need += out[j].Heat
+		scale = src.Energy / need
+		need = src.Energy
+	}
+	// Mass, species and the ejecta's momentum (if the source carries any)
+	// go by weight; the photoheating goes to the ionised neighbours.
+	for j := range heat {
+		nb.Momentum[j] = 0
+		nb.HeatCap[j] = math.Inf(1)
+		nb.EnergyWeight[j] = 0
+		if src.Energy > 0 {
+			nb.EnergyWeight[j] = scale * heat[j] / src.Energy
 		}
 	}
-	return src.Energy - need, nil
+	rad := nb.CoupleRadial(out)
+	for j := 0; j < flagged; j++ {
+		out[j].Flags |= FlagIonised
+	}
+	return rad + src.Energy - need, nil
 }
 
 // StochasticHeating is the stochastic thermal feedback of Dalla Vecchia &

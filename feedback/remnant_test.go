@@ -85,3 +85,16 @@ func TestParseRemnantFit(t *testing.T) {
 	_, err := ParseRemnantFit("nonsense")
 	assert.Error(t, err)
 }
+
+func TestSchemeByName(t *testing.T) {
+	for _, name := range SchemeNames() {
+		s, err := SchemeByName(name, SchemeOptions{Fit: CioffiMcKeeBertschinger1988, Seed: 3})
+		require.NoError(t, err)
+		assert.Equal(t, name, s.Name())
+	}
+	s, err := SchemeByName("terminal-momentum", SchemeOptions{Fit: CioffiMcKeeBertschinger1988})
+	require.NoError(t, err)
+	assert.Equal(t, TerminalMomentum{Fit: CioffiMcKeeBertschinger1988}, s)
+	_, err = SchemeByName("nonsense", SchemeOptions{})
+	assert.ErrorContains(t, err, "terminal-momentum")
+}

@@ -1,0 +1,47 @@
+package feedback
+
+import (
+	"fmt"
+	"strings"
+)
+
+// SchemeOptions are the settings of a built-in scheme chosen by name.
+type SchemeOptions struct {
+	// Fit is the terminal momentum fit (terminal-momentum, stellar-winds).
+	Fit RemnantFit
+	// KineticFraction is the kinetic scheme's fraction (0 means the
+	// Sedov–Taylor 0.28).
+	KineticFraction float64
+	// Seed and TemperatureJump set stochastic heating (0 means 10^7.5 K).
+	Seed            uint64
+	TemperatureJump float64
+}
+
+// SchemeNames lists the built-in schemes' names, as Name returns them.
+func SchemeNames() []string {
+	return []string{
+		ThermalDump{}.Name(), Kinetic{}.Name(), TerminalMomentum{}.Name(), StochasticHeating{}.Name(),
+		Winds{}.Name(), RadiationPressure{}.Name(), Photoionisation{}.Name(),
+	}
+}
+
+// SchemeByName builds a built-in scheme from its name and options.
+func SchemeByName(name string, o SchemeOptions) (Scheme, error) {
+	switch name {
+	case ThermalDump{}.Name():
+		return ThermalDump{}, nil
+	case Kinetic{}.Name():
+		return Kinetic{KineticFraction: o.KineticFraction}, nil
+	case TerminalMomentum{}.Name():
+		return TerminalMomentum{Fit: o.Fit}, nil
+	case StochasticHeating{}.Name():
+		return StochasticHeating{Seed: o.Seed, TemperatureJump: o.TemperatureJump}, nil
+	case Winds{}.Name():
+		return Winds{Fit: o.Fit}, nil
+	case RadiationPressure{}.Name():
+		return RadiationPressure{}, nil
+	case Photoionisation{}.Name():
+		return Photoionisation{}, nil
+	}
+	return nil, fmt.Errorf("scheme %q: want one of %s", name, strings.Join(SchemeNames(), ", "))
+}
