@@ -20,6 +20,8 @@ type HostLists struct {
 	ids     []int64
 	offsets []int
 	indices []int
+	seen    idScratch
+	mark    []int
 }
 
 // NewHostLists validates the gas (3n interleaved coordinates, n unique IDs)
@@ -27,36 +29,53 @@ type HostLists struct {
 // decreases and ends at len(indices); every index lies in [0, n) and no row
 // names the same element twice.
 func NewHostLists(pos []float64, ids []int64, box Box, offsets, indices []int) (*HostLists, error) {
-	var seen idScratch
-	n, err := checkGas(pos, ids, box, &seen)
+	h := &HostLists{}
+	if err := h.Reset(pos, ids, box, offsets, indices); err != nil {
+		return nil, err
+	}
+	return h, nil
+}
+
+// Reset points h at new gas and rows, validated as NewHostLists does, and
+// reuses h's scratch so a host that hands over its lists every step
+// allocates nothing once the gas stops growing. A failed Reset leaves h as
+// it was.
+func (h *HostLists) Reset(pos []float64, ids []int64, box Box, offsets, indices []int) error {
+	n, err := checkGas(pos, ids, box, &h.seen)
 	if err != nil {
-		return nil, fmt.Errorf("neighbor: host lists: %w", err)
+		return fmt.Errorf("neighbor: host lists: %w", err)
 	}
 	if len(offsets) == 0 {
-		return nil, fmt.Errorf("neighbor: host lists: offsets is empty, want one entry per star plus one: %w", ErrInvalid)
+		return fmt.Errorf("neighbor: host lists: offsets is empty, want one entry per star plus one: %w", ErrInvalid)
 	}
 	if offsets[0] != 0 {
-		return nil, fmt.Errorf("neighbor: host lists: offsets[0] = %d, want 0: %w", offsets[0], ErrInvalid)
+		return fmt.Errorf("neighbor: host lists: offsets[0] = %d, want 0: %w", offsets[0], ErrInvalid)
 	}
 	if last := offsets[len(offsets)-1]; last != len(indices) {
-		return nil, fmt.Errorf("neighbor: host lists: last offset %d, want len(indices) = %d: %w", last, len(indices), ErrInvalid)
+		return fmt.Errorf("neighbor: host lists: last offset %d, want len(indices) = %d: %w", last, len(indices), ErrInvalid)
 	}
-	mark := make([]int, n) // last row (plus one) that named each element
+	// mark holds, per element, the last row (plus one) that named it.
+	if cap(h.mark) < n {
+		h.mark = make([]int, n)
+	}
+	mark := h.mark[:n]
+	clear(mark)
 	for s := 0; s+1 < len(offsets); s++ {
 		if offsets[s+1] < offsets[s] {
-			return nil, fmt.Errorf("neighbor: host lists: offsets[%d] = %d < offsets[%d] = %d: %w", s+1, offsets[s+1], s, offsets[s], ErrInvalid)
+			return fmt.Errorf("neighbor: host lists: offsets[%d] = %d < offsets[%d] = %d: %w", s+1, offsets[s+1], s, offsets[s], ErrInvalid)
 		}
 		for _, i := range indices[offsets[s]:offsets[s+1]] {
 			if i < 0 || i >= n {
-				return nil, fmt.Errorf("neighbor: host lists: row %d names gas index %d, want [0, %d): %w", s, i, n, ErrInvalid)
+				return fmt.Errorf("neighbor: host lists: row %d names gas index %d, want [0, %d): %w", s, i, n, ErrInvalid)
 			}
 			if mark[i] == s+1 {
-				return nil, fmt.Errorf("neighbor: host lists: row %d names gas index %d twice: %w", s, i, ErrInvalid)
+				return fmt.Errorf("neighbor: host lists: row %d names gas index %d twice: %w", s, i, ErrInvalid)
 			}
 			mark[i] = s + 1
 		}
 	}
-	return &HostLists{box: box, pos: pos, ids: ids, offsets: offsets, indices: indices}, nil
+	h.box, h.pos, h.ids, h.offsets, h.indices = box, pos, ids, offsets, indices
+	return nil
 }
 
 // Stars returns the number of rows.
