@@ -252,6 +252,10 @@ type session struct {
 	applied  bool
 	incoming []feedback.Record
 	touched  []feedback.Touched
+
+	// pop is the population of ejecta_step_population (nil until
+	// ejecta_enable_population).
+	pop *population
 }
 
 // lookup turns a handle into its session, refusing 0, destroyed handles
@@ -540,6 +544,7 @@ func column(name string, f *fieldABI, n int, required bool) (feedback.Column, er
 func (s *session) bind(g *gasABI) error {
 	s.bound, s.treeFresh, s.index, s.stepped = false, false, nil, false
 	s.out.Records = s.out.Records[:0]
+	s.invalidatePopulation()
 	if g == nil {
 		return fail(codeNullPointer, "gas descriptor is NULL")
 	}
@@ -725,6 +730,7 @@ func (s *session) step(stars *starABI, n int64, mode int32, offsets, indices *in
 		return err
 	}
 	s.stepped, s.applied = false, false
+	s.invalidatePopulation()
 	if err := s.coupler.Couple(&s.gas, finder, s.sources, &s.out); err != nil {
 		return fail(codeInvalidArgument, "step: %w", err)
 	}

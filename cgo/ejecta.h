@@ -28,7 +28,8 @@
  *   running returns EJECTA_ERR_BUSY and changes nothing. Separate contexts
  *   share no state and may be used from separate threads at once. The
  *   context-free functions (ejecta_version, ejecta_config_defaults,
- *   ejecta_ledger_balanced) may be called from any thread at any time.
+ *   ejecta_population_defaults, ejecta_ledger_balanced) may be called from
+ *   any thread at any time.
  *   ejecta itself may run worker threads inside a call
  *   (ejecta_config.worker_threads); they have finished when the call
  *   returns.
@@ -95,6 +96,12 @@ extern "C" {
 #define EJECTA_ERR_IMBALANCE 12
 /* The records of the last step were already applied. */
 #define EJECTA_ERR_ALREADY_APPLIED 13
+/* ejecta_step_population was called on a context without a population
+ * (see ejecta_enable_population). */
+#define EJECTA_ERR_NO_POPULATION 14
+/* The yields table named in ejecta_population_config could not be read or
+ * is malformed; ejecta_last_error names the file and the line. */
+#define EJECTA_ERR_YIELDS_TABLE 15
 /* An internal failure of the library (a bug): the call was abandoned and
  * the context should be destroyed. The message says what happened. */
 #define EJECTA_ERR_INTERNAL 99
@@ -129,6 +136,12 @@ extern "C" {
 #define EJECTA_CHANNEL_TYPE_IA 1
 #define EJECTA_CHANNEL_MASSIVE_WINDS 2
 #define EJECTA_CHANNEL_AGB_WINDS 3
+/* Channels only a population step drives (ejecta_record.channel,
+ * ejecta_get_channel_ledger); not accepted in ejecta_star.channel. */
+#define EJECTA_CHANNEL_RADIATION_PRESSURE 4
+#define EJECTA_CHANNEL_PHOTOIONISATION 5
+/* Number of channels a population step drives (0..5 above). */
+#define EJECTA_NUM_STEP_CHANNELS 6
 
 /* Where a step finds each star's gas (ejecta_step's neighbour_mode). */
 /* ejecta's own k-d tree, built on the bound gas positions. */
@@ -268,7 +281,7 @@ typedef struct ejecta_star {
   double metallicity;
   /* Code time since formation. */
   double age;
-  /* EJECTA_CHANNEL_*. */
+  /* EJECTA_CHANNEL_CORE_COLLAPSE .. EJECTA_CHANNEL_AGB_WINDS. */
   int32_t channel;
   int32_t reserved;
   /* Release: ejected mass, its species masses (species_mass[s] <=
@@ -380,6 +393,92 @@ typedef struct ejecta_touched {
   uint32_t flags;
   int32_t reserved;
 } ejecta_touched;
+
+/* ---- population steps --------------------------------------------------
+ *
+ * With a population enabled on a context (ejecta_enable_population), the
+ * host hands ejecta only its star particles and the step length; ejecta
+ * works out what each star releases over [age, age + dt] from a stellar
+ * population model (core-collapse and Type Ia supernovae drawn as whole
+ * events, winds, radiation pressure, photoionisation), couples every
+ * channel and keeps records and ledger exactly as ejecta_step does.
+ *
+ * The population has its own struct and call rather than fields of
+ * ejecta_config so that ejecta_config's layout, and every host that fills
+ * it, stays as it is: a context without a population behaves exactly as
+ * before, and a host that wants population steps adds one call after
+ * ejecta_create. The scheme, remnant fit, weighting, neighbours, units,
+ * box, workers and seed of the context's ejecta_config apply: the scheme
+ * couples the supernovae, winds use the remnant fit of the scheme (when it
+ * has one), radiation pressure and photoionisation their built-in
+ * schemes. */
+
+/* A stellar population model. Fill it with ejecta_population_defaults
+ * first, then change what you need. */
+typedef struct ejecta_population_config {
+  /* NUL-terminated initial mass function of the built-in population:
+   * "salpeter" (Salpeter 1955), "kroupa" (Kroupa 2001) or "chabrier"
+   * (Chabrier 2003); empty means kroupa. */
+  char imf[EJECTA_NAME_CAPACITY];
+  /* IMF mass range in Msun (whatever the code units); 0 means 0.1 and
+   * 100. Finite, >= 0, min < max. */
+  double imf_min_mass;
+  double imf_max_mass;
+  /* A step in which some star expects more supernovae than this makes
+   * ejecta_suggested_step report a smaller step; 0 means 10; >= 0. */
+  double max_supernovae_per_step;
+  /* NULL or "": the built-in population above. Otherwise the path of a
+   * yields table in ejecta's CSV format (testdata/yields/README.md; at
+   * most 4095 bytes, NUL-terminated), read once by
+   * ejecta_enable_population; the table replaces the built-in population,
+   * so the IMF fields are then only checked, not used. */
+  const char *yields_table;
+  /* Channel switches, 1 on and 0 off: stellar winds (massive and AGB; off
+   * also keeps their mass on the star), radiation pressure,
+   * photoionisation. Defaults 1. */
+  int32_t winds;
+  int32_t radiation_pressure;
+  int32_t photoionisation;
+  /* 1: flag the gas touched by supernovae to have its cooling switched off
+   * for the blast-wave time (EJECTA_FLAG_COOLING_OFF with
+   * cooling_off_until in the records and ejecta_touched). Default 0. */
+  int32_t delayed_cooling;
+} ejecta_population_config;
+
+/* One star particle as a population step sees it, code units. */
+typedef struct ejecta_star_particle {
+  /* Unique among the stars of a step (and across ranks): orders records
+   * and keys the supernova draws. */
+  int64_t id;
+  double position[3];
+  double velocity[3];
+  /* Current mass (after earlier mass loss), >= 0. */
+  double mass;
+  /* Stellar mass the particle formed with, >= 0: releases scale with it. */
+  double formed_mass;
+  /* Metal mass fraction, in [0, 1). */
+  double metallicity;
+  /* Code time since formation at the start of the step, >= 0. */
+  double age;
+  /* Energy returned undeposited by earlier steps (the carried_energy of
+   * ejecta_star_result; 0 at formation), >= 0. It is added to this step's
+   * core-collapse energy. */
+  double carried_energy;
+} ejecta_star_particle;
+
+/* What one star did in the last population step. */
+typedef struct ejecta_star_result {
+  int64_t id;
+  /* Mass the star released and ejecta deposited this step (code mass):
+   * take it off the star particle's mass. */
+  double mass_loss;
+  /* Energy returned undeposited this step (code energy): pass it back as
+   * ejecta_star_particle.carried_energy next step. */
+  double carried_energy;
+  /* Supernovae drawn this step: core collapse and Type Ia. */
+  int64_t supernovae_cc;
+  int64_t supernovae_ia;
+} ejecta_star_result;
 
 #ifndef EJECTA_NO_PROTOTYPES
 
@@ -529,6 +628,91 @@ int ejecta_apply_records(ejecta_context context, const ejecta_record *records,
  * EJECTA_ERR_INVALID_ARGUMENT (capacity < 0), EJECTA_ERR_BUFFER_TOO_SMALL. */
 int ejecta_copy_touched(ejecta_context context, ejecta_touched *touched,
                         int64_t capacity, int64_t *written);
+
+/* ---- population steps ------------------------------------------------- */
+
+/* ejecta_population_defaults fills *config with the defaults: the built-in
+ * Kroupa population over 0.1-100 Msun (yields_table NULL), 10 supernovae
+ * per step before a smaller step is suggested, winds, radiation pressure
+ * and photoionisation on, delayed cooling off. Errors:
+ * EJECTA_ERR_NULL_POINTER. Thread safe. */
+int ejecta_population_defaults(ejecta_population_config *config);
+
+/* ejecta_enable_population checks *config, builds the population model
+ * (reading the yields table, if one is named) and makes it the model of
+ * the context's population steps, replacing any earlier one. The config
+ * and the path are copied; ejecta keeps no pointer. The model is built
+ * once here (a few tens of milliseconds for the built-in population).
+ * Errors: EJECTA_ERR_NULL_POINTER, EJECTA_ERR_UNKNOWN_NAME (IMF name
+ * unknown or not NUL-terminated), EJECTA_ERR_INVALID_ARGUMENT (IMF range
+ * not finite or not increasing, max_supernovae_per_step negative or NaN, a
+ * switch not 0 or 1, a path not NUL-terminated within 4096 bytes),
+ * EJECTA_ERR_YIELDS_TABLE (the table cannot be read or is malformed; the
+ * message names the file and line). On error the earlier population, if
+ * any, stays in force. */
+int ejecta_enable_population(ejecta_context context,
+                             const ejecta_population_config *config);
+
+/* ejecta_step_population advances n_stars star particles by dt (code
+ * time): it asks the population what each releases over [age, age + dt],
+ * draws its core-collapse and Type Ia supernovae from the counter-based
+ * generator keyed by (ejecta_config.seed, star ID, step_index), couples
+ * every channel into the bound gas and keeps the records and the summed
+ * ledger in the context, read and applied as after ejecta_step
+ * (ejecta_record_count, ejecta_copy_records, ejecta_get_ledger,
+ * ejecta_apply_step_records, ejecta_apply_records). The gas is not
+ * changed. Supernova ejecta mass and metals are released as their
+ * expectation every step, so mass and metal budgets are exact; the
+ * energy comes in whole events. The ledger sums the channels, so its
+ * stars counts star-channel releases (6 per star); per channel see
+ * ejecta_get_channel_ledger. Per-star results: ejecta_copy_star_results;
+ * a smaller step: ejecta_suggested_step. step_index (>= 0) is the host's:
+ * ranks stepping in lockstep pass the same index and draw the same
+ * numbers for a star; it is separate from the count ejecta_step keeps.
+ * neighbour_mode, row_offsets and row_indices are as in ejecta_step.
+ * Stars are copied; all are checked before anything is done. Errors:
+ * EJECTA_ERR_NULL_POINTER, EJECTA_ERR_INVALID_ARGUMENT (n_stars <= 0,
+ * step_index < 0, unknown mode, duplicate star IDs),
+ * EJECTA_ERR_BAD_VALUE (dt NaN, infinite or negative; a star field NaN,
+ * infinite or negative, metallicity >= 1), EJECTA_ERR_NO_POPULATION,
+ * EJECTA_ERR_NO_GAS, EJECTA_ERR_NEIGHBOURS, EJECTA_ERR_UNDEPOSITED (as in
+ * ejecta_step: completed, records, ledger and results valid; what was
+ * returned stays with the star: it is not in mass_loss, and its energy is
+ * in carried_energy). */
+int ejecta_step_population(ejecta_context context,
+                           const ejecta_star_particle *stars, int64_t n_stars,
+                           double dt, int64_t step_index,
+                           int32_t neighbour_mode, const int64_t *row_offsets,
+                           const int64_t *row_indices);
+
+/* ejecta_copy_star_results copies the per-star results of the last step,
+ * one per star in the order the stars were given, into results (capacity
+ * entries) and the number copied into *written. When the last step was an
+ * ejecta_step, or none ran since the gas was bound, there are none
+ * (*written = 0). Errors: EJECTA_ERR_NULL_POINTER (written NULL, or results
+ * NULL with capacity > 0), EJECTA_ERR_INVALID_ARGUMENT (capacity < 0),
+ * EJECTA_ERR_BUFFER_TOO_SMALL (the first capacity results were copied;
+ * *written is capacity and the number needed is the n_stars of the
+ * step). */
+int ejecta_copy_star_results(ejecta_context context,
+                             ejecta_star_result *results, int64_t capacity,
+                             int64_t *written);
+
+/* ejecta_suggested_step writes to *dt a smaller step (code time) when, in
+ * the last population step, some star expected more supernovae than
+ * max_supernovae_per_step (dt scaled so that it would expect that many),
+ * and 0 otherwise (also when the last step was not a population step).
+ * Errors: EJECTA_ERR_NULL_POINTER, EJECTA_ERR_INVALID_CONTEXT. */
+int ejecta_suggested_step(ejecta_context context, double *dt);
+
+/* ejecta_get_channel_ledger copies the ledger of one channel
+ * (EJECTA_CHANNEL_*, 0..EJECTA_NUM_STEP_CHANNELS-1) of the last population
+ * step into *ledger; the ledgers of the six channels sum to
+ * ejecta_get_ledger's. All zero when the last step was not a population
+ * step. Errors: EJECTA_ERR_NULL_POINTER, EJECTA_ERR_INVALID_ARGUMENT
+ * (channel out of range). */
+int ejecta_get_channel_ledger(ejecta_context context, int32_t channel,
+                              ejecta_ledger *ledger);
 
 /* ---- ledger arithmetic -------------------------------------------------- */
 

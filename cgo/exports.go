@@ -92,6 +92,39 @@ func ejecta_ledger_balanced(ledger *C.ejecta_ledger, relativeTolerance C.double,
 		(*byte)(unsafe.Pointer(message)), int64(capacity)))
 }
 
+//export ejecta_population_defaults
+func ejecta_population_defaults(config *C.ejecta_population_config) C.int {
+	return C.int(entryPopulationDefaults((*populationConfigABI)(unsafe.Pointer(config))))
+}
+
+//export ejecta_enable_population
+func ejecta_enable_population(context C.ejecta_context, config *C.ejecta_population_config) C.int {
+	return C.int(entryEnablePopulation(uint64(context), (*populationConfigABI)(unsafe.Pointer(config))))
+}
+
+//export ejecta_step_population
+func ejecta_step_population(context C.ejecta_context, stars *C.ejecta_star_particle, nStars C.int64_t, dt C.double,
+	stepIndex C.int64_t, neighbourMode C.int32_t, rowOffsets, rowIndices *C.int64_t) C.int {
+	return C.int(entryStepPopulation(uint64(context), (*starParticleABI)(unsafe.Pointer(stars)), int64(nStars), float64(dt),
+		int64(stepIndex), int32(neighbourMode), (*int64)(unsafe.Pointer(rowOffsets)), (*int64)(unsafe.Pointer(rowIndices))))
+}
+
+//export ejecta_copy_star_results
+func ejecta_copy_star_results(context C.ejecta_context, results *C.ejecta_star_result, capacity C.int64_t, written *C.int64_t) C.int {
+	return C.int(entryCopyStarResults(uint64(context), (*starResultABI)(unsafe.Pointer(results)), int64(capacity),
+		(*int64)(unsafe.Pointer(written))))
+}
+
+//export ejecta_suggested_step
+func ejecta_suggested_step(context C.ejecta_context, dt *C.double) C.int {
+	return C.int(entrySuggestedStep(uint64(context), (*float64)(unsafe.Pointer(dt))))
+}
+
+//export ejecta_get_channel_ledger
+func ejecta_get_channel_ledger(context C.ejecta_context, channel C.int32_t, ledger *C.ejecta_ledger) C.int {
+	return C.int(entryGetChannelLedger(uint64(context), int32(channel), (*ledgerABI)(unsafe.Pointer(ledger))))
+}
+
 // abiMismatches lists every difference between ejecta.h and the Go mirrors
 // of abi.go: struct sizes, field offsets and constants. Empty when they
 // agree.
@@ -205,6 +238,37 @@ func abiMismatches() []string {
 	eq("touched.cooling_off_until", unsafe.Offsetof(ct.cooling_off_until), unsafe.Offsetof(gt.CoolingOffUntil))
 	eq("touched.flags", unsafe.Offsetof(ct.flags), unsafe.Offsetof(gt.Flags))
 
+	var cpc C.ejecta_population_config
+	var gpc populationConfigABI
+	eq("sizeof population_config", unsafe.Sizeof(cpc), unsafe.Sizeof(gpc))
+	eq("population_config.imf_min_mass", unsafe.Offsetof(cpc.imf_min_mass), unsafe.Offsetof(gpc.IMFMinMass))
+	eq("population_config.imf_max_mass", unsafe.Offsetof(cpc.imf_max_mass), unsafe.Offsetof(gpc.IMFMaxMass))
+	eq("population_config.max_supernovae_per_step", unsafe.Offsetof(cpc.max_supernovae_per_step), unsafe.Offsetof(gpc.MaxSupernovaePerStep))
+	eq("population_config.yields_table", unsafe.Offsetof(cpc.yields_table), unsafe.Offsetof(gpc.YieldsTable))
+	eq("population_config.winds", unsafe.Offsetof(cpc.winds), unsafe.Offsetof(gpc.Winds))
+	eq("population_config.radiation_pressure", unsafe.Offsetof(cpc.radiation_pressure), unsafe.Offsetof(gpc.RadiationPressure))
+	eq("population_config.photoionisation", unsafe.Offsetof(cpc.photoionisation), unsafe.Offsetof(gpc.Photoionisation))
+	eq("population_config.delayed_cooling", unsafe.Offsetof(cpc.delayed_cooling), unsafe.Offsetof(gpc.DelayedCooling))
+
+	var csp C.ejecta_star_particle
+	var gsp starParticleABI
+	eq("sizeof star_particle", unsafe.Sizeof(csp), unsafe.Sizeof(gsp))
+	eq("star_particle.position", unsafe.Offsetof(csp.position), unsafe.Offsetof(gsp.Position))
+	eq("star_particle.velocity", unsafe.Offsetof(csp.velocity), unsafe.Offsetof(gsp.Velocity))
+	eq("star_particle.mass", unsafe.Offsetof(csp.mass), unsafe.Offsetof(gsp.Mass))
+	eq("star_particle.formed_mass", unsafe.Offsetof(csp.formed_mass), unsafe.Offsetof(gsp.FormedMass))
+	eq("star_particle.metallicity", unsafe.Offsetof(csp.metallicity), unsafe.Offsetof(gsp.Metallicity))
+	eq("star_particle.age", unsafe.Offsetof(csp.age), unsafe.Offsetof(gsp.Age))
+	eq("star_particle.carried_energy", unsafe.Offsetof(csp.carried_energy), unsafe.Offsetof(gsp.CarriedEnergy))
+
+	var csr C.ejecta_star_result
+	var gsr starResultABI
+	eq("sizeof star_result", unsafe.Sizeof(csr), unsafe.Sizeof(gsr))
+	eq("star_result.mass_loss", unsafe.Offsetof(csr.mass_loss), unsafe.Offsetof(gsr.MassLoss))
+	eq("star_result.carried_energy", unsafe.Offsetof(csr.carried_energy), unsafe.Offsetof(gsr.CarriedEnergy))
+	eq("star_result.supernovae_cc", unsafe.Offsetof(csr.supernovae_cc), unsafe.Offsetof(gsr.SupernovaeCC))
+	eq("star_result.supernovae_ia", unsafe.Offsetof(csr.supernovae_ia), unsafe.Offsetof(gsr.SupernovaeIa))
+
 	consts := []namedCode{
 		{"EJECTA_OK", C.EJECTA_OK, int64(codeOK)},
 		{"EJECTA_ERR_NULL_POINTER", C.EJECTA_ERR_NULL_POINTER, int64(codeNullPointer)},
@@ -220,6 +284,8 @@ func abiMismatches() []string {
 		{"EJECTA_ERR_UNDEPOSITED", C.EJECTA_ERR_UNDEPOSITED, int64(codeUndeposited)},
 		{"EJECTA_ERR_IMBALANCE", C.EJECTA_ERR_IMBALANCE, int64(codeImbalance)},
 		{"EJECTA_ERR_ALREADY_APPLIED", C.EJECTA_ERR_ALREADY_APPLIED, int64(codeAlreadyApplied)},
+		{"EJECTA_ERR_NO_POPULATION", C.EJECTA_ERR_NO_POPULATION, int64(codeNoPopulation)},
+		{"EJECTA_ERR_YIELDS_TABLE", C.EJECTA_ERR_YIELDS_TABLE, int64(codeYieldsTable)},
 		{"EJECTA_ERR_INTERNAL", C.EJECTA_ERR_INTERNAL, int64(codeInternal)},
 		{"EJECTA_ABI_VERSION", C.EJECTA_ABI_VERSION, int64(abiVersion)},
 		{"EJECTA_NAME_CAPACITY", C.EJECTA_NAME_CAPACITY, nameCapacity},
@@ -278,5 +344,8 @@ func speciesAndChannelCodes() []namedCode {
 		{"EJECTA_CHANNEL_TYPE_IA", C.EJECTA_CHANNEL_TYPE_IA, int64(yields.TypeIa)},
 		{"EJECTA_CHANNEL_MASSIVE_WINDS", C.EJECTA_CHANNEL_MASSIVE_WINDS, int64(yields.MassiveWinds)},
 		{"EJECTA_CHANNEL_AGB_WINDS", C.EJECTA_CHANNEL_AGB_WINDS, int64(yields.AGBWinds)},
+		{"EJECTA_CHANNEL_RADIATION_PRESSURE", C.EJECTA_CHANNEL_RADIATION_PRESSURE, int64(feedback.RadiationChannel)},
+		{"EJECTA_CHANNEL_PHOTOIONISATION", C.EJECTA_CHANNEL_PHOTOIONISATION, int64(feedback.PhotoionisationChannel)},
+		{"EJECTA_NUM_STEP_CHANNELS", C.EJECTA_NUM_STEP_CHANNELS, int64(numStepChannels)},
 	}
 }

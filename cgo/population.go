@@ -1,0 +1,437 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"unsafe"
+
+	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/neighbor"
+	"github.com/ejecta-dev/ejecta/yields"
+	"github.com/ejecta-dev/ejecta/yields/units"
+)
+
+// Codes and sizes of the population calls of ejecta.h (checked against the
+// header by abiMismatches).
+const (
+	codeNoPopulation int32 = 14
+	codeYieldsTable  int32 = 15
+	// pathCapacity bounds the length of a yields table path, NUL included.
+	pathCapacity      = 4096
+	numStepChannels   = feedback.NumStepChannels
+	defaultMaxPerStep = 10
+)
+
+// Go mirrors of the population structs of ejecta.h.
+
+type populationConfigABI struct {
+	IMF                  [nameCapacity]byte
+	IMFMinMass           float64
+	IMFMaxMass           float64
+	MaxSupernovaePerStep float64
+	YieldsTable          *byte
+	Winds                int32
+	RadiationPressure    int32
+	Photoionisation      int32
+	DelayedCooling       int32
+}
+
+type starParticleABI struct {
+	ID            int64
+	Position      [3]float64
+	Velocity      [3]float64
+	Mass          float64
+	FormedMass    float64
+	Metallicity   float64
+	Age           float64
+	CarriedEnergy float64
+}
+
+type starResultABI struct {
+	ID            int64
+	MassLoss      float64
+	CarriedEnergy float64
+	SupernovaeCC  int64
+	SupernovaeIa  int64
+}
+
+// population is the state of a context's population steps: the stepper
+// built by ejecta_enable_population and the buffers and results of the
+// last population step.
+type population struct {
+	stepper *feedback.Stepper
+	model   yields.Model
+	seed    uint64
+
+	stars []feedback.StarParticle
+	out   feedback.StepOutput
+	// counts holds each star's supernovae of the last step (core collapse,
+	// Ia); valid says the results belong to the last step of the context.
+	counts [][2]int64
+	valid  bool
+}
+
+// defaultPopulationConfig is what ejecta_population_defaults writes.
+func defaultPopulationConfig() populationConfigABI {
+	c := populationConfigABI{
+		IMFMinMass: yields.DefaultIMFMinMass, IMFMaxMass: yields.DefaultIMFMaxMass,
+		MaxSupernovaePerStep: defaultMaxPerStep,
+		Winds:                1, RadiationPressure: 1, Photoionisation: 1,
+	}
+	copy(c.IMF[:], yields.Kroupa.String())
+	return c
+}
+
+// cPath reads a NUL-terminated path of at most pathCapacity-1 bytes; nil
+// reads as empty.
+func cPath(p *byte) (string, error) {
+	if p == nil {
+		return "", nil
+	}
+	b := unsafe.Slice(p, pathCapacity)
+	for i := range b {
+		if b[i] == 0 {
+			return string(b[:i]), nil
+		}
+	}
+	return "", fail(codeInvalidArgument, "population yields_table: not NUL-terminated within %d bytes", pathCapacity)
+}
+
+// switchOn reads a 0/1 switch.
+func switchOn(name string, v int32) (bool, error) {
+	switch v {
+	case 0:
+		return false, nil
+	case 1:
+		return true, nil
+	}
+	return false, fail(codeInvalidArgument, "population %s %d: want 0 or 1", name, v)
+}
+
+// populationModel builds the yields model a population config names: the
+// table at its path, else the built-in population with its IMF.
+func populationModel(c *populationConfigABI) (yields.Model, error) {
+	imfName, err := cName("imf", &c.IMF)
+	if err != nil {
+		return nil, fmt.Errorf("population: %w", err)
+	}
+	ycfg := yields.DefaultConfig()
+	if imfName != "" {
+		form, err := yields.ParseIMFForm(imfName)
+		if err != nil {
+			return nil, fail(codeUnknownName, "population imf: %w", err)
+		}
+		ycfg.IMF = form
+	}
+	lo, hi := c.IMFMinMass, c.IMFMaxMass
+	if !(lo >= 0) || !(hi >= 0) || math.IsInf(lo, 0) || math.IsInf(hi, 0) {
+		return nil, fail(codeInvalidArgument, "population IMF mass range [%g, %g] Msun must be finite and >= 0", lo, hi)
+	}
+	if lo > 0 {
+		ycfg.IMFMinMass = lo
+	}
+	if hi > 0 {
+		ycfg.IMFMaxMass = hi
+	}
+	if !(ycfg.IMFMinMass < ycfg.IMFMaxMass) {
+		return nil, fail(codeInvalidArgument, "population IMF mass range [%g, %g] Msun: want min < max", ycfg.IMFMinMass, ycfg.IMFMaxMass)
+	}
+	path, err := cPath(c.YieldsTable)
+	if err != nil {
+		return nil, err
+	}
+	if path != "" {
+		t, err := yields.ReadTableFile(path)
+		if err != nil {
+			return nil, fail(codeYieldsTable, "population yields_table: %w", err)
+		}
+		return t, nil
+	}
+	p, err := yields.NewPopulation(ycfg)
+	if err != nil {
+		return nil, fail(codeInvalidArgument, "population: %w", err)
+	}
+	return p, nil
+}
+
+// enablePopulation is behind ejecta_enable_population. The new population
+// replaces the old one only when it is complete.
+func (s *session) enablePopulation(c *populationConfigABI) error {
+	if c == nil {
+		return fail(codeNullPointer, "population config is NULL")
+	}
+	if m := c.MaxSupernovaePerStep; !(m >= 0) || math.IsInf(m, 0) {
+		return fail(codeInvalidArgument, "population max_supernovae_per_step %g must be finite and >= 0", m)
+	}
+	winds, err := switchOn("winds", c.Winds)
+	if err != nil {
+		return err
+	}
+	radiation, err := switchOn("radiation_pressure", c.RadiationPressure)
+	if err != nil {
+		return err
+	}
+	ionisation, err := switchOn("photoionisation", c.Photoionisation)
+	if err != nil {
+		return err
+	}
+	cooling, err := switchOn("delayed_cooling", c.DelayedCooling)
+	if err != nil {
+		return err
+	}
+	model, err := populationModel(c)
+	if err != nil {
+		return err
+	}
+	st, err := feedback.NewStepper(feedback.StepConfig{
+		Coupling: s.cfg, Model: model, Seed: s.seed,
+		SkipWinds: !winds, SkipRadiation: !radiation, SkipPhotoionisation: !ionisation,
+		DelayedCooling: cooling, MaxSupernovaePerStep: c.MaxSupernovaePerStep,
+	})
+	if err != nil {
+		return fail(codeInvalidArgument, "population: %w", err)
+	}
+	s.pop = &population{stepper: st, model: model, seed: s.seed}
+	return nil
+}
+
+// starParticle converts and checks one C star particle.
+func starParticle(p *starParticleABI) (feedback.StarParticle, error) {
+	sp := feedback.StarParticle{
+		Star: feedback.Star{ID: p.ID, Pos: p.Position, Vel: p.Velocity, Mass: p.Mass,
+			Metallicity: p.Metallicity, Age: p.Age},
+		FormedMass: p.FormedMass, CarriedEnergy: p.CarriedEnergy,
+	}
+	for a := 0; a < 3; a++ {
+		if !finite(p.Position[a]) || !finite(p.Velocity[a]) {
+			return sp, fail(codeBadValue, "star %d: position %v and velocity %v must be finite", p.ID, p.Position, p.Velocity)
+		}
+	}
+	fields := []struct {
+		name string
+		v    float64
+	}{
+		{"mass", p.Mass}, {"formed_mass", p.FormedMass}, {"metallicity", p.Metallicity},
+		{"age", p.Age}, {"carried_energy", p.CarriedEnergy},
+	}
+	for _, f := range fields {
+		if !finite(f.v) || f.v < 0 {
+			return sp, fail(codeBadValue, "star %d: %s %g must be finite and >= 0", p.ID, f.name, f.v)
+		}
+	}
+	if p.Metallicity >= 1 {
+		return sp, fail(codeBadValue, "star %d: metallicity %g must be below 1", p.ID, p.Metallicity)
+	}
+	return sp, nil
+}
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// stepPopulation is behind ejecta_step_population.
+func (s *session) stepPopulation(stars *starParticleABI, n int64, dt float64, step int64, mode int32, offsets, indices *int64) error {
+	if stars == nil {
+		return fail(codeNullPointer, "stars is NULL")
+	}
+	if n <= 0 || n > math.MaxInt32 {
+		return fail(codeInvalidArgument, "n_stars %d must be positive", n)
+	}
+	if !finite(dt) || dt < 0 {
+		return fail(codeBadValue, "dt %g must be finite and >= 0", dt)
+	}
+	if step < 0 {
+		return fail(codeInvalidArgument, "step_index %d must be >= 0", step)
+	}
+	if mode != modeOwnFinder && mode != modeHostRows {
+		return fail(codeInvalidArgument, "neighbour_mode %d: want %d (own finder) or %d (host rows)", mode, modeOwnFinder, modeHostRows)
+	}
+	p := s.pop
+	if p == nil {
+		return fail(codeNoPopulation, "no population: call ejecta_enable_population first")
+	}
+	if !s.bound {
+		return fail(codeNoGas, "no gas bound: call ejecta_bind_gas first")
+	}
+	cs := unsafe.Slice(stars, n)
+	p.stars = p.stars[:0]
+	s.starIDs = s.starIDs[:0]
+	for i := range cs {
+		sp, err := starParticle(&cs[i])
+		if err != nil {
+			return fmt.Errorf("star %d of %d: %w", i, n, err)
+		}
+		p.stars = append(p.stars, sp)
+		s.starIDs = append(s.starIDs, sp.ID)
+	}
+	slices.Sort(s.starIDs)
+	for i := 1; i < len(s.starIDs); i++ {
+		if s.starIDs[i] == s.starIDs[i-1] {
+			return fail(codeInvalidArgument, "star ID %d appears twice in the batch", s.starIDs[i])
+		}
+	}
+	var finder neighbor.Finder
+	var err error
+	if mode == modeOwnFinder {
+		finder, err = s.ownFinder()
+	} else {
+		finder, err = s.rowFinder(int(n), offsets, indices)
+	}
+	if err != nil {
+		return err
+	}
+	s.stepped, s.applied, p.valid = false, false, false
+	if err := p.stepper.Step(&s.gas, finder, p.stars, uint64(step), dt, &p.out); err != nil {
+		s.out.Records, s.out.Problems, s.out.Ledger = s.out.Records[:0], s.out.Problems[:0], feedback.Ledger{}
+		return fail(codeInvalidArgument, "population step: %w", err)
+	}
+	// The step's records and ledger become the context's, as after
+	// ejecta_step; the buffers are swapped, not copied.
+	s.out.Records, p.out.Records = p.out.Records, s.out.Records
+	s.out.Problems, p.out.Problems = p.out.Problems, s.out.Problems
+	s.out.Ledger = p.out.Ledger
+	s.stepped = true
+	if err := p.countSupernovae(s.cfg.Units, uint64(step), dt); err != nil {
+		return err
+	}
+	p.valid = true
+	if pr := s.out.Problems; len(pr) > 0 {
+		return fail(codeUndeposited, "%d star-channel releases of %d stars returned undeposited; first: star %d (index %d): %v",
+			len(pr), n, pr[0].StarID, pr[0].Index, pr[0].Err)
+	}
+	return nil
+}
+
+// countSupernovae finds each star's supernovae of the step. The stepper
+// reports only the batch's totals, so the draws are made again here with
+// the same key (seed, star ID, step, channel) and mean (the model's
+// expected events over the step times the stars formed); the totals must
+// agree with the stepper's, else the step is refused as an internal error.
+func (p *population) countSupernovae(u units.CodeUnits, step uint64, dt float64) error {
+	myr := u.TimeS() / units.Megayear
+	msun := u.MassG / units.SolarMass
+	p.counts = slices.Grow(p.counts[:0], len(p.stars))[:len(p.stars)]
+	var total [2]int64
+	for i := range p.stars {
+		st := &p.stars[i]
+		age0 := st.Age * myr
+		rel, err := p.model.Release(age0, age0+dt*myr, st.Metallicity)
+		if err != nil {
+			return fail(codeInternal, "star %d: counting supernovae: %w", st.ID, err)
+		}
+		for _, c := range []yields.Channel{yields.CoreCollapse, yields.TypeIa} {
+			mean := math.Max(rel.Channels[c].Events, 0) * (st.FormedMass * msun)
+			rng := yields.NewCounterRNG(p.seed, uint64(st.ID), step, uint64(c))
+			k := int64(yields.Poisson(&rng, mean))
+			p.counts[i][c] = k
+			total[c] += k
+		}
+	}
+	for c := range total {
+		if total[c] != int64(p.out.Supernovae[c]) {
+			return fail(codeInternal, "per-star %s supernovae add up to %d, the step drew %d",
+				yields.Channel(c), total[c], p.out.Supernovae[c])
+		}
+	}
+	return nil
+}
+
+// invalidatePopulation drops the results of the last population step
+// (another step ran, or the gas was rebound).
+func (s *session) invalidatePopulation() {
+	if s.pop != nil {
+		s.pop.valid = false
+	}
+}
+
+// popResults returns the population of the context if its results are
+// those of the last step.
+func (s *session) popResults() *population {
+	if s.pop == nil || !s.pop.valid {
+		return nil
+	}
+	return s.pop
+}
+
+func entryPopulationDefaults(c *populationConfigABI) int32 {
+	return codeOf(guard(func() error {
+		if c == nil {
+			return fail(codeNullPointer, "population config is NULL")
+		}
+		*c = defaultPopulationConfig()
+		return nil
+	}))
+}
+
+func entryEnablePopulation(h uint64, c *populationConfigABI) int32 {
+	return withSession(h, func(s *session) error { return s.enablePopulation(c) })
+}
+
+func entryStepPopulation(h uint64, stars *starParticleABI, n int64, dt float64, step int64, mode int32, offsets, indices *int64) int32 {
+	return withSession(h, func(s *session) error {
+		return s.stepPopulation(stars, n, dt, step, mode, offsets, indices)
+	})
+}
+
+func entryCopyStarResults(h uint64, dst *starResultABI, capacity int64, written *int64) int32 {
+	return withSession(h, func(s *session) error {
+		if written == nil {
+			return fail(codeNullPointer, "written is NULL")
+		}
+		*written = 0
+		if capacity < 0 {
+			return fail(codeInvalidArgument, "capacity %d must be >= 0", capacity)
+		}
+		if dst == nil && capacity > 0 {
+			return fail(codeNullPointer, "results is NULL with capacity %d", capacity)
+		}
+		p := s.popResults()
+		if p == nil {
+			return nil
+		}
+		all := int64(len(p.stars))
+		k := min(all, capacity)
+		if k > 0 {
+			d := unsafe.Slice(dst, k)
+			for i := range d {
+				d[i] = starResultABI{
+					ID: p.stars[i].ID, MassLoss: p.out.MassLoss[i], CarriedEnergy: p.out.Carry[i],
+					SupernovaeCC: p.counts[i][yields.CoreCollapse], SupernovaeIa: p.counts[i][yields.TypeIa],
+				}
+			}
+		}
+		*written = k
+		if k < all {
+			return fail(codeBufferTooSmall, "%d star results, buffer holds %d", all, capacity)
+		}
+		return nil
+	})
+}
+
+func entrySuggestedStep(h uint64, dt *float64) int32 {
+	return withSession(h, func(s *session) error {
+		if dt == nil {
+			return fail(codeNullPointer, "dt is NULL")
+		}
+		*dt = 0
+		if p := s.popResults(); p != nil {
+			*dt = p.out.SuggestedStep
+		}
+		return nil
+	})
+}
+
+func entryGetChannelLedger(h uint64, channel int32, dst *ledgerABI) int32 {
+	return withSession(h, func(s *session) error {
+		if dst == nil {
+			return fail(codeNullPointer, "ledger is NULL")
+		}
+		if channel < 0 || int(channel) >= numStepChannels {
+			return fail(codeInvalidArgument, "channel %d outside 0..%d", channel, numStepChannels-1)
+		}
+		*dst = ledgerABI{}
+		if p := s.popResults(); p != nil {
+			*dst = ledgerToABI(&p.out.Channels[channel])
+		}
+		return nil
+	})
+}
