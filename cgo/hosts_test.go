@@ -54,6 +54,38 @@ func TestHostC(t *testing.T) {
 	}
 }
 
+// TestHostCPopulation runs examples/population_host.c, which steps three
+// star particles through ejecta_step_population and checks every step's
+// ledger and the gas's mass gain itself, once with the built-in population
+// and once with the example yields table.
+func TestHostCPopulation(t *testing.T) {
+	lib := libraryDir(t)
+	gcc := requireTool(t, "gcc")
+	src := filepath.Join("examples", "population_host.c")
+	table, err := filepath.Abs(exampleTable)
+	require.NoError(t, err)
+	for _, mode := range linkModes {
+		t.Run(mode.name, func(t *testing.T) {
+			bin := filepath.Join(t.TempDir(), "population_host")
+			args := append([]string{"-std=c11", "-Wall", "-Wextra", "-Werror", "-O1", "-I."}, mode.cflag...)
+			args = append(args, "-o", bin, src)
+			args = append(args, mode.flags(lib)...)
+			args = append(args, "-lm")
+			compile(t, gcc, args...)
+			for _, model := range [][]string{nil, {table}} {
+				out := runHost(t, bin, model...)
+				require.Contains(t, out, "result pass")
+				kv := keyValues(out)
+				assert.InEpsilon(t, number(t, kv, "star_mass_loss"), number(t, kv, "gas_mass_gain"), 1e-9)
+				assert.Positive(t, number(t, kv, "supernovae_cc"))
+				assert.Contains(t, kv["imf_error"], "bottom-light")
+				assert.Contains(t, kv["table_error"], "/nonexistent/yields.csv")
+				assert.Contains(t, kv["star_error"], "age")
+			}
+		})
+	}
+}
+
 func TestHostFortran(t *testing.T) {
 	lib := libraryDir(t)
 	gfortran := requireTool(t, "gfortran")
