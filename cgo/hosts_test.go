@@ -106,6 +106,32 @@ func TestHostFortran(t *testing.T) {
 	}
 }
 
+// TestHostFortranPopulation runs examples/population_host.f90 through
+// ejecta_mod with the built-in population and with the example table.
+func TestHostFortranPopulation(t *testing.T) {
+	lib := libraryDir(t)
+	gfortran := requireTool(t, "gfortran")
+	table, err := filepath.Abs(exampleTable)
+	require.NoError(t, err)
+	for _, mode := range linkModes {
+		t.Run(mode.name, func(t *testing.T) {
+			dir := t.TempDir()
+			bin := filepath.Join(dir, "population_host")
+			args := append([]string{"-std=f2008", "-Wall", "-Werror", "-O1", "-J", dir}, mode.cflag...)
+			args = append(args, "-o", bin, filepath.Join("fortran", "ejecta_mod.f90"), filepath.Join("examples", "population_host.f90"))
+			args = append(args, mode.flags(lib)...)
+			compile(t, gfortran, args...)
+			for _, model := range [][]string{nil, {table}} {
+				out := runHost(t, bin, model...)
+				require.Contains(t, out, "result pass")
+				kv := keyValues(out)
+				assert.InEpsilon(t, number(t, kv, "star_mass_loss"), number(t, kv, "gas_mass_gain"), 1e-9)
+				assert.Contains(t, kv["imf_error"], "flat")
+			}
+		})
+	}
+}
+
 // TestHostMPIDecomposition runs the MPI host on 1, 2 and 4 ranks: the
 // final gas, gathered and sorted by ID, must be bitwise identical for every
 // rank count, and the ledgers summed over ranks must agree to round-off

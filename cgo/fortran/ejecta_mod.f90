@@ -16,7 +16,8 @@ module ejecta_mod
        EJECTA_ERR_INVALID_CONTEXT = 4, EJECTA_ERR_NO_GAS = 5, EJECTA_ERR_BAD_VALUE = 6, &
        EJECTA_ERR_NEIGHBOURS = 7, EJECTA_ERR_BUFFER_TOO_SMALL = 8, EJECTA_ERR_UNKNOWN_GAS = 9, &
        EJECTA_ERR_BUSY = 10, EJECTA_ERR_UNDEPOSITED = 11, EJECTA_ERR_IMBALANCE = 12, &
-       EJECTA_ERR_ALREADY_APPLIED = 13, EJECTA_ERR_INTERNAL = 99
+       EJECTA_ERR_ALREADY_APPLIED = 13, EJECTA_ERR_NO_POPULATION = 14, EJECTA_ERR_YIELDS_TABLE = 15, &
+       EJECTA_ERR_INTERNAL = 99
   integer(c_int32_t), parameter, public :: EJECTA_ABI_VERSION = 1
   ! Element types.
   integer(c_int32_t), parameter, public :: EJECTA_FLOAT64 = 1, EJECTA_FLOAT32 = 2, &
@@ -30,7 +31,9 @@ module ejecta_mod
   integer, parameter, public :: EJECTA_NUM_SPECIES = 12, EJECTA_NAME_CAPACITY = 48
   ! Channels, neighbour modes, record locating, flags.
   integer(c_int32_t), parameter, public :: EJECTA_CHANNEL_CORE_COLLAPSE = 0, EJECTA_CHANNEL_TYPE_IA = 1, &
-       EJECTA_CHANNEL_MASSIVE_WINDS = 2, EJECTA_CHANNEL_AGB_WINDS = 3
+       EJECTA_CHANNEL_MASSIVE_WINDS = 2, EJECTA_CHANNEL_AGB_WINDS = 3, &
+       EJECTA_CHANNEL_RADIATION_PRESSURE = 4, EJECTA_CHANNEL_PHOTOIONISATION = 5
+  integer, parameter, public :: EJECTA_NUM_STEP_CHANNELS = 6
   integer(c_int32_t), parameter, public :: EJECTA_NEIGHBOURS_OWN_FINDER = 0, EJECTA_NEIGHBOURS_HOST_ROWS = 1
   integer(c_int32_t), parameter, public :: EJECTA_LOCATE_BY_INDEX = 0, EJECTA_LOCATE_BY_ID = 1
   integer(c_int32_t), parameter, public :: EJECTA_FLAG_CAPPED = 1, EJECTA_FLAG_LIMITED = 2, &
@@ -110,6 +113,30 @@ module ejecta_mod
      integer(c_int32_t) :: flags, reserved
   end type ejecta_touched
 
+  ! ejecta_population_config. yields_table is c_null_ptr (built-in
+  ! population) or c_loc of a NUL-terminated character(kind=c_char) array
+  ! with the target attribute (see ejecta_c_string).
+  type, bind(c), public :: ejecta_population_config
+     character(kind=c_char) :: imf(EJECTA_NAME_CAPACITY)
+     real(c_double) :: imf_min_mass, imf_max_mass, max_supernovae_per_step
+     type(c_ptr) :: yields_table = c_null_ptr
+     integer(c_int32_t) :: winds, radiation_pressure, photoionisation, delayed_cooling
+  end type ejecta_population_config
+
+  type, bind(c), public :: ejecta_star_particle
+     integer(c_int64_t) :: id = 0
+     real(c_double) :: position(3) = 0, velocity(3) = 0
+     real(c_double) :: mass = 0, formed_mass = 0, metallicity = 0, age = 0, carried_energy = 0
+  end type ejecta_star_particle
+
+  type, bind(c), public :: ejecta_star_result
+     integer(c_int64_t) :: id
+     real(c_double) :: mass_loss, carried_energy
+     integer(c_int64_t) :: supernovae_cc, supernovae_ia
+  end type ejecta_star_result
+
+  public :: ejecta_population_defaults, ejecta_enable_population, ejecta_step_population, &
+       ejecta_copy_star_results, ejecta_suggested_step, ejecta_get_channel_ledger, ejecta_c_string
   public :: ejecta_version, ejecta_config_defaults, ejecta_create, ejecta_destroy, &
        ejecta_last_error, ejecta_bind_gas, ejecta_step, ejecta_record_count, &
        ejecta_copy_records, ejecta_get_ledger, ejecta_apply_step_records, &
@@ -220,9 +247,72 @@ module ejecta_mod
        character(kind=c_char), intent(out) :: message(*)
        integer(c_int64_t), value :: capacity
      end function ejecta_ledger_balanced
+
+     integer(c_int) function ejecta_population_defaults(config) bind(c, name='ejecta_population_defaults')
+       import :: c_int, ejecta_population_config
+       type(ejecta_population_config), intent(out) :: config
+     end function ejecta_population_defaults
+
+     integer(c_int) function ejecta_enable_population(context, config) bind(c, name='ejecta_enable_population')
+       import :: c_int, c_int64_t, ejecta_population_config
+       integer(c_int64_t), value :: context
+       type(ejecta_population_config), intent(in) :: config
+     end function ejecta_enable_population
+
+     ! row_offsets and row_indices as in ejecta_step.
+     integer(c_int) function ejecta_step_population(context, stars, n_stars, dt, step_index, neighbour_mode, &
+          row_offsets, row_indices) bind(c, name='ejecta_step_population')
+       import :: c_int, c_int64_t, c_int32_t, c_double, c_ptr, ejecta_star_particle
+       integer(c_int64_t), value :: context
+       type(ejecta_star_particle), intent(in) :: stars(*)
+       integer(c_int64_t), value :: n_stars
+       real(c_double), value :: dt
+       integer(c_int64_t), value :: step_index
+       integer(c_int32_t), value :: neighbour_mode
+       type(c_ptr), value :: row_offsets, row_indices
+     end function ejecta_step_population
+
+     integer(c_int) function ejecta_copy_star_results(context, results, capacity, written) &
+          bind(c, name='ejecta_copy_star_results')
+       import :: c_int, c_int64_t, ejecta_star_result
+       integer(c_int64_t), value :: context
+       type(ejecta_star_result), intent(out) :: results(*)
+       integer(c_int64_t), value :: capacity
+       integer(c_int64_t), intent(out) :: written
+     end function ejecta_copy_star_results
+
+     integer(c_int) function ejecta_suggested_step(context, dt) bind(c, name='ejecta_suggested_step')
+       import :: c_int, c_int64_t, c_double
+       integer(c_int64_t), value :: context
+       real(c_double), intent(out) :: dt
+     end function ejecta_suggested_step
+
+     integer(c_int) function ejecta_get_channel_ledger(context, channel, ledger) bind(c, name='ejecta_get_channel_ledger')
+       import :: c_int, c_int64_t, c_int32_t, ejecta_ledger
+       integer(c_int64_t), value :: context
+       integer(c_int32_t), value :: channel
+       type(ejecta_ledger), intent(out) :: ledger
+     end function ejecta_get_channel_ledger
   end interface
 
 contains
+
+  ! ejecta_c_string copies a Fortran string, trailing blanks dropped, into
+  ! a NUL-terminated character(kind=c_char) array (allocated here). Give
+  ! the array the target attribute and pass c_loc(array) as
+  ! ejecta_population_config%yields_table; keep it alive until
+  ! ejecta_enable_population returns.
+  subroutine ejecta_c_string(text, array)
+    character(len=*), intent(in) :: text
+    character(kind=c_char), allocatable, intent(out) :: array(:)
+    integer :: i, n
+    n = len_trim(text)
+    allocate(array(n + 1))
+    do i = 1, n
+       array(i) = text(i:i)
+    end do
+    array(n + 1) = c_null_char
+  end subroutine ejecta_c_string
 
   ! ejecta_set_name copies a Fortran string into a NUL-terminated name
   ! field of ejecta_config (scheme, remnant_fit, weighting). Trailing blanks
