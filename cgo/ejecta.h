@@ -203,7 +203,8 @@ typedef struct ejecta_config {
    * (stochastic-heating). Draws are keyed by (seed, star ID, step index),
    * the step index being the number of ejecta_step calls the context has
    * run before, so contexts on different ranks stepped in lockstep draw
-   * the same numbers for the same star. */
+   * the same numbers for the same star. Population steps also key their
+   * supernova draws with this seed, and use the host's step_index. */
   uint64_t seed;
   /* Count mode: each star couples to its neighbour_count nearest gas
    * elements (host rows: nearest of its row, which must be at least that

@@ -89,10 +89,10 @@ func cPath(p *byte) (string, error) {
 	if p == nil {
 		return "", nil
 	}
-	b := unsafe.Slice(p, pathCapacity)
-	for i := range b {
-		if b[i] == 0 {
-			return string(b[:i]), nil
+	// Byte by byte: no byte past the NUL is touched.
+	for i := 0; i < pathCapacity; i++ {
+		if *(*byte)(unsafe.Add(unsafe.Pointer(p), i)) == 0 {
+			return string(unsafe.Slice(p, i)), nil
 		}
 	}
 	return "", fail(codeInvalidArgument, "population yields_table: not NUL-terminated within %d bytes", pathCapacity)
