@@ -239,6 +239,7 @@ type session struct {
 
 	tree      *neighbor.Tree
 	treeFresh bool
+	rows      neighbor.HostLists
 	packed    []float64
 	ids       []int64
 	index     *feedback.IDIndex
@@ -660,11 +661,11 @@ func (s *session) rowFinder(n int, offsets, indices *int64) (neighbor.Finder, er
 	}
 	s.packed = s.gas.PackedPositions(s.packed)
 	s.ids = s.gas.IDs(s.ids)
-	f, err := neighbor.NewHostLists(s.packed, s.ids, s.cfg.Box, s.offsets, s.indices)
-	if err != nil {
+	// The host's rows are handed over every step: reuse the lists' scratch.
+	if err := s.rows.Reset(s.packed, s.ids, s.cfg.Box, s.offsets, s.indices); err != nil {
 		return nil, fail(codeNeighbours, "host rows: %w", err)
 	}
-	return f, nil
+	return &s.rows, nil
 }
 
 // starSource converts one C star into a source, checking it.

@@ -9,7 +9,6 @@ import (
 	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
-	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
 // Codes and sizes of the population calls of ejecta.h (checked against the
@@ -290,9 +289,7 @@ func (s *session) stepPopulation(stars *starParticleABI, n int64, dt float64, st
 	s.out.Problems, p.out.Problems = p.out.Problems, s.out.Problems
 	s.out.Ledger = p.out.Ledger
 	s.stepped = true
-	if err := p.countSupernovae(s.cfg.Units, uint64(step), dt); err != nil {
-		return err
-	}
+	p.countSupernovae()
 	p.valid = true
 	if pr := s.out.Problems; len(pr) > 0 {
 		return fail(codeUndeposited, "%d star-channel releases of %d stars returned undeposited; first: star %d (index %d): %v",
@@ -301,38 +298,14 @@ func (s *session) stepPopulation(stars *starParticleABI, n int64, dt float64, st
 	return nil
 }
 
-// countSupernovae finds each star's supernovae of the step. The stepper
-// reports only the batch's totals, so the draws are made again here with
-// the same key (seed, star ID, step, channel) and mean (the model's
-// expected events over the step times the stars formed); the totals must
-// agree with the stepper's, else the step is refused as an internal error.
-func (p *population) countSupernovae(u units.CodeUnits, step uint64, dt float64) error {
-	myr := u.TimeS() / units.Megayear
-	msun := u.MassG / units.SolarMass
+// countSupernovae copies each star's supernovae of the step from the
+// stepper's output.
+func (p *population) countSupernovae() {
 	p.counts = slices.Grow(p.counts[:0], len(p.stars))[:len(p.stars)]
-	var total [2]int64
-	for i := range p.stars {
-		st := &p.stars[i]
-		age0 := st.Age * myr
-		rel, err := p.model.Release(age0, age0+dt*myr, st.Metallicity)
-		if err != nil {
-			return fail(codeInternal, "star %d: counting supernovae: %w", st.ID, err)
-		}
-		for _, c := range []yields.Channel{yields.CoreCollapse, yields.TypeIa} {
-			mean := math.Max(rel.Channels[c].Events, 0) * (st.FormedMass * msun)
-			rng := yields.NewCounterRNG(p.seed, uint64(st.ID), step, uint64(c))
-			k := int64(yields.Poisson(&rng, mean))
-			p.counts[i][c] = k
-			total[c] += k
-		}
+	for i, n := range p.out.StarSupernovae {
+		p.counts[i][yields.CoreCollapse] = int64(n[yields.CoreCollapse])
+		p.counts[i][yields.TypeIa] = int64(n[yields.TypeIa])
 	}
-	for c := range total {
-		if total[c] != int64(p.out.Supernovae[c]) {
-			return fail(codeInternal, "per-star %s supernovae add up to %d, the step drew %d",
-				yields.Channel(c), total[c], p.out.Supernovae[c])
-		}
-	}
-	return nil
 }
 
 // invalidatePopulation drops the results of the last population step

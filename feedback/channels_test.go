@@ -207,6 +207,7 @@ func TestStepperSingleStarHundredMyr(t *testing.T) {
 			assert.Zero(t, rep.Shortfall)
 			total.Add(&out.Ledger)
 			snCounts += out.Supernovae[0]
+			require.Equal(t, out.Supernovae, out.StarSupernovae[0], "one star: its counts are the step's")
 			star.Mass -= out.MassLoss[0]
 			star.CarriedEnergy = out.Carry[0]
 		}

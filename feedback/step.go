@@ -84,8 +84,10 @@ type StepOutput struct {
 	// Ledger sums every channel; Channels holds each channel's own.
 	Ledger   Ledger
 	Channels [NumStepChannels]Ledger
-	// Supernovae counts the events drawn per channel (core-collapse, Ia).
-	Supernovae [2]int
+	// Supernovae counts the events drawn per channel (core-collapse, Ia);
+	// StarSupernovae holds each star's own counts.
+	Supernovae     [2]int
+	StarSupernovae [][2]int
 	// MassLoss is each star's mass released this step (code mass): the host
 	// takes it off the star particle.
 	MassLoss []float64
@@ -181,6 +183,11 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 	out.SuggestedStep = 0
 	out.MassLoss = resizeFloats(out.MassLoss, len(stars))
 	out.Carry = resizeFloats(out.Carry, len(stars))
+	if cap(out.StarSupernovae) < len(stars) {
+		out.StarSupernovae = make([][2]int, len(stars))
+	}
+	out.StarSupernovae = out.StarSupernovae[:len(stars)]
+	clear(out.StarSupernovae)
 	for c := range s.sources {
 		s.sources[c] = s.sources[c][:0]
 	}
@@ -222,6 +229,7 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 					src.Energy = float64(n) * ej.Energy / ej.Events * erg
 				}
 				out.Supernovae[c] += n
+				out.StarSupernovae[i][c] = n
 			} else {
 				src.Energy = ej.Energy * formed * erg
 			}
