@@ -127,12 +127,12 @@ func (s TerminalMomentum) Deposit(nb *Neighbourhood, out []Deposit) (float64, er
 		}
 		nb.Momentum[j] = w * rem.TerminalMomentum / pUnit
 		nb.MarkCapped()
-		rho := nb.Density[j] * rhoUnit
+		// (R_j / R_cool)^-6.5 with R_j^3 / R_cool^3 = swept / cooling mass.
 		swept := (nb.Mass[j] + w*src.Mass) / w * mUnit
-		r := math.Cbrt(3 * swept / (4 * math.Pi * rho))
+		ratio := swept / rem.CoolingMass(nb.Density[j]*rhoUnit)
 		keep := SedovThermalFraction
-		if r > rem.CoolingRadius {
-			keep *= math.Pow(r/rem.CoolingRadius, PostCoolingThermalExponent)
+		if ratio > 1 {
+			keep *= math.Exp(PostCoolingThermalExponent / 3 * math.Log(ratio))
 		}
 		nb.HeatCap[j] = keep * e
 	}

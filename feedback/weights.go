@@ -218,7 +218,9 @@ func tiltState(a []float64, n [][3]float64, lam [3]float64, t []float64) (float6
 		for j := range a {
 			e := lam[0]*n[j][0] + lam[1]*n[j][1] + lam[2]*n[j][2]
 			t[j] = e
-			emax = math.Max(emax, e)
+			if e > emax {
+				emax = e
+			}
 		}
 	}
 	var s float64
