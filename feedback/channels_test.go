@@ -260,3 +260,42 @@ func TestStepperDelayedCoolingFlags(t *testing.T) {
 	}
 	assert.Equal(t, feedback.DefaultNeighbours, flagged)
 }
+
+func TestStepperTypeIaIronAndWindEnergy(t *testing.T) {
+	// One 1e6 Msun population stepped once from 100 Myr to 13.8 Gyr: its Ia
+	// channel ejects about 0.7 Msun of iron per event (W7, Iwamoto et al.
+	// 1999, from memory) and draws a Poisson number of events around 1e-3
+	// per Msun formed over a Hubble time (Maoz & Mannucci 2012, from
+	// memory) for a t^-1 delay-time distribution. The massive-star winds of a young step carry the kinetic
+	// energy 1/2 M v^2 of the documented 2000 km/s wind (Lamers & Cassinelli
+	// 1999 terminal speeds, from memory).
+	u := pcMsunKms()
+	pop, err := yields.NewPopulation(yields.DefaultConfig())
+	require.NoError(t, err)
+	g := uniformGas(21, 400, 1e4, 1, u)
+	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
+	require.NoError(t, err)
+	st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u}, Model: pop, Seed: 8})
+	require.NoError(t, err)
+	myr := units.Megayear / u.TimeS()
+	const formed = 1e6
+	star := feedback.StarParticle{Star: feedback.Star{ID: 5, Mass: formed, Metallicity: 0.0134, Age: 100 * myr}, FormedMass: formed}
+	var out feedback.StepOutput
+	require.NoError(t, st.Step(g.View(), f, []feedback.StarParticle{star}, 0, (yields.HubbleTime-100)*myr, &out))
+	ia := out.Channels[yields.TypeIa]
+	rel, err := pop.Release(100, yields.HubbleTime, 0.0134)
+	require.NoError(t, err)
+	expected := rel.Channels[yields.TypeIa].Events * formed
+	assert.InDelta(t, 0.7, ia.In.Species[yields.Iron]/expected, 1e-9, "iron per expected event, Msun")
+	assert.InDelta(t, expected, float64(out.Supernovae[yields.TypeIa]), 5*math.Sqrt(expected))
+	// From 100 Myr on, the t^-1 law leaves ln(13800/100)/ln(13800/40) of
+	// the 1e-3 per Msun formed over a Hubble time (40 Myr minimum delay).
+	assert.InEpsilon(t, 1e-3*formed*math.Log(13800/100.0)/math.Log(13800/40.0), expected, 1e-6)
+
+	star.Age = 3 * myr
+	require.NoError(t, st.Step(g.View(), f, []feedback.StarParticle{star}, 1, myr, &out))
+	w := out.Channels[yields.MassiveWinds]
+	require.Positive(t, w.In.Mass)
+	v := 2000.0 // km/s, the code velocity unit here
+	assert.InEpsilon(t, 0.5*w.In.Mass*v*v, w.In.Energy, 1e-9, "wind energy 1/2 M v^2")
+}
