@@ -60,27 +60,52 @@ func CompareRecords(a, b *Record) int {
 	return int(a.Channel) - int(b.Channel)
 }
 
-// Apply adds records to the gas in place. It first sorts the records by
-// gas ID, star ID and channel, then sums each element's records in that
-// fixed order, so the result is bitwise the same whatever order the records
-// came in (any worker count, any star order, any rank count). For each
-// element it sets
+// Apply adds records to the gas in place. It orders the records by gas
+// ID, star ID and channel (without moving them), then sums each element's
+// records in that fixed order, so the result is bitwise the same whatever
+// order the records came in (any worker count, any star order, any rank
+// count). For each element it sets
 //
 //	m' = m + sum dm,  v' = (m v + sum dp) / m',  X'_s = (X_s m + sum dm_s) / m',
 //	u' = (m u + sum dE - (1/2 m' v'^2 - 1/2 m v^2)) / m',
 //
 // so the element's total energy grows by exactly the records' energies.
 // All records are checked before anything is written: a bad record (index
-// outside the gas, ID not matching the element at its index, non-finite
-// values, negative mass) fails the call and leaves the gas untouched.
-// touched (may be nil) is reused to return the timestep help, one entry per
-// element, in gas-ID order.
+// outside the gas, ID not matching the element at its index, one gas ID at
+// two indices, the same gas, star and channel twice, non-finite values,
+// negative mass) fails the call and leaves the gas untouched. touched (may
+// be nil) is reused to return the timestep help, one entry per element, in
+// gas-ID order. Apply allocates its ordering scratch on every call; an
+// Applier keeps it.
 func Apply(gas *Gas, records []Record, touched []Touched) ([]Touched, ApplyReport, error) {
+	var a Applier
+	return a.Apply(gas, records, touched)
+}
+
+// Applier applies records like Apply, keeping its scratch from call to
+// call. One Applier serves one call at a time.
+type Applier struct {
+	keys []applyKey
+}
+
+// applyKey is the order Apply sums in, with the record it stands for.
+type applyKey struct {
+	gas, star int64
+	channel   int32
+	index     int32
+}
+
+// Apply is the function Apply with reused scratch.
+func (ap *Applier) Apply(gas *Gas, records []Record, touched []Touched) ([]Touched, ApplyReport, error) {
 	var rep ApplyReport
 	touched = touched[:0]
 	if err := gas.Validate(); err != nil {
 		return touched, rep, fmt.Errorf("apply: %w", err)
 	}
+	if len(records) > math.MaxInt32 {
+		return touched, rep, fmt.Errorf("apply: %d records, at most %d per call", len(records), math.MaxInt32)
+	}
+	keys := ap.keys[:0]
 	for i := range records {
 		r := &records[i]
 		if r.GasIndex < 0 || r.GasIndex >= gas.N {
@@ -92,18 +117,36 @@ func Apply(gas *Gas, records []Record, touched []Touched) ([]Touched, ApplyRepor
 		if err := r.check(); err != nil {
 			return touched, rep, fmt.Errorf("apply: record %d (gas %d, star %d): %w", i, r.GasID, r.StarID, err)
 		}
+		keys = append(keys, applyKey{gas: r.GasID, star: r.StarID, channel: int32(r.Channel), index: int32(i)})
 	}
-	slices.SortFunc(records, func(a, b Record) int { return CompareRecords(&a, &b) })
-	for lo := 0; lo < len(records); {
+	ap.keys = keys
+	slices.SortFunc(keys, func(a, b applyKey) int {
+		if d := cmpInt64(a.gas, b.gas); d != 0 {
+			return d
+		}
+		if d := cmpInt64(a.star, b.star); d != 0 {
+			return d
+		}
+		return int(a.channel) - int(b.channel)
+	})
+	for k := 1; k < len(keys); k++ {
+		a, b := &keys[k-1], &keys[k]
+		if a.gas != b.gas {
+			continue
+		}
+		if records[a.index].GasIndex != records[b.index].GasIndex {
+			return touched, rep, fmt.Errorf("apply: gas ID %d appears at indices %d and %d", a.gas, records[a.index].GasIndex, records[b.index].GasIndex)
+		}
+		if a.star == b.star && a.channel == b.channel {
+			return touched, rep, fmt.Errorf("apply: two records for gas %d from star %d, channel %d (applied twice?)", a.gas, a.star, a.channel)
+		}
+	}
+	for lo := 0; lo < len(keys); {
 		hi := lo + 1
-		for hi < len(records) && records[hi].GasID == records[lo].GasID {
+		for hi < len(keys) && keys[hi].gas == keys[lo].gas {
 			hi++
 		}
-		if records[lo].GasIndex != records[hi-1].GasIndex {
-			return touched, rep, fmt.Errorf("apply: gas ID %d appears at two indices", records[lo].GasID)
-		}
-		t := applyElement(gas, records[lo:hi], &rep)
-		touched = append(touched, t)
+		touched = append(touched, applyElement(gas, records, keys[lo:hi], &rep))
 		rep.Elements++
 		lo = hi
 	}
@@ -129,19 +172,19 @@ func (r *Record) check() error {
 	return nil
 }
 
-// applyElement sums one element's records (already in order) and writes
-// its new state.
-func applyElement(gas *Gas, recs []Record, rep *ApplyReport) Touched {
-	i := recs[0].GasIndex
-	t := Touched{Index: i, ID: recs[0].GasID}
+// applyElement sums one element's records (keys in order) and writes its
+// new state.
+func applyElement(gas *Gas, records []Record, keys []applyKey, rep *ApplyReport) Touched {
+	i := records[keys[0].index].GasIndex
+	t := Touched{Index: i, ID: keys[0].gas}
 	m := gas.Mass.At(i)
 	v := gas.velocity(i)
 	u := gas.InternalEnergy.At(i)
 	var dm, de, rad float64
 	var dp [3]float64
 	var dsp yields.Abundances
-	for k := range recs {
-		r := &recs[k]
+	for _, key := range keys {
+		r := &records[key.index]
 		dm += r.Mass
 		for a := 0; a < 3; a++ {
 			dp[a] += r.Momentum[a]

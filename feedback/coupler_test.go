@@ -443,3 +443,24 @@ func TestCoupleAllocatesNothingInSteadyState(t *testing.T) {
 		assert.Zero(t, allocs, "radius %g: allocations per call of 100 stars", radius)
 	}
 }
+
+func TestApplierRejectsDuplicatesAndKeepsRecordOrder(t *testing.T) {
+	u := pcMsunKms()
+	g := uniformGas(14, 300, 10, 1, u)
+	out, _ := coupleOnce(t, g.Clone(), feedback.Config{Units: u, Neighbours: 16}, []feedback.Source{supernova(1, u), supernova(2, u)})
+	recs := append([]feedback.Record(nil), out.Records...)
+	before := g.Clone()
+	twice := append(append([]feedback.Record(nil), recs...), recs[3])
+	_, _, err := feedback.Apply(g.View(), twice, nil)
+	require.ErrorContains(t, err, "applied twice")
+	assert.Equal(t, before.Mass, g.Mass, "nothing written")
+
+	var ap feedback.Applier
+	view := g.View()
+	_, _, err = ap.Apply(view, recs, nil)
+	require.NoError(t, err)
+	assert.Equal(t, out.Records, recs, "records are not reordered")
+	touched := make([]feedback.Touched, 0, len(recs))
+	allocs := testing.AllocsPerRun(3, func() { touched, _, _ = ap.Apply(view, recs, touched) })
+	assert.Zero(t, allocs)
+}
