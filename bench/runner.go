@@ -571,6 +571,7 @@ func measureSpeed(c *Case, schemes []SchemeSpec, neighbours int, spec SpeedSpec,
 		}
 		bestFloor, bestScheme := math.Inf(1), math.Inf(1)
 		touched := 0
+		var applier feedback.Applier
 		start := time.Now()
 		for r := 0; r < rounds || time.Since(start) < spec.MinDuration; r++ {
 			// The floor pass is short; a few of them per round keep its
@@ -589,7 +590,7 @@ func measureSpeed(c *Case, schemes []SchemeSpec, neighbours int, spec SpeedSpec,
 			if err := cp.Couple(gas, tree, sources, &out); err != nil {
 				return nil, fmt.Errorf("speed: scheme %s: %w", s.Name, err)
 			}
-			touchedBuf, _, err = feedback.Apply(gas, out.Records, touchedBuf)
+			touchedBuf, _, err = applier.Apply(gas, out.Records, touchedBuf)
 			if err != nil {
 				return nil, fmt.Errorf("speed: scheme %s: apply: %w", s.Name, err)
 			}

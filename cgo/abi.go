@@ -240,6 +240,7 @@ type session struct {
 	tree      *neighbor.Tree
 	treeFresh bool
 	rows      neighbor.HostLists
+	applier   feedback.Applier
 	packed    []float64
 	ids       []int64
 	index     *feedback.IDIndex
@@ -759,7 +760,7 @@ func (s *session) checkLocated(recs []feedback.Record) error {
 }
 
 func (s *session) apply(recs []feedback.Record, report *applyReportABI) error {
-	touched, rep, err := feedback.Apply(&s.gas, recs, s.touched)
+	touched, rep, err := s.applier.Apply(&s.gas, recs, s.touched)
 	s.touched = touched
 	if err != nil {
 		return fail(codeBadValue, "%w", err)
