@@ -634,6 +634,21 @@ func (s *session) ownFinder() (neighbor.Finder, error) {
 	return s.tree, nil
 }
 
+// batchFinder checks that the batch's star IDs (in s.starIDs) are unique
+// and returns the finder of the step's neighbour mode.
+func (s *session) batchFinder(n int, mode int32, offsets, indices *int64) (neighbor.Finder, error) {
+	slices.Sort(s.starIDs)
+	for i := 1; i < len(s.starIDs); i++ {
+		if s.starIDs[i] == s.starIDs[i-1] {
+			return nil, fail(codeInvalidArgument, "star ID %d appears twice in the batch", s.starIDs[i])
+		}
+	}
+	if mode == modeOwnFinder {
+		return s.ownFinder()
+	}
+	return s.rowFinder(n, offsets, indices)
+}
+
 // rowFinder wraps the host's compressed rows.
 func (s *session) rowFinder(n int, offsets, indices *int64) (neighbor.Finder, error) {
 	if offsets == nil {
@@ -715,19 +730,7 @@ func (s *session) step(stars *starABI, n int64, mode int32, offsets, indices *in
 		s.sources = append(s.sources, src)
 		s.starIDs = append(s.starIDs, src.Star.ID)
 	}
-	slices.Sort(s.starIDs)
-	for i := 1; i < len(s.starIDs); i++ {
-		if s.starIDs[i] == s.starIDs[i-1] {
-			return fail(codeInvalidArgument, "star ID %d appears twice in the batch", s.starIDs[i])
-		}
-	}
-	var finder neighbor.Finder
-	var err error
-	if mode == modeOwnFinder {
-		finder, err = s.ownFinder()
-	} else {
-		finder, err = s.rowFinder(int(n), offsets, indices)
-	}
+	finder, err := s.batchFinder(int(n), mode, offsets, indices)
 	if err != nil {
 		return err
 	}

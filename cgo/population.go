@@ -7,7 +7,6 @@ import (
 	"unsafe"
 
 	"github.com/ejecta-dev/ejecta/feedback"
-	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
 )
 
@@ -262,19 +261,7 @@ func (s *session) stepPopulation(stars *starParticleABI, n int64, dt float64, st
 		p.stars = append(p.stars, sp)
 		s.starIDs = append(s.starIDs, sp.ID)
 	}
-	slices.Sort(s.starIDs)
-	for i := 1; i < len(s.starIDs); i++ {
-		if s.starIDs[i] == s.starIDs[i-1] {
-			return fail(codeInvalidArgument, "star ID %d appears twice in the batch", s.starIDs[i])
-		}
-	}
-	var finder neighbor.Finder
-	var err error
-	if mode == modeOwnFinder {
-		finder, err = s.ownFinder()
-	} else {
-		finder, err = s.rowFinder(int(n), offsets, indices)
-	}
+	finder, err := s.batchFinder(int(n), mode, offsets, indices)
 	if err != nil {
 		return err
 	}
