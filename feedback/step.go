@@ -112,6 +112,7 @@ type StepOutput struct {
 type Stepper struct {
 	cfg      StepConfig
 	couplers [NumStepChannels]*Coupler
+	search   sharedSearch
 	sources  [NumStepChannels][]Source
 	outs     [NumStepChannels]Output
 }
@@ -263,9 +264,14 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 	if maxExpected > s.cfg.MaxSupernovaePerStep {
 		out.SuggestedStep = dt * s.cfg.MaxSupernovaePerStep / maxExpected
 	}
+	// One neighbour search per star serves every channel.
+	if finder == nil {
+		return errors.New("step: nil neighbour finder")
+	}
+	s.search.fill(finder, stars, s.couplers[0].Config())
 	for c := range s.couplers {
 		o := &s.outs[c]
-		if err := s.couplers[c].Couple(gas, finder, s.sources[c], o); err != nil {
+		if err := s.couplers[c].Couple(gas, &s.search, s.sources[c], o); err != nil {
 			return fmt.Errorf("step: channel %s: %w", ChannelName(yields.Channel(c)), err)
 		}
 		if s.cfg.DelayedCooling && yields.Channel(c).Discrete() {

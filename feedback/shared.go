@@ -1,0 +1,106 @@
+package feedback
+
+import (
+	"fmt"
+	"math"
+	"sync"
+	"sync/atomic"
+
+	"github.com/ejecta-dev/ejecta/neighbor"
+)
+
+// sharedSearch finds each star's neighbours once per step and answers every
+// channel's coupler from that one search: all channels of a step couple
+// the same stars to the same gas. It implements neighbor.Finder for queries
+// whose Query.Star is the star's index in the step.
+type sharedSearch struct {
+	rows [][]neighbor.Neighbor
+	errs []error
+	next atomic.Int64
+	wg   sync.WaitGroup
+}
+
+// fill runs the search for every star with the coupling configuration's
+// neighbour count or radius, on workers goroutines.
+func (s *sharedSearch) fill(f neighbor.Finder, stars []StarParticle, cfg Config) {
+	n := len(stars)
+	if cap(s.rows) < n {
+		rows := make([][]neighbor.Neighbor, n)
+		copy(rows, s.rows[:cap(s.rows)])
+		s.rows = rows
+		s.errs = make([]error, n)
+	}
+	s.rows, s.errs = s.rows[:n], s.errs[:n]
+	search := func(i int) {
+		q := neighbor.Query{Pos: stars[i].Pos, Star: i}
+		if cfg.Radius > 0 {
+			s.rows[i], s.errs[i] = f.Within(q, cfg.Radius, s.rows[i])
+		} else {
+			s.rows[i], s.errs[i] = f.Nearest(q, cfg.Neighbours, s.rows[i])
+		}
+	}
+	if cfg.Workers <= 1 || n <= couplerChunk {
+		for i := range stars {
+			search(i)
+		}
+		return
+	}
+	s.next.Store(0)
+	for w := 0; w < cfg.Workers; w++ {
+		s.wg.Add(1)
+		go func() {
+			defer s.wg.Done()
+			for {
+				lo := int(s.next.Add(couplerChunk)) - couplerChunk
+				if lo >= n {
+					return
+				}
+				for i := lo; i < min(lo+couplerChunk, n); i++ {
+					search(i)
+				}
+			}
+		}()
+	}
+	s.wg.Wait()
+}
+
+func (s *sharedSearch) row(q neighbor.Query) ([]neighbor.Neighbor, error) {
+	if q.Star < 0 || q.Star >= len(s.rows) {
+		return nil, fmt.Errorf("shared search: star %d outside the step's %d stars", q.Star, len(s.rows))
+	}
+	return s.rows[q.Star], s.errs[q.Star]
+}
+
+// Nearest returns the first k of the star's neighbours.
+func (s *sharedSearch) Nearest(q neighbor.Query, k int, buf []neighbor.Neighbor) ([]neighbor.Neighbor, error) {
+	row, err := s.row(q)
+	if err != nil {
+		return buf[:0], err
+	}
+	if k > len(row) {
+		return buf[:0], fmt.Errorf("shared search: %d neighbours asked for, %d found: %w", k, len(row), neighbor.ErrTooFew)
+	}
+	return append(buf[:0], row[:k]...), nil
+}
+
+// Within returns the star's neighbours within r.
+func (s *sharedSearch) Within(q neighbor.Query, r float64, buf []neighbor.Neighbor) ([]neighbor.Neighbor, error) {
+	row, err := s.row(q)
+	if err != nil {
+		return buf[:0], err
+	}
+	if !(r >= 0) {
+		return buf[:0], fmt.Errorf("shared search: radius %g: %w", r, neighbor.ErrInvalid)
+	}
+	buf = buf[:0]
+	r2 := r * r
+	if math.IsInf(r, 1) {
+		r2 = math.Inf(1)
+	}
+	for _, nb := range row {
+		if nb.Dist2 <= r2 {
+			buf = append(buf, nb)
+		}
+	}
+	return buf, nil
+}
