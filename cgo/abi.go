@@ -905,6 +905,40 @@ func entryRecordCount(h uint64, count *int64) int32 {
 	})
 }
 
+func entryCopyUndeposited(h uint64, ids *int64, channels *int32, capacity int64, written *int64) int32 {
+	return withSession(h, func(s *session) error {
+		if written == nil {
+			return fail(codeNullPointer, "written is NULL")
+		}
+		*written = 0
+		if capacity < 0 {
+			return fail(codeInvalidArgument, "capacity %d must be >= 0", capacity)
+		}
+		if ids == nil && capacity > 0 {
+			return fail(codeNullPointer, "star_ids is NULL with capacity %d", capacity)
+		}
+		probs := s.out.Problems
+		n := min(int64(len(probs)), capacity)
+		if n > 0 {
+			d := unsafe.Slice(ids, n)
+			for k := range d {
+				d[k] = probs[k].StarID
+			}
+			if channels != nil {
+				c := unsafe.Slice(channels, n)
+				for k := range c {
+					c[k] = int32(probs[k].Channel)
+				}
+			}
+		}
+		*written = n
+		if n < int64(len(probs)) {
+			return fail(codeBufferTooSmall, "%d undeposited releases, buffer holds %d", len(probs), capacity)
+		}
+		return nil
+	})
+}
+
 func entryCopyRecords(h uint64, dst *recordABI, capacity int64, written *int64) int32 {
 	return withSession(h, func(s *session) error {
 		if written == nil {

@@ -285,6 +285,18 @@ func TestUndepositedStarIsReported(t *testing.T) {
 	require.Equal(t, codeOK, entryGetLedger(h, &l))
 	assert.Equal(t, int64(1), l.Skipped)
 	assert.Equal(t, 10.0, l.Undeposited.Mass)
+	// The host learns which star to keep.
+	ids := make([]int64, l.Skipped)
+	chans := make([]int32, l.Skipped)
+	var w int64
+	require.Equal(t, codeOK, entryCopyUndeposited(h, &ids[0], &chans[0], l.Skipped, &w))
+	assert.Equal(t, int64(1), w)
+	assert.Equal(t, stars[1].ID, ids[0])
+	assert.Equal(t, stars[1].Channel, chans[0])
+	assert.Equal(t, codeBufferTooSmall, entryCopyUndeposited(h, nil, nil, 0, &w))
+	assert.Equal(t, codeNullPointer, entryCopyUndeposited(h, nil, nil, 1, &w))
+	assert.Equal(t, codeInvalidArgument, entryCopyUndeposited(h, &ids[0], nil, -1, &w))
+	assert.Equal(t, codeNullPointer, entryCopyUndeposited(h, &ids[0], nil, 1, nil))
 	var msg [256]byte
 	assert.Equal(t, codeOK, entryLedgerBalanced(&l, 1e-12, &msg[0], int64(len(msg))))
 	l.Deposited.Mass *= 2

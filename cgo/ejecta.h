@@ -586,6 +586,23 @@ int ejecta_record_count(ejecta_context context, int64_t *count);
 int ejecta_copy_records(ejecta_context context, ejecta_record *records,
                         int64_t capacity, int64_t *written);
 
+/* ejecta_copy_undeposited lists the releases of the last step (either kind
+ * of step) that were returned undeposited — no gas in reach, a neighbour
+ * with unusable fields, a malformed release — so the host can keep them:
+ * the star's ID into star_ids[k] and the release's EJECTA_CHANNEL_* into
+ * channels[k] (channels may be NULL), for at most capacity entries, in the
+ * order the stars were given (a star appears once per channel returned),
+ * and the number copied into *written. The ledger's undeposited amounts
+ * are their sum, and the ledger's skipped count (ejecta_get_ledger) is
+ * the number of entries, so it sizes the buffer. Errors:
+ * EJECTA_ERR_NULL_POINTER (written NULL, or star_ids NULL with
+ * capacity > 0), EJECTA_ERR_INVALID_ARGUMENT (capacity < 0),
+ * EJECTA_ERR_INVALID_CONTEXT, EJECTA_ERR_BUFFER_TOO_SMALL (the first
+ * capacity entries were copied). */
+int ejecta_copy_undeposited(ejecta_context context, int64_t *star_ids,
+                            int32_t *channels, int64_t capacity,
+                            int64_t *written);
+
 /* ejecta_get_ledger copies the ledger of the last step into *ledger (all
  * zero before the first step). Errors: EJECTA_ERR_NULL_POINTER,
  * EJECTA_ERR_INVALID_CONTEXT. */

@@ -55,6 +55,11 @@ func ejecta_step(context C.ejecta_context, stars *C.ejecta_star, nStars C.int64_
 		(*int64)(unsafe.Pointer(rowOffsets)), (*int64)(unsafe.Pointer(rowIndices))))
 }
 
+//export ejecta_copy_undeposited
+func ejecta_copy_undeposited(context C.ejecta_context, starIDs *C.int64_t, channels *C.int32_t, capacity C.int64_t, written *C.int64_t) C.int {
+	return C.int(entryCopyUndeposited(uint64(context), (*int64)(unsafe.Pointer(starIDs)), (*int32)(unsafe.Pointer(channels)), int64(capacity), (*int64)(unsafe.Pointer(written))))
+}
+
 //export ejecta_record_count
 func ejecta_record_count(context C.ejecta_context, count *C.int64_t) C.int {
 	return C.int(entryRecordCount(uint64(context), (*int64)(unsafe.Pointer(count))))

@@ -27,11 +27,13 @@ type Record struct {
 	Heating float64
 }
 
-// Problem is a source whose release was returned undeposited, and why.
+// Problem is a source whose release was returned undeposited, and why:
+// the star's ID, its index in the call, and the channel of the release.
 type Problem struct {
-	StarID int64
-	Index  int
-	Err    error
+	StarID  int64
+	Index   int
+	Channel yields.Channel
+	Err     error
 }
 
 // Output receives the result of Couple. Its slices are reused from call to
@@ -238,7 +240,7 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 			out.Records = append(out.Records, c.workers[sl.worker].records[sl.start:sl.start+sl.count]...)
 		}
 		if sl.err != nil {
-			out.Problems = append(out.Problems, Problem{StarID: sources[i].Star.ID, Index: i, Err: sl.err})
+			out.Problems = append(out.Problems, Problem{StarID: sources[i].Star.ID, Index: i, Channel: sources[i].Channel, Err: sl.err})
 		}
 		c.order[i] = i
 	}

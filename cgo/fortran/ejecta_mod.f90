@@ -138,7 +138,7 @@ module ejecta_mod
   public :: ejecta_population_defaults, ejecta_enable_population, ejecta_step_population, &
        ejecta_copy_star_results, ejecta_suggested_step, ejecta_get_channel_ledger, ejecta_c_string
   public :: ejecta_version, ejecta_config_defaults, ejecta_create, ejecta_destroy, &
-       ejecta_last_error, ejecta_bind_gas, ejecta_step, ejecta_record_count, &
+       ejecta_last_error, ejecta_bind_gas, ejecta_step, ejecta_record_count, ejecta_copy_undeposited, &
        ejecta_copy_records, ejecta_get_ledger, ejecta_apply_step_records, &
        ejecta_apply_records, ejecta_copy_touched, ejecta_ledger_balanced
   public :: ejecta_set_name, ejecta_strided, ejecta_error_text, ejecta_create_checked
@@ -194,6 +194,16 @@ module ejecta_mod
        integer(c_int32_t), value :: neighbour_mode
        type(c_ptr), value :: row_offsets, row_indices
      end function ejecta_step
+
+     integer(c_int) function ejecta_copy_undeposited(context, star_ids, channels, capacity, written) &
+          bind(c, name='ejecta_copy_undeposited')
+       import :: c_int, c_int64_t, c_int32_t
+       integer(c_int64_t), value :: context
+       integer(c_int64_t), intent(out) :: star_ids(*)
+       integer(c_int32_t), intent(out) :: channels(*)
+       integer(c_int64_t), value :: capacity
+       integer(c_int64_t), intent(out) :: written
+     end function ejecta_copy_undeposited
 
      integer(c_int) function ejecta_record_count(context, count) bind(c, name='ejecta_record_count')
        import :: c_int, c_int64_t
