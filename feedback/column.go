@@ -90,6 +90,30 @@ func Strided(first unsafe.Pointer, n int, stride uintptr, t ElemType) Column {
 	return Column{base: first, stride: stride, typ: t, n: n}
 }
 
+// Field views one field of a Go array of structs in place, without unsafe
+// code in the caller: Field(parts, func(p *Particle) *float32 { return &p.X }).
+// The field must lie inside the struct (the accessor is called on the first
+// element only); an empty slice gives an unbound column.
+func Field[T any, E float32 | float64 | int32 | int64](s []T, field func(*T) *E) Column {
+	var zero E
+	var t ElemType
+	switch any(zero).(type) {
+	case float32:
+		t = Float32
+	case float64:
+		t = Float64
+	case int32:
+		t = Int32
+	case int64:
+		t = Int64
+	}
+	stride := unsafe.Sizeof(*new(T))
+	if len(s) == 0 {
+		return Column{typ: t, stride: stride}
+	}
+	return Column{base: unsafe.Pointer(field(&s[0])), stride: stride, typ: t, n: len(s)}
+}
+
 // Len is the number of elements the column holds.
 func (c Column) Len() int { return c.n }
 

@@ -464,3 +464,25 @@ func TestApplierRejectsDuplicatesAndKeepsRecordOrder(t *testing.T) {
 	allocs := testing.AllocsPerRun(3, func() { touched, _, _ = ap.Apply(view, recs, touched) })
 	assert.Zero(t, allocs)
 }
+
+func TestFieldViewsArrayOfStructs(t *testing.T) {
+	parts := make([]hostParticle, 5)
+	for i := range parts {
+		parts[i].Pos[1] = float32(i) + 0.5
+		parts[i].Mass = float64(10 * i)
+		parts[i].ID = int64(100 + i)
+	}
+	y := feedback.Field(parts, func(p *hostParticle) *float32 { return &p.Pos[1] })
+	m := feedback.Field(parts, func(p *hostParticle) *float64 { return &p.Mass })
+	id := feedback.Field(parts, func(p *hostParticle) *int64 { return &p.ID })
+	assert.Equal(t, feedback.Float32, y.Type())
+	assert.Equal(t, unsafe.Sizeof(parts[0]), m.Stride())
+	for i := range parts {
+		assert.Equal(t, float64(i)+0.5, y.At(i))
+		assert.Equal(t, float64(10*i), m.At(i))
+		assert.Equal(t, int64(100+i), id.Int(i))
+	}
+	m.Set(2, 7)
+	assert.Equal(t, 7.0, parts[2].Mass)
+	assert.False(t, feedback.Field([]hostParticle{}, func(p *hostParticle) *float64 { return &p.Mass }).Bound())
+}
