@@ -313,6 +313,34 @@ func (c *Coupler) work(w int) {
 	}
 }
 
+// depositsFinite reports whether every amount of every deposit is finite.
+func depositsFinite(deps []Deposit) bool {
+	for j := range deps {
+		d := &deps[j]
+		sum := d.Mass + d.Energy + d.Heat + d.Radiated + d.CoolingOffUntil +
+			d.Momentum[0] + d.Momentum[1] + d.Momentum[2]
+		for _, m := range d.Species {
+			sum += m
+		}
+		// A sum of finite numbers can overflow to Inf: check it, and fall
+		// back to one by one only then.
+		if !finite(sum) {
+			vals := [...]float64{d.Mass, d.Energy, d.Heat, d.Radiated, d.CoolingOffUntil, d.Momentum[0], d.Momentum[1], d.Momentum[2]}
+			for _, v := range vals {
+				if !finite(v) {
+					return false
+				}
+			}
+			for _, m := range d.Species {
+				if !finite(m) {
+					return false
+				}
+			}
+		}
+	}
+	return true
+}
+
 // undeposited books a whole source as returned to the caller.
 func undeposited(src *Source, err error) (Ledger, error) {
 	l := Ledger{Stars: 1, Skipped: 1}
@@ -422,6 +450,11 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 	radiated, err := c.scheme.Deposit(nb, deps)
 	if err != nil {
 		return undeposited(src, fmt.Errorf("star %d: scheme %s: %w", src.Star.ID, c.scheme.Name(), err))
+	}
+	// Extreme but finite gas values (1e300) can overflow inside a scheme:
+	// such a star is returned, never written as non-finite records.
+	if !finite(radiated) || !finite(nb.returned) || !depositsFinite(deps) {
+		return undeposited(src, fmt.Errorf("star %d: scheme %s produced non-finite amounts (gas or release values out of floating-point range)", src.Star.ID, c.scheme.Name()))
 	}
 	l := Ledger{Stars: 1, Radiated: radiated}
 	l.In = sourceQuantities(src)

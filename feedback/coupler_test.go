@@ -285,6 +285,7 @@ func TestBadInputLosesNothing(t *testing.T) {
 		{"zero gas mass", func(g *feedbacktest.GasArrays, s *feedback.Source) { g.Mass[0] = 0 }, true},
 		{"nan gas density", func(g *feedbacktest.GasArrays, s *feedback.Source) { g.Density[0] = math.NaN() }, true},
 		{"infinite gas velocity", func(g *feedbacktest.GasArrays, s *feedback.Source) { g.Vel[1][0] = math.Inf(1) }, true},
+		{"gas mass near the floating-point limit", func(g *feedbacktest.GasArrays, s *feedback.Source) { g.Mass[0] = 1e307 }, false},
 		{"star on a gas element", func(g *feedbacktest.GasArrays, s *feedback.Source) {
 			s.Star.Pos = [3]float64{g.Pos[0][0], g.Pos[1][0], g.Pos[2][0]}
 		}, false},
@@ -485,4 +486,29 @@ func TestFieldViewsArrayOfStructs(t *testing.T) {
 	m.Set(2, 7)
 	assert.Equal(t, 7.0, parts[2].Mass)
 	assert.False(t, feedback.Field([]hostParticle{}, func(p *hostParticle) *float64 { return &p.Mass }).Bound())
+}
+
+// overflowing stands for a scheme pushed out of floating-point range.
+type overflowing struct{ feedback.Kinetic }
+
+func (s overflowing) Deposit(nb *feedback.Neighbourhood, out []feedback.Deposit) (float64, error) {
+	rad, err := s.Kinetic.Deposit(nb, out)
+	out[len(out)-1].Momentum[1] = math.Inf(1)
+	return rad, err
+}
+
+func TestNonFiniteDepositsAreReturnedNotWritten(t *testing.T) {
+	u := pcMsunKms()
+	g := uniformGas(15, 100, 10, 1, u)
+	c, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: overflowing{}, Neighbours: 16})
+	require.NoError(t, err)
+	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
+	require.NoError(t, err)
+	var out feedback.Output
+	require.NoError(t, c.Couple(g.View(), f, []feedback.Source{supernova(1, u)}, &out))
+	assert.Empty(t, out.Records)
+	require.Len(t, out.Problems, 1)
+	assert.ErrorContains(t, out.Problems[0].Err, "non-finite")
+	require.NoError(t, out.Ledger.Balanced(1e-12))
+	assert.Equal(t, out.Ledger.In, out.Ledger.Undeposited)
 }
