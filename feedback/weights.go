@@ -138,6 +138,7 @@ const (
 	tiltTolerance = 1e-10
 	maxTiltSteps  = 40
 	maxBacktracks = 20
+	maxTiltStep   = 5.0
 	// newtonRegion is the gradient below which full Newton steps are taken.
 	newtonRegion = 1e-3
 )
@@ -150,11 +151,12 @@ func tilt(a []float64, n [][3]float64, scratch []float64) float64 {
 	for _, v := range a {
 		total += v
 	}
-	if total <= 0 || len(a) < 2 {
+	if !(total > 0) || math.IsInf(total, 0) || len(a) < 2 {
 		return netVector(a, n)
 	}
 	var lam [3]float64
 	f, g, h := tiltState(a, n, lam, scratch)
+	current := true // scratch holds the amounts at lam
 	for it := 0; it < maxTiltSteps; it++ {
 		gn := math.Sqrt(g[0]*g[0] + g[1]*g[1] + g[2]*g[2])
 		if gn < tiltTolerance {
@@ -166,10 +168,17 @@ func tilt(a []float64, n [][3]float64, scratch []float64) float64 {
 			// fall back to a gradient step.
 			step = g
 		}
+		// A nearly singular covariance (gas concentrated in one direction)
+		// asks for huge steps: no step moves lambda by more than maxTiltStep.
+		if sn := math.Sqrt(step[0]*step[0] + step[1]*step[1] + step[2]*step[2]); sn > maxTiltStep {
+			for d := 0; d < 3; d++ {
+				step[d] *= maxTiltStep / sn
+			}
+		}
 		// Newton direction is -step. Close to the minimum (small gradient)
 		// Newton converges quadratically and F changes by less than its
 		// round-off, so the full step is taken; farther out, backtrack
-		// until F decreases.
+		// until F decreases. A step to a non-finite state is never taken.
 		var nl [3]float64
 		var nf float64
 		var ng [3]float64
@@ -181,8 +190,10 @@ func tilt(a []float64, n [][3]float64, scratch []float64) float64 {
 				nl[d] = lam[d] - t*step[d]
 			}
 			nf, ng, nh = tiltState(a, n, nl, scratch)
-			if gn < newtonRegion || nf <= f-1e-4*t*(g[0]*step[0]+g[1]*step[1]+g[2]*step[2]) {
-				accepted = true
+			current = false
+			if finite(nf) && finite(ng[0]+ng[1]+ng[2]) &&
+				(gn < newtonRegion || nf <= f-1e-4*t*(g[0]*step[0]+g[1]*step[1]+g[2]*step[2])) {
+				accepted, current = true, true
 				break
 			}
 			t *= 0.5
@@ -194,6 +205,9 @@ func tilt(a []float64, n [][3]float64, scratch []float64) float64 {
 		if lam[0]*lam[0]+lam[1]*lam[1]+lam[2]*lam[2] > maxTilt*maxTilt {
 			break
 		}
+	}
+	if !current {
+		tiltState(a, n, lam, scratch)
 	}
 	// Write the tilted amounts, rescaled to the original total.
 	s := 0.0

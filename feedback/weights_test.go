@@ -100,3 +100,35 @@ func TestExpNonPositive(t *testing.T) {
 	assert.Equal(t, 1.0, expNonPositive(0))
 	assert.Zero(t, expNonPositive(-800))
 }
+
+func TestTiltStaysFiniteInAdversarialGeometry(t *testing.T) {
+	// One-sided, nearly coplanar and clustered directions make the
+	// covariance nearly singular; the tilt must still return finite
+	// positive weights with the same total.
+	for seed := uint64(1); seed <= 400; seed++ {
+		rng := rand.New(rand.NewPCG(seed, 9))
+		k := 2 + rng.IntN(63)
+		n := randomDirs(rng, k, seed%2 == 0)
+		if seed%3 == 0 { // squash into a thin slab
+			for j := range n {
+				n[j][2] *= 1e-6
+				r := math.Sqrt(dot(n[j], n[j]))
+				n[j] = [3]float64{n[j][0] / r, n[j][1] / r, n[j][2] / r}
+			}
+		}
+		a := make([]float64, k)
+		total := 0.0
+		for j := range a {
+			a[j] = math.Exp(2 * rng.NormFloat64())
+			total += a[j]
+		}
+		res := tilt(a, n, make([]float64, k))
+		require.False(t, math.IsNaN(res), "seed %d", seed)
+		sum := 0.0
+		for _, v := range a {
+			require.True(t, v > 0 && !math.IsInf(v, 0), "seed %d: weight %g", seed, v)
+			sum += v
+		}
+		require.InEpsilon(t, total, sum, 1e-12, "seed %d", seed)
+	}
+}
