@@ -6,7 +6,35 @@
 //
 //	ejecta <command> [flags]
 //
-// Run "ejecta help" for the list of commands.
+// Commands:
+//
+//	bench    compare coupling schemes on standard gas set-ups (the default
+//	         quick suite includes the demo cloud); writes results.json, CSV
+//	         tables and PNG plots to -out (default ./ejecta-out); -gas DIR
+//	         compares them on a user's own .npy snapshot
+//	rates    print what one Msun of a single burst releases, by age
+//	         (-imf, -z, -table FILE in the CSV format of package yields, -json)
+//	audit    check a host's own before/after feedback dump for conservation,
+//	         star-frame balance and out-of-range changes (-manifest FILE,
+//	         -tol, -isotropy-tol, -json); exit status 1 when a check fails
+//	version  print the ejecta version
+//
+// The audit manifest is a JSON file naming NumPy .npy arrays, paths relative
+// to the manifest:
+//
+//	{
+//	  "box": [L, L, L],
+//	  "gas_before": {"position": "...", "velocity": "...", "mass": "...",
+//	                 "internal_energy": "...", "id": "...",
+//	                 "mass_fractions": {"Z": "...", "Fe": "..."}},
+//	  "gas_after":  { the same keys },
+//	  "stars": {"id": "...", "position": "...", "velocity": "...",
+//	            "radius": "...", "ejecta_mass": "...", "energy": "...",
+//	            "radiated": "...", "ejecta_species": {"Z": "..."}}
+//	}
+//
+// Vectors are (n, 3) arrays, the rest (n,); "box" and "radiated" are
+// optional. Run "ejecta help" for the list of commands.
 package main
 
 import (
