@@ -2,11 +2,14 @@ package main
 
 import (
 	"bytes"
+	"encoding/binary"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"strconv"
 	"testing"
+	"unsafe"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
@@ -132,6 +135,45 @@ func TestHostFortranPopulation(t *testing.T) {
 	}
 }
 
+// mpiModes are the builds the MPI hosts are run in: shared, and static
+// with AddressSanitizer. Open MPI's own allocations (and those of its
+// unloaded plugins) are still held at exit, so leak detection is off for
+// the MPI hosts only; address errors are still reported.
+var mpiModes = []struct {
+	link linkMode
+	asan string
+}{
+	{linkModes[0], ""},
+	{linkModes[2], "halt_on_error=1:detect_leaks=0"},
+}
+
+// mpiRanks are the rank counts every MPI host is run with.
+var mpiRanks = []int{1, 2, 4}
+
+// buildMPIHost compiles an MPI example host into dir.
+func buildMPIHost(t *testing.T, mpicc, lib, dir, name string, mode linkMode) string {
+	t.Helper()
+	bin := filepath.Join(dir, name)
+	args := append([]string{"-std=c11", "-Wall", "-Wextra", "-Werror", "-O1", "-I."}, mode.cflag...)
+	args = append(args, "-o", bin, filepath.Join("examples", name+".c"))
+	args = append(args, mode.flags(lib)...)
+	args = append(args, "-lm")
+	compile(t, mpicc, args...)
+	return bin
+}
+
+// runMPIHost runs bin on the given number of ranks (oversubscribing the
+// cores, and allowed to run as root) and returns rank 0's output.
+func runMPIHost(t *testing.T, mpirun, asan string, ranks int, bin string, args ...string) string {
+	t.Helper()
+	run := []string{"--oversubscribe", "-np", strconv.Itoa(ranks)}
+	if os.Geteuid() == 0 {
+		run = append([]string{"--allow-run-as-root"}, run...)
+	}
+	run = append(append(run, bin), args...)
+	return runHostEnv(t, asan, mpirun, run...)
+}
+
 // TestHostMPIDecomposition runs the MPI host on 1, 2 and 4 ranks: the
 // final gas, gathered and sorted by ID, must be bitwise identical for every
 // rank count, and the ledgers summed over ranks must agree to round-off
@@ -141,35 +183,15 @@ func TestHostMPIDecomposition(t *testing.T) {
 	lib := libraryDir(t)
 	mpicc := requireTool(t, "mpicc")
 	mpirun := requireTool(t, "mpirun")
-	modes := []struct {
-		link linkMode
-		// Open MPI's own allocations (and those of its unloaded plugins)
-		// are still held at exit; leak detection is off for this host
-		// only, address errors are still reported.
-		asan string
-	}{
-		{linkModes[0], ""},
-		{linkModes[2], "halt_on_error=1:detect_leaks=0"},
-	}
-	for _, mode := range modes {
+	for _, mode := range mpiModes {
 		t.Run(mode.link.name, func(t *testing.T) {
 			dir := t.TempDir()
-			bin := filepath.Join(dir, "mpi_host")
-			args := append([]string{"-std=c11", "-Wall", "-Wextra", "-Werror", "-O1", "-I."}, mode.link.cflag...)
-			args = append(args, "-o", bin, filepath.Join("examples", "mpi_host.c"))
-			args = append(args, mode.link.flags(lib)...)
-			args = append(args, "-lm")
-			compile(t, mpicc, args...)
+			bin := buildMPIHost(t, mpicc, lib, dir, "mpi_host", mode.link)
 			var dumps [][]byte
 			var ledgers []map[string]string
-			for _, ranks := range []int{1, 2, 4} {
+			for _, ranks := range mpiRanks {
 				dump := filepath.Join(dir, fmt.Sprintf("gas-%d.bin", ranks))
-				run := []string{"--oversubscribe", "-np", strconv.Itoa(ranks)}
-				if os.Geteuid() == 0 {
-					run = append([]string{"--allow-run-as-root"}, run...)
-				}
-				run = append(run, bin, dump)
-				out := runHostEnv(t, mode.asan, mpirun, run...)
+				out := runMPIHost(t, mpirun, mode.asan, ranks, bin, dump)
 				require.Contains(t, out, "result pass", "ranks %d", ranks)
 				kv := keyValues(out)
 				if ranks > 1 {
@@ -182,12 +204,133 @@ func TestHostMPIDecomposition(t *testing.T) {
 				ledgers = append(ledgers, kv)
 			}
 			for i := 1; i < len(dumps); i++ {
-				assert.True(t, bytes.Equal(dumps[0], dumps[i]), "final gas on %d ranks differs bitwise from 1 rank", []int{1, 2, 4}[i])
+				assert.True(t, bytes.Equal(dumps[0], dumps[i]), "final gas on %d ranks differs bitwise from 1 rank", mpiRanks[i])
 				for _, key := range []string{"released_mass", "deposited_mass", "deposited_energy", "radial_momentum", "gas_mass_gain"} {
 					assert.InEpsilon(t, number(t, ledgers[0], key), number(t, ledgers[i], key), 1e-12, key)
 				}
 				for _, key := range []string{"stars", "records", "elements_changed"} {
 					assert.Equal(t, ledgers[0][key], ledgers[i][key], key)
+				}
+			}
+		})
+	}
+}
+
+// starHistory is one star of the star dump of
+// examples/mpi_population_host.c: the particle after the run and its
+// results of every step.
+type starHistory struct {
+	star  starParticleABI
+	steps []starResultABI
+}
+
+// readStarDump decodes a star dump of n stars of the given number of
+// steps, each a star_record of the host.
+func readStarDump(t *testing.T, b []byte, n, steps int) []starHistory {
+	t.Helper()
+	size := int(unsafe.Sizeof(starParticleABI{})) + steps*int(unsafe.Sizeof(starResultABI{}))
+	require.Len(t, b, n*size, "star dump of %d stars of %d steps", n, steps)
+	r := bytes.NewReader(b)
+	out := make([]starHistory, n)
+	for i := range out {
+		out[i].steps = make([]starResultABI, steps)
+		require.NoError(t, binary.Read(r, binary.NativeEndian, &out[i].star))
+		require.NoError(t, binary.Read(r, binary.NativeEndian, out[i].steps))
+	}
+	return out
+}
+
+// TestHostMPIPopulationDecomposition runs examples/mpi_population_host.c
+// on 1, 2 and 4 ranks: star particles of ages 0-40 Myr, each stepped by
+// the rank of its slab with ghost gas refreshed every step and ghost
+// records routed to their owners. The host checks every step's global
+// ledger and the gas's gains itself; here the final gas (sorted by ID) and
+// the star particles with their per-step results (sorted by ID) must be
+// bitwise the same for every rank count, every channel must have acted,
+// and each star's mass must have fallen by exactly the mass loss its
+// results report.
+func TestHostMPIPopulationDecomposition(t *testing.T) {
+	lib := libraryDir(t)
+	mpicc := requireTool(t, "mpicc")
+	mpirun := requireTool(t, "mpirun")
+	channels := []string{"core_collapse", "type_ia", "massive_winds", "agb_winds", "radiation_pressure", "photoionisation"}
+	for _, mode := range mpiModes {
+		t.Run(mode.link.name, func(t *testing.T) {
+			dir := t.TempDir()
+			bin := buildMPIHost(t, mpicc, lib, dir, "mpi_population_host", mode.link)
+			var gasDumps, starDumps [][]byte
+			var runs []map[string]string
+			for _, ranks := range mpiRanks {
+				gasDump := filepath.Join(dir, fmt.Sprintf("gas-%d.bin", ranks))
+				starDump := filepath.Join(dir, fmt.Sprintf("stars-%d.bin", ranks))
+				out := runMPIHost(t, mpirun, mode.asan, ranks, bin, gasDump, starDump)
+				require.Contains(t, out, "result pass", "ranks %d", ranks)
+				kv := keyValues(out)
+				if ranks > 1 {
+					assert.Positive(t, number(t, kv, "ghost_elements"), "ghosts imported on %d ranks", ranks)
+					assert.Positive(t, number(t, kv, "ghost_records"), "records must cross ranks with %d ranks", ranks)
+				}
+				g, err := os.ReadFile(gasDump)
+				require.NoError(t, err)
+				require.NotEmpty(t, g)
+				s, err := os.ReadFile(starDump)
+				require.NoError(t, err)
+				gasDumps, starDumps, runs = append(gasDumps, g), append(starDumps, s), append(runs, kv)
+			}
+
+			kv := runs[0]
+			assert.Positive(t, number(t, kv, "supernovae_cc"), "supernovae drawn")
+			// Mass from every channel that ejects some (radiation pressure
+			// and photoionisation carry energy only), energy from every
+			// channel but Type Ia, which draws no event here.
+			for _, ch := range []string{"core_collapse", "type_ia", "massive_winds", "agb_winds"} {
+				assert.Positive(t, number(t, kv, ch+"_mass"), ch)
+			}
+			for _, ch := range []string{"core_collapse", "massive_winds", "agb_winds", "radiation_pressure", "photoionisation"} {
+				assert.Positive(t, number(t, kv, ch+"_energy"), ch)
+			}
+			assert.InEpsilon(t, number(t, kv, "star_mass_loss"), number(t, kv, "gas_mass_gain"), 1e-12)
+
+			nStars, steps := int(number(t, kv, "stars")), int(number(t, kv, "steps"))
+			history := readStarDump(t, starDumps[0], nStars, steps)
+			var loss float64
+			var cc, ia int64
+			for i, h := range history {
+				if i > 0 {
+					assert.Less(t, history[i-1].star.ID, h.star.ID, "stars sorted by ID")
+				}
+				m := h.star.FormedMass
+				for k, r := range h.steps {
+					assert.Equal(t, h.star.ID, r.ID, "star %d step %d", h.star.ID, k)
+					assert.GreaterOrEqual(t, r.MassLoss, 0.0)
+					assert.GreaterOrEqual(t, r.CarriedEnergy, 0.0)
+					m -= r.MassLoss
+					loss += r.MassLoss
+					cc += r.SupernovaeCC
+					ia += r.SupernovaeIa
+				}
+				// The host subtracts each step's loss in turn: the same
+				// operations, so the same bits.
+				assert.Equal(t, m, h.star.Mass, "star %d mass", h.star.ID)
+				assert.Equal(t, h.steps[steps-1].CarriedEnergy, h.star.CarriedEnergy, "star %d carried energy", h.star.ID)
+			}
+			assert.InEpsilon(t, number(t, kv, "star_mass_loss"), loss, 1e-12)
+			assert.Equal(t, kv["supernovae_cc"], strconv.FormatInt(cc, 10))
+			assert.Equal(t, kv["supernovae_ia"], strconv.FormatInt(ia, 10))
+
+			for i := 1; i < len(runs); i++ {
+				assert.True(t, bytes.Equal(gasDumps[0], gasDumps[i]), "final gas on %d ranks differs bitwise from 1 rank", mpiRanks[i])
+				assert.True(t, bytes.Equal(starDumps[0], starDumps[i]), "stars on %d ranks differ bitwise from 1 rank", mpiRanks[i])
+				for _, key := range []string{"records", "supernovae_cc", "supernovae_ia"} {
+					assert.Equal(t, runs[0][key], runs[i][key], key)
+				}
+				keys := []string{"star_mass_loss", "gas_mass_gain", "deposited_energy"}
+				for _, ch := range channels {
+					keys = append(keys, ch+"_mass", ch+"_energy")
+				}
+				for _, key := range keys {
+					// Summed over ranks in different orders: round-off only.
+					assert.InDelta(t, number(t, runs[0], key), number(t, runs[i], key), 1e-12*math.Abs(number(t, runs[0], key)), key)
 				}
 			}
 		})
