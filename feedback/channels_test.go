@@ -377,3 +377,51 @@ func BenchmarkStep(b *testing.B) {
 	}
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(stars)), "ns/star")
 }
+
+func TestStepperKeepsReturnedReleasesInTheStarsFrame(t *testing.T) {
+	// A moving star with no gas in reach: its mass stays on it (mass loss
+	// exactly 0) and the supernova energy it carries to the next step is the
+	// explosion energy alone, not the ejecta's kinetic energy in the lab.
+	u := pcMsunKms()
+	pop, err := yields.NewPopulation(yields.DefaultConfig())
+	require.NoError(t, err)
+	g := uniformGas(41, 50, 10, 1, u)
+	rows, err := neighbor.NewHostLists(g.Packed(), g.ID, neighbor.Box{}, []int{0, 0}, nil)
+	require.NoError(t, err)
+	st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u, Radius: 10}, Model: pop, Seed: 2})
+	require.NoError(t, err)
+	myr := units.Megayear / u.TimeS()
+	star := feedback.StarParticle{Star: feedback.Star{ID: 9, Mass: 1e5, Metallicity: 0.0134, Age: 10 * myr, Vel: [3]float64{100, 0, 0}}, FormedMass: 1e5}
+	var out feedback.StepOutput
+	require.NoError(t, st.Step(g.View(), rows, []feedback.StarParticle{star}, 0, myr, &out))
+	require.NotEmpty(t, out.Problems)
+	assert.Zero(t, out.MassLoss[0])
+	require.Positive(t, out.Supernovae[yields.CoreCollapse])
+	want := float64(out.Supernovae[yields.CoreCollapse]+out.Supernovae[yields.TypeIa]) * units.FOE / u.EnergyErg()
+	assert.InEpsilon(t, want, out.Carry[0], 1e-12)
+	require.NoError(t, out.Ledger.Balanced(1e-12))
+}
+
+func TestStepperRejectsUnusableStars(t *testing.T) {
+	u := pcMsunKms()
+	pop, err := yields.NewPopulation(yields.DefaultConfig())
+	require.NoError(t, err)
+	g := uniformGas(42, 50, 10, 1, u)
+	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
+	require.NoError(t, err)
+	st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u}, Model: pop})
+	require.NoError(t, err)
+	for _, bad := range []func(s *feedback.StarParticle){
+		func(s *feedback.StarParticle) { s.Vel[0] = 1e200 }, // v^2 overflows
+		func(s *feedback.StarParticle) { s.Pos[1] = math.NaN() },
+		func(s *feedback.StarParticle) { s.FormedMass = -1 },
+		func(s *feedback.StarParticle) { s.CarriedEnergy = math.Inf(1) },
+		func(s *feedback.StarParticle) { s.Metallicity = 1.5 },
+		func(s *feedback.StarParticle) { s.Age = -1 },
+	} {
+		star := feedback.StarParticle{Star: feedback.Star{ID: 1, Mass: 1e4, Metallicity: 0.0134}, FormedMass: 1e4}
+		bad(&star)
+		var out feedback.StepOutput
+		assert.Error(t, st.Step(g.View(), f, []feedback.StarParticle{star}, 0, 1, &out))
+	}
+}

@@ -476,7 +476,7 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 		}
 		*recs = append(*recs, Record{
 			GasIndex: nb.Index[j], GasID: nb.ID[j], StarID: src.Star.ID, Channel: src.Channel,
-			Deposit: *d, Kick: math.Sqrt(dot(dv, dv)), Heating: d.Heat / mt,
+			Deposit: *d, Kick: norm(dv), Heating: d.Heat / mt,
 		})
 	}
 	if nb.capped {

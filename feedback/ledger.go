@@ -53,6 +53,9 @@ func (s *Source) Validate() error {
 			return fmt.Errorf("star %d: non-finite position or velocity", s.Star.ID)
 		}
 	}
+	if v2 := dot(s.Star.Vel, s.Star.Vel); !finite(v2) || !finite(0.5*s.Mass*v2) {
+		return fmt.Errorf("star %d: the ejecta's kinetic energy overflows (speed %g, mass %g)", s.Star.ID, math.Sqrt(math.Abs(v2)), s.Mass)
+	}
 	if s.Mass < 0 || s.Energy < 0 || s.Events < 0 || s.Photons < 0 || s.Duration < 0 {
 		return fmt.Errorf("star %d: negative release (mass %g, energy %g, events %g, photons %g, duration %g)", s.Star.ID, s.Mass, s.Energy, s.Events, s.Photons, s.Duration)
 	}

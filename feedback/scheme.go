@@ -264,7 +264,7 @@ func (nb *Neighbourhood) CoupleRadial(out []Deposit) (radiated float64) {
 			d.Flags |= FlagLimited
 		}
 		nb.radial += dot(kick, nb.Dir[j])
-		nb.pscale += math.Sqrt(dot(kick, kick))
+		nb.pscale += norm(kick)
 	}
 	return radiated
 }
@@ -277,3 +277,11 @@ func (nb *Neighbourhood) kick(j int, net [3]float64) [3]float64 {
 }
 
 func dot(a, b [3]float64) float64 { return a[0]*b[0] + a[1]*b[1] + a[2]*b[2] }
+
+// norm is |a|, without underflow for tiny vectors.
+func norm(a [3]float64) float64 {
+	if d := dot(a, a); d > 1e-290 || d == 0 {
+		return math.Sqrt(d)
+	}
+	return math.Hypot(math.Hypot(a[0], a[1]), a[2])
+}

@@ -199,8 +199,8 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 	maxExpected := 0.0
 	for i := range stars {
 		st := &stars[i]
-		if !(st.FormedMass >= 0) || math.IsInf(st.FormedMass, 0) || !(st.CarriedEnergy >= 0) || math.IsInf(st.CarriedEnergy, 0) {
-			return fmt.Errorf("step: star %d: formed mass %g and carried energy %g must be finite and non-negative", st.ID, st.FormedMass, st.CarriedEnergy)
+		if err := st.validate(); err != nil {
+			return fmt.Errorf("step: %w", err)
 		}
 		age0 := st.Age * myr
 		rel, err := s.cfg.Model.Release(age0, age0+dt*myr, st.Metallicity)
@@ -211,7 +211,6 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 		formed := st.FormedMass * msun // Msun formed
 		base := Source{Star: st.Star, Step: step, Duration: dt}
 		expected := 0.0
-		loss := 0.0
 		for c := yields.Channel(0); c < yields.NumChannels; c++ {
 			ej := rel.Channels[c]
 			src := base
@@ -241,10 +240,8 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 				src = base
 				src.Channel = c
 			}
-			loss += src.Mass
 			s.sources[c] = append(s.sources[c], src)
 		}
-		out.MassLoss[i] = loss
 		maxExpected = math.Max(maxExpected, expected)
 
 		rad := base
@@ -283,13 +280,17 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 		out.Problems = append(out.Problems, o.Problems...)
 	}
 	// What a star's couplers returned undeposited stays with the star: its
-	// mass is not lost, and supernova energy is carried to the next step.
+	// mass is not lost, and supernova energy is carried to the next step
+	// in the star's rest frame (the undeposited ejecta's kinetic energy
+	// 1/2 M v^2 stays with the star's own motion, not with the explosion).
+	clear(out.MassLoss)
 	for c := range s.couplers {
 		for i := range stars {
 			back := &s.couplers[c].slots[i].ledger.Undeposited
-			out.MassLoss[i] -= back.Mass
+			out.MassLoss[i] += s.sources[c][i].Mass - back.Mass
 			if yields.Channel(c).Discrete() {
-				out.Carry[i] += back.Energy
+				v := stars[i].Vel
+				out.Carry[i] += math.Max(back.Energy-0.5*back.Mass*dot(v, v), 0)
 			}
 		}
 	}
@@ -318,6 +319,28 @@ func (s *Stepper) delayCooling(gas *Gas, c int, recs []Record) {
 		r.Flags |= FlagCoolingOff
 		r.CoolingOffUntil = CoolingOffTime(e*u.EnergyErg(), n, pk) / u.TimeS()
 	}
+}
+
+// validate checks a star particle before a step uses it: finite position
+// and velocity (with a finite kinetic energy per mass), finite
+// non-negative masses, age and carried energy, metallicity in [0, 1).
+func (st *StarParticle) validate() error {
+	v2 := dot(st.Vel, st.Vel)
+	if !finite(dot(st.Pos, st.Pos)) || !finite(v2) {
+		return fmt.Errorf("star %d: position or velocity not finite (or too large to square)", st.ID)
+	}
+	for _, f := range [...]struct {
+		name string
+		v    float64
+	}{{"mass", st.Mass}, {"formed mass", st.FormedMass}, {"age", st.Age}, {"carried energy", st.CarriedEnergy}} {
+		if !(f.v >= 0) || math.IsInf(f.v, 0) {
+			return fmt.Errorf("star %d: %s %g must be finite and non-negative", st.ID, f.name, f.v)
+		}
+	}
+	if !(st.Metallicity >= 0 && st.Metallicity < 1) {
+		return fmt.Errorf("star %d: metallicity %g outside [0, 1)", st.ID, st.Metallicity)
+	}
+	return nil
 }
 
 // clampRoundOff sets to zero the tiny negative amounts a difference of

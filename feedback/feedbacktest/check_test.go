@@ -38,7 +38,6 @@ func TestBuiltInSchemesPass(t *testing.T) {
 	}
 }
 
-
 // losesMass drops one percent of the ejected mass.
 type losesMass struct{ feedback.TerminalMomentum }
 
