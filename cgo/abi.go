@@ -907,63 +907,59 @@ func entryRecordCount(h uint64, count *int64) int32 {
 
 func entryCopyUndeposited(h uint64, ids *int64, channels *int32, capacity int64, written *int64) int32 {
 	return withSession(h, func(s *session) error {
-		if written == nil {
-			return fail(codeNullPointer, "written is NULL")
-		}
-		*written = 0
-		if capacity < 0 {
-			return fail(codeInvalidArgument, "capacity %d must be >= 0", capacity)
-		}
-		if ids == nil && capacity > 0 {
-			return fail(codeNullPointer, "star_ids is NULL with capacity %d", capacity)
-		}
 		probs := s.out.Problems
-		n := min(int64(len(probs)), capacity)
-		if n > 0 {
-			d := unsafe.Slice(ids, n)
-			for k := range d {
-				d[k] = probs[k].StarID
-			}
-			if channels != nil {
-				c := unsafe.Slice(channels, n)
-				for k := range c {
-					c[k] = int32(probs[k].Channel)
-				}
-			}
+		var chans []int32
+		if channels != nil && capacity > 0 {
+			chans = unsafe.Slice(channels, min(int64(len(probs)), capacity))
 		}
-		*written = n
-		if n < int64(len(probs)) {
-			return fail(codeBufferTooSmall, "%d undeposited releases, buffer holds %d", len(probs), capacity)
-		}
-		return nil
+		return copyOut(ids, capacity, written, "star_ids", "undeposited releases", len(probs), false, func(k int, d *int64) {
+			*d = probs[k].StarID
+			if chans != nil {
+				chans[k] = int32(probs[k].Channel)
+			}
+		})
 	})
 }
 
 func entryCopyRecords(h uint64, dst *recordABI, capacity int64, written *int64) int32 {
 	return withSession(h, func(s *session) error {
-		if written == nil {
-			return fail(codeNullPointer, "written is NULL")
-		}
-		*written = 0
-		if capacity < 0 {
-			return fail(codeInvalidArgument, "capacity %d must be >= 0", capacity)
-		}
-		if dst == nil && capacity > 0 {
-			return fail(codeNullPointer, "records is NULL with capacity %d", capacity)
-		}
-		n := min(int64(len(s.out.Records)), capacity)
-		if n > 0 {
-			d := unsafe.Slice(dst, n)
-			for k := range d {
-				recordToABI(&s.out.Records[k], &d[k])
-			}
-		}
-		*written = n
-		if n < int64(len(s.out.Records)) {
-			return fail(codeBufferTooSmall, "%d records, buffer holds %d", len(s.out.Records), capacity)
-		}
-		return nil
+		return copyOut(dst, capacity, written, "records", "records", len(s.out.Records), false, func(k int, d *recordABI) {
+			recordToABI(&s.out.Records[k], d)
+		})
 	})
+}
+
+// copyOut checks a caller's output buffer (dst with room for capacity
+// entries; written receives the count) and fills the first
+// min(n, capacity) entries with fill. A short buffer gets what fits and the
+// call fails with codeBufferTooSmall; *written is then the number copied,
+// or n when totalOnShort (the calls whose header says so).
+func copyOut[T any](dst *T, capacity int64, written *int64, name, what string, n int, totalOnShort bool, fill func(k int, d *T)) error {
+	if written == nil {
+		return fail(codeNullPointer, "written is NULL")
+	}
+	*written = 0
+	if capacity < 0 {
+		return fail(codeInvalidArgument, "capacity %d must be >= 0", capacity)
+	}
+	if dst == nil && capacity > 0 {
+		return fail(codeNullPointer, "%s is NULL with capacity %d", name, capacity)
+	}
+	k := min(int64(n), capacity)
+	if k > 0 {
+		d := unsafe.Slice(dst, k)
+		for i := range d {
+			fill(i, &d[i])
+		}
+	}
+	*written = k
+	if k < int64(n) {
+		if totalOnShort {
+			*written = int64(n)
+		}
+		return fail(codeBufferTooSmall, "%d %s, buffer holds %d", n, what, capacity)
+	}
+	return nil
 }
 
 func entryGetLedger(h uint64, dst *ledgerABI) int32 {
@@ -986,31 +982,11 @@ func entryApplyRecords(h uint64, recs *recordABI, n int64, locate int32, report 
 
 func entryCopyTouched(h uint64, dst *touchedABI, capacity int64, written *int64) int32 {
 	return withSession(h, func(s *session) error {
-		if written == nil {
-			return fail(codeNullPointer, "written is NULL")
-		}
-		*written = 0
-		if capacity < 0 {
-			return fail(codeInvalidArgument, "capacity %d must be >= 0", capacity)
-		}
-		if dst == nil && capacity > 0 {
-			return fail(codeNullPointer, "touched is NULL with capacity %d", capacity)
-		}
-		n := min(int64(len(s.touched)), capacity)
-		if n > 0 {
-			d := unsafe.Slice(dst, n)
-			for k := range d {
-				t := &s.touched[k]
-				d[k] = touchedABI{GasIndex: int64(t.Index), GasID: t.ID, MaxKick: t.MaxKick, MaxHeating: t.MaxHeating,
-					CoolingOffUntil: t.CoolingOffUntil, Flags: uint32(t.Flags)}
-			}
-		}
-		if n < int64(len(s.touched)) {
-			*written = int64(len(s.touched))
-			return fail(codeBufferTooSmall, "%d touched elements, buffer holds %d", len(s.touched), capacity)
-		}
-		*written = n
-		return nil
+		return copyOut(dst, capacity, written, "touched", "touched elements", len(s.touched), true, func(k int, d *touchedABI) {
+			t := &s.touched[k]
+			*d = touchedABI{GasIndex: int64(t.Index), GasID: t.ID, MaxKick: t.MaxKick, MaxHeating: t.MaxHeating,
+				CoolingOffUntil: t.CoolingOffUntil, Flags: uint32(t.Flags)}
+		})
 	})
 }
 

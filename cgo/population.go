@@ -334,36 +334,17 @@ func entryStepPopulation(h uint64, stars *starParticleABI, n int64, dt float64, 
 
 func entryCopyStarResults(h uint64, dst *starResultABI, capacity int64, written *int64) int32 {
 	return withSession(h, func(s *session) error {
-		if written == nil {
-			return fail(codeNullPointer, "written is NULL")
-		}
-		*written = 0
-		if capacity < 0 {
-			return fail(codeInvalidArgument, "capacity %d must be >= 0", capacity)
-		}
-		if dst == nil && capacity > 0 {
-			return fail(codeNullPointer, "results is NULL with capacity %d", capacity)
-		}
 		p := s.popResults()
-		if p == nil {
-			return nil
+		n := 0
+		if p != nil {
+			n = len(p.stars)
 		}
-		all := int64(len(p.stars))
-		k := min(all, capacity)
-		if k > 0 {
-			d := unsafe.Slice(dst, k)
-			for i := range d {
-				d[i] = starResultABI{
-					ID: p.stars[i].ID, MassLoss: p.out.MassLoss[i], CarriedEnergy: p.out.Carry[i],
-					SupernovaeCC: p.counts[i][yields.CoreCollapse], SupernovaeIa: p.counts[i][yields.TypeIa],
-				}
+		return copyOut(dst, capacity, written, "results", "star results", n, false, func(i int, d *starResultABI) {
+			*d = starResultABI{
+				ID: p.stars[i].ID, MassLoss: p.out.MassLoss[i], CarriedEnergy: p.out.Carry[i],
+				SupernovaeCC: p.counts[i][yields.CoreCollapse], SupernovaeIa: p.counts[i][yields.TypeIa],
 			}
-		}
-		*written = k
-		if k < all {
-			return fail(codeBufferTooSmall, "%d star results, buffer holds %d", all, capacity)
-		}
-		return nil
+		})
 	})
 }
 
