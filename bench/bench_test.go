@@ -8,7 +8,7 @@ import (
 )
 
 // BenchmarkSchemes times each scheme (Couple then Apply, 256 stars on the
-// quick suite's glass, 64 neighbours) and, in the same loop, the touch-only
+// quick suite's glass, 64 neighbors) and, in the same loop, the touch-only
 // floor on the same gas, reporting ns per star for both and their ratio
 // (touch-ratio: scheme time over floor time).
 func BenchmarkSchemes(b *testing.B) {
@@ -19,7 +19,7 @@ func BenchmarkSchemes(b *testing.B) {
 	}
 	tree := newTestTree(b, c)
 	sources := supernovae(c)
-	k := suite.Neighbours
+	k := suite.Neighbors
 	for _, s := range Schemes() {
 		b.Run(s.Name, func(b *testing.B) {
 			work := c.Gas.Clone()
@@ -69,7 +69,7 @@ func BenchmarkTouchFloor(b *testing.B) {
 	b.ReportAllocs()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		if _, err := floor.Touch(gas, tree, c.Stars, suite.Neighbours); err != nil {
+		if _, err := floor.Touch(gas, tree, c.Stars, suite.Neighbors); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -32,7 +32,7 @@
 //     energy in.
 //   - Speed: stars and gas elements per second of Couple plus Apply, and
 //     the ratio of its time to the touch-only floor (TouchFloor: the same
-//     neighbour search, gathers and scatters with no physics) measured on
+//     neighbor search, gathers and scatters with no physics) measured on
 //     the same gas in the same run.
 //
 // WriteResults writes results.json, a CSV per table and PNG plots

@@ -65,7 +65,7 @@ func TestTerminalColumnFollowsKimOstriker(t *testing.T) {
 		// shared terminal momentum is the fit's at the set-up density.
 		assert.InEpsilon(t, 2.17e5*math.Pow(r.DensityCm3, -0.13), r.TerminalMsunKms, 0.01, "n=%g m=%g", r.DensityCm3, r.GasMassMsun)
 		// Coupled mass is the k nearest equal-mass elements.
-		assert.InEpsilon(t, float64(res.Neighbours)*r.GasMassMsun, r.CoupledMassMsun, 1e-12)
+		assert.InEpsilon(t, float64(res.Neighbors)*r.GasMassMsun, r.CoupledMassMsun, 1e-12)
 	}
 }
 
@@ -73,12 +73,12 @@ func TestTerminalColumnFollowsKimOstriker(t *testing.T) {
 // shell-formation mass (coupled mass under M_sf/10, Kim & Ostriker 2015
 // from memory) the remnant is still energy conserving: the scheme hands
 // out between 85% and 100% of p_EC. It cannot exceed p_EC (each
-// neighbour's sweep-up momentum sqrt(2 m_j f e_j) sums to at most the
+// neighbor's sweep-up momentum sqrt(2 m_j f e_j) sums to at most the
 // momentum of the whole swept mass, by Cauchy–Schwarz, with equality for
 // equal shares); it falls short because kernel-volume shares are unequal
-// and the far neighbours, with small shares, reach their share of the
+// and the far neighbors, with small shares, reach their share of the
 // terminal momentum first (measured: 0.89–0.91 on the lattice and glass).
-// Well above it (coupled mass over 10 M_sf) every neighbour is capped and
+// Well above it (coupled mass over 10 M_sf) every neighbor is capped and
 // the total is the terminal momentum to 1e-6 (measured: round-off).
 func TestTerminalMomentumConvergence(t *testing.T) {
 	res := runQuick(t, "uniform-lattice", "glass")
@@ -181,7 +181,7 @@ func TestEnergyBudgetCloses(t *testing.T) {
 		// radiated nearly all its energy (Thornton et al. 1998, from
 		// memory: thermal energy falls as (R/R_cool)^-6.5).
 		if r.Scheme == "terminal-momentum" && r.Setup == "uniform-lattice" &&
-			float64(res.Neighbours)*r.GasMassMsun >= 100*shellFormationMass(r.DensityCm3) {
+			float64(res.Neighbors)*r.GasMassMsun >= 100*shellFormationMass(r.DensityCm3) {
 			assert.Greater(t, r.Radiated, 0.9, "n=%g m=%g", r.DensityCm3, r.GasMassMsun)
 		}
 	}
@@ -215,7 +215,7 @@ func TestRunRejectsBadInput(t *testing.T) {
 		{"no densities", func() Suite { s := good; s.DensitiesCm3 = nil; return s }, Options{}},
 		{"negative density", func() Suite { s := good; s.DensitiesCm3 = []float64{-1}; return s }, Options{}},
 		{"NaN mass", func() Suite { s := good; s.GasMassesMsun = []float64{math.NaN()}; return s }, Options{}},
-		{"no neighbours", func() Suite { s := good; s.Neighbours = 0; return s }, Options{}},
+		{"no neighbors", func() Suite { s := good; s.Neighbors = 0; return s }, Options{}},
 		{"too few elements", func() Suite { s := good; s.Elements = 10; return s }, Options{}},
 		{"empty scheme list", func() Suite { return good }, Options{Schemes: []SchemeSpec{}}},
 		{"unknown speed set-up", func() Suite { s := good; s.Speed.Stars = 4; s.Speed.Setup = "nowhere"; return s }, Options{}},

@@ -400,7 +400,7 @@ func speedFigure(res *Result) (*Figure, error) {
 	}
 	w := vg.Points(math.Min(18, 240/float64(len(names))))
 	p1 := plot.New()
-	p1.Title.Text = fmt.Sprintf("speed on %s, %d stars x %d neighbours", res.Speed[0].Setup, res.Speed[0].Stars, res.Speed[0].Neighbours)
+	p1.Title.Text = fmt.Sprintf("speed on %s, %d stars x %d neighbors", res.Speed[0].Setup, res.Speed[0].Stars, res.Speed[0].Neighbors)
 	p1.X.Label.Text = "scheme"
 	p1.Y.Label.Text = "stars per second [1/s]"
 	nominalBars(p1, names)

@@ -38,8 +38,8 @@ type Suite struct {
 	GasMassesMsun []float64
 	// Elements is the approximate gas element count of each case.
 	Elements int
-	// Neighbours is the number of nearest gas elements each star couples to.
-	Neighbours int
+	// Neighbors is the number of nearest gas elements each star couples to.
+	Neighbors int
 	// Seed makes the set-ups reproducible; every case of a set-up uses it,
 	// so the geometry is the same at every density and resolution, only
 	// scaled.
@@ -69,13 +69,13 @@ type SpeedSpec struct {
 
 // QuickSuite is the standard suite: four set-ups at densities 0.1 to 1e3
 // cm^-3 and gas element masses 1 to 1e5 Msun, by decades, about 4000
-// elements each, 64 neighbours. It finishes within seconds.
+// elements each, 64 neighbors. It finishes within seconds.
 func QuickSuite() Suite {
 	return Suite{
 		Name: "quick", Setups: StandardSetups(),
 		DensitiesCm3:  []float64{0.1, 1, 10, 100, 1000},
 		GasMassesMsun: []float64{1, 10, 100, 1e3, 1e4, 1e5},
-		Elements:      4096, Neighbours: 64, Seed: 1,
+		Elements:      4096, Neighbors: 64, Seed: 1,
 		Speed: SpeedSpec{Setup: "glass", DensityCm3: 1, GasMassMsun: 100, Elements: 4096, Stars: 256,
 			MinDuration: 100 * time.Millisecond, MinRounds: 3},
 	}
@@ -138,7 +138,7 @@ type Options struct {
 type Result struct {
 	Suite              string         `json:"suite"`
 	Units              string         `json:"units"`
-	Neighbours         int            `json:"neighbours"`
+	Neighbors         int            `json:"neighbors"`
 	Seed               uint64         `json:"seed"`
 	SupernovaEnergyErg float64        `json:"supernova_energy_erg"`
 	EjectaMassMsun     float64        `json:"ejecta_mass_msun"`
@@ -168,7 +168,7 @@ type SetupInfo struct {
 //
 // EnergyConserving is the momentum of energy-conserving sweep-up of the
 // coupled gas, p_EC = sqrt(2 E (M_ej + 0.28 M_sw)), with M_sw the mass of
-// the star's coupled neighbours: the shell's kinetic energy p^2 / 2 (M_ej +
+// the star's coupled neighbors: the shell's kinetic energy p^2 / 2 (M_ej +
 // M_sw) is the Sedov–Taylor kinetic share 0.28 E of the swept gas plus the
 // whole energy share of the ejecta, so p_EC runs from the free-ejecta
 // momentum sqrt(2 M_ej E) (definition) to sqrt(2 x 0.28 E M_sw) (Sedov
@@ -176,7 +176,7 @@ type SetupInfo struct {
 //
 // Terminal is the terminal momentum of TerminalFit shared as the scheme
 // shared the release: sum_j w_j p_t(E, n_j, Z_j) over the coupled
-// neighbours, with w_j their share of the ejecta; in uniform gas it is
+// neighbors, with w_j their share of the ejecta; in uniform gas it is
 // p_t(E, n).
 type Convergence struct {
 	Scheme                 string  `json:"scheme"`
@@ -226,7 +226,7 @@ type Speed struct {
 	Scheme         string  `json:"scheme"`
 	Setup          string  `json:"setup"`
 	Stars          int     `json:"stars"`
-	Neighbours     int     `json:"neighbours"`
+	Neighbors     int     `json:"neighbors"`
 	StarsPerS      float64 `json:"stars_per_s"`
 	TouchedPerS    float64 `json:"touched_per_s"`
 	FloorStarsPerS float64 `json:"floor_stars_per_s"`
@@ -256,7 +256,7 @@ func Run(suite Suite, opts Options) (*Result, error) {
 			}
 		}
 	}
-	res, err := run(cases, speedCase, suite.Neighbours, suite.Speed, opts)
+	res, err := run(cases, speedCase, suite.Neighbors, suite.Speed, opts)
 	if err != nil {
 		return nil, err
 	}
@@ -272,7 +272,7 @@ func Run(suite Suite, opts Options) (*Result, error) {
 // read with ReadGasDir, say), timing them on the same case when
 // speed.Stars > 0 (the case's own stars are used; speed.Stars only
 // switches the measurement on).
-func RunCase(c *Case, neighbours int, speed SpeedSpec, opts Options) (*Result, error) {
+func RunCase(c *Case, neighbors int, speed SpeedSpec, opts Options) (*Result, error) {
 	if c == nil {
 		return nil, errors.New("run case: nil case")
 	}
@@ -280,7 +280,7 @@ func RunCase(c *Case, neighbours int, speed SpeedSpec, opts Options) (*Result, e
 	if speed.Stars > 0 {
 		sc = c
 	}
-	res, err := run([]caseSource{{ready: c, name: c.Setup}}, sc, neighbours, speed, opts)
+	res, err := run([]caseSource{{ready: c, name: c.Setup}}, sc, neighbors, speed, opts)
 	if err != nil {
 		return nil, err
 	}
@@ -308,7 +308,7 @@ func (cs caseSource) get() (*Case, error) {
 	return c, nil
 }
 
-func run(cases []caseSource, speedCase *Case, neighbours int, speed SpeedSpec, opts Options) (*Result, error) {
+func run(cases []caseSource, speedCase *Case, neighbors int, speed SpeedSpec, opts Options) (*Result, error) {
 	schemes := opts.Schemes
 	if schemes == nil {
 		schemes = Schemes()
@@ -316,10 +316,10 @@ func run(cases []caseSource, speedCase *Case, neighbours int, speed SpeedSpec, o
 	if len(schemes) == 0 {
 		return nil, errors.New("run: no schemes to compare")
 	}
-	if neighbours <= 0 {
-		return nil, fmt.Errorf("run: neighbour count %d must be positive", neighbours)
+	if neighbors <= 0 {
+		return nil, fmt.Errorf("run: neighbor count %d must be positive", neighbors)
 	}
-	res := &Result{Units: "pc, Msun, km/s (momenta in Msun km/s)", Neighbours: neighbours,
+	res := &Result{Units: "pc, Msun, km/s (momenta in Msun km/s)", Neighbors: neighbors,
 		SupernovaEnergyErg: SupernovaEnergyErg, EjectaMassMsun: EjectaMassMsun, TerminalFit: TerminalFit.String()}
 	for _, s := range schemes {
 		res.Schemes = append(res.Schemes, SchemeInfo{Name: s.Name, Description: s.Description})
@@ -346,11 +346,11 @@ func run(cases []caseSource, speedCase *Case, neighbours int, speed SpeedSpec, o
 		}
 		tree, err := neighbor.NewTree(c.Gas.Packed(), c.Gas.ID, c.Box)
 		if err != nil {
-			return nil, fmt.Errorf("run: set-up %s: neighbour tree: %w", c.Setup, err)
+			return nil, fmt.Errorf("run: set-up %s: neighbor tree: %w", c.Setup, err)
 		}
 		sources := supernovae(c)
 		gas := c.Gas.View()
-		k := min(neighbours, c.Gas.Len())
+		k := min(neighbors, c.Gas.Len())
 		for _, s := range schemes {
 			cp, err := newCoupler(s, c, k, opts.Workers)
 			if err != nil {
@@ -384,7 +384,7 @@ func run(cases []caseSource, speedCase *Case, neighbours int, speed SpeedSpec, o
 		res.Isotropy = append(res.Isotropy, *r)
 	}
 	if speedCase != nil {
-		rows, err := measureSpeed(speedCase, schemes, neighbours, speed, opts.Workers, step)
+		rows, err := measureSpeed(speedCase, schemes, neighbors, speed, opts.Workers, step)
 		if err != nil {
 			return nil, fmt.Errorf("run: %w", err)
 		}
@@ -395,7 +395,7 @@ func run(cases []caseSource, speedCase *Case, neighbours int, speed SpeedSpec, o
 
 func newCoupler(s SchemeSpec, c *Case, k, workers int) (*feedback.Coupler, error) {
 	cp, err := feedback.NewCoupler(feedback.Config{Units: c.Units, Scheme: s.Scheme, Weighting: s.Weighting,
-		SkipIsotropyCorrection: s.SkipIsotropyCorrection, Neighbours: k, Workers: workers, Box: c.Box})
+		SkipIsotropyCorrection: s.SkipIsotropyCorrection, Neighbors: k, Workers: workers, Box: c.Box})
 	if err != nil {
 		return nil, fmt.Errorf("scheme %s: %w", s.Name, err)
 	}
@@ -539,15 +539,15 @@ const floorPassesPerRound = 3
 // floor on the same gas, alternating floor and scheme passes and keeping
 // the fastest of each, which is the least disturbed by other work on the
 // machine.
-func measureSpeed(c *Case, schemes []SchemeSpec, neighbours int, spec SpeedSpec, workers int, step func()) ([]Speed, error) {
+func measureSpeed(c *Case, schemes []SchemeSpec, neighbors int, spec SpeedSpec, workers int, step func()) ([]Speed, error) {
 	pristine := c.Gas
 	work := pristine.Clone()
 	gas := work.View()
 	tree, err := neighbor.NewTree(pristine.Packed(), pristine.ID, c.Box)
 	if err != nil {
-		return nil, fmt.Errorf("speed: neighbour tree: %w", err)
+		return nil, fmt.Errorf("speed: neighbor tree: %w", err)
 	}
-	k := min(neighbours, pristine.Len())
+	k := min(neighbors, pristine.Len())
 	sources := supernovae(c)
 	restore := func() {
 		for a := 0; a < 3; a++ {
@@ -600,7 +600,7 @@ func measureSpeed(c *Case, schemes []SchemeSpec, neighbours int, spec SpeedSpec,
 		bestFloor = math.Max(bestFloor, 1e-9)
 		bestScheme = math.Max(bestScheme, 1e-9)
 		n := float64(len(c.Stars))
-		rows = append(rows, Speed{Scheme: s.Name, Setup: c.Setup, Stars: len(c.Stars), Neighbours: k,
+		rows = append(rows, Speed{Scheme: s.Name, Setup: c.Setup, Stars: len(c.Stars), Neighbors: k,
 			StarsPerS: n / bestScheme, TouchedPerS: float64(touched) / bestScheme,
 			FloorStarsPerS: n / bestFloor, TouchRatio: bestScheme / bestFloor})
 		step()

@@ -16,7 +16,7 @@ type SchemeSpec struct {
 	Description string
 	// Scheme splits each release.
 	Scheme feedback.Scheme
-	// Weighting shares the release among neighbours.
+	// Weighting shares the release among neighbors.
 	Weighting feedback.Weighting
 	// SkipIsotropyCorrection runs the variant without the isotropy
 	// correction, for comparison.

@@ -94,7 +94,7 @@ type Setup struct {
 //     fill a dense slab (density InterfaceContrast times the reference)
 //     below the plane z = 0 and ambient gas above it, each phase on its own
 //     cubic lattice; the star sits just on the ambient side of the face, a
-//     quarter of an ambient spacing above it. Most of its neighbours are in
+//     quarter of an ambient spacing above it. Most of its neighbors are in
 //     the slab, a few in the ambient gas: the hard case for isotropy.
 //   - clumpy-cloud: the demo scenario, a setting of our own with invented
 //     numbers. A spherical cloud whose mean density is the reference holds
@@ -335,7 +335,7 @@ func buildClumpyCloud(spec CaseSpec) (*Case, error) {
 }
 
 // estimateDensities sets each element's density to the mass of its k
-// nearest neighbours (itself included) over the volume of the sphere
+// nearest neighbors (itself included) over the volume of the sphere
 // reaching the k-th: a k-nearest estimate (common practice).
 func estimateDensities(g *feedbacktest.GasArrays, k int) error {
 	tree, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})

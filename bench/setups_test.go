@@ -171,5 +171,5 @@ func TestTouchFloorLeavesGasUnchanged(t *testing.T) {
 	_, err = f.Touch(c.Gas.View(), tree, c.Stars, 0)
 	assert.Error(t, err)
 	_, err = f.Touch(c.Gas.View(), tree, c.Stars, 5000)
-	assert.Error(t, err, "more neighbours than gas")
+	assert.Error(t, err, "more neighbors than gas")
 }

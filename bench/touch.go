@@ -14,7 +14,7 @@ import (
 // mass, density, specific internal energy, metallicity) through the same
 // strided columns, and scatters back the fields Apply writes (velocity,
 // mass, internal energy, metallicity) unchanged, doing no physics. Its time
-// is the floor set by the neighbour search and the memory traffic; a
+// is the floor set by the neighbor search and the memory traffic; a
 // scheme's time over it is the price of its physics, its bookkeeping
 // (records, ledger) and the ordered application of records.
 //
@@ -26,7 +26,7 @@ type TouchFloor struct {
 	index    []int
 }
 
-// Touch runs the floor kernel for every star on k neighbours and returns
+// Touch runs the floor kernel for every star on k neighbors and returns
 // the number of gas elements touched (k per star). The gas keeps its
 // values bit for bit.
 func (t *TouchFloor) Touch(gas *feedback.Gas, finder neighbor.Finder, stars []feedback.Star, k int) (int, error) {
@@ -34,7 +34,7 @@ func (t *TouchFloor) Touch(gas *feedback.Gas, finder neighbor.Finder, stars []fe
 		return 0, fmt.Errorf("touch floor: %w", err)
 	}
 	if k <= 0 {
-		return 0, fmt.Errorf("touch floor: neighbour count %d must be positive", k)
+		return 0, fmt.Errorf("touch floor: neighbor count %d must be positive", k)
 	}
 	metals := feedback.Column{}
 	for c, s := range gas.Species {

@@ -26,7 +26,7 @@ const (
 	codeInvalidContext  int32 = 4
 	codeNoGas           int32 = 5
 	codeBadValue        int32 = 6
-	codeNeighbours      int32 = 7
+	codeNeighbors      int32 = 7
 	codeBufferTooSmall  int32 = 8
 	codeUnknownGas      int32 = 9
 	codeBusy            int32 = 10
@@ -46,7 +46,7 @@ const (
 	locateByIndex     int32 = 0
 	locateByID        int32 = 1
 	maxWorkers              = 4096
-	defaultNeighbours       = feedback.DefaultNeighbours
+	defaultNeighbors       = feedback.DefaultNeighbors
 )
 
 // The Go mirrors of the structs of ejecta.h, field for field. The exports
@@ -61,7 +61,7 @@ type configABI struct {
 	CouplingRadius     float64
 	BoxSize            [3]float64
 	Seed               uint64
-	NeighbourCount     int32
+	NeighborCount     int32
 	WorkerThreads      int32
 	IsotropyCorrection int32
 	Reserved           int32
@@ -121,7 +121,7 @@ type recordABI struct {
 	Energy          float64
 	Heat            float64
 	Radiated        float64
-	CoolingOffUntil float64
+	HoldCoolingUntil float64
 	Kick            float64
 	Heating         float64
 }
@@ -163,7 +163,7 @@ type touchedABI struct {
 	GasID           int64
 	MaxKick         float64
 	MaxHeating      float64
-	CoolingOffUntil float64
+	HoldCoolingUntil float64
 	Flags           uint32
 	Reserved        int32
 }
@@ -364,10 +364,10 @@ func parseConfig(c *configABI) (feedback.Config, error) {
 	default:
 		return cfg, fail(codeInvalidArgument, "config isotropy_correction %d: want 0 or 1", c.IsotropyCorrection)
 	}
-	if c.NeighbourCount < 0 {
-		return cfg, fail(codeInvalidArgument, "config neighbour_count %d must be >= 0", c.NeighbourCount)
+	if c.NeighborCount < 0 {
+		return cfg, fail(codeInvalidArgument, "config neighbor_count %d must be >= 0", c.NeighborCount)
 	}
-	cfg.Neighbours = int(c.NeighbourCount)
+	cfg.Neighbors = int(c.NeighborCount)
 	if !(c.CouplingRadius >= 0) || math.IsInf(c.CouplingRadius, 0) {
 		return cfg, fail(codeInvalidArgument, "config coupling_radius %g must be finite and >= 0", c.CouplingRadius)
 	}
@@ -387,7 +387,7 @@ func parseConfig(c *configABI) (feedback.Config, error) {
 func defaultConfig() configABI {
 	c := configABI{
 		LengthCm: 1, MassG: 1, VelocityCmPerS: 1,
-		NeighbourCount: defaultNeighbours, WorkerThreads: 1, IsotropyCorrection: 1,
+		NeighborCount: defaultNeighbors, WorkerThreads: 1, IsotropyCorrection: 1,
 	}
 	copy(c.Scheme[:], feedback.TerminalMomentum{}.Name())
 	copy(c.RemnantFit[:], feedback.KimOstriker2015.String())
@@ -628,14 +628,14 @@ func (s *session) ownFinder() (neighbor.Finder, error) {
 		s.tree, err = neighbor.NewTree(s.packed, s.ids, s.cfg.Box)
 	}
 	if err != nil {
-		return nil, fail(codeNeighbours, "building the neighbour tree on the bound gas: %w", err)
+		return nil, fail(codeNeighbors, "building the neighbor tree on the bound gas: %w", err)
 	}
 	s.treeFresh = true
 	return s.tree, nil
 }
 
 // batchFinder checks that the batch's star IDs (in s.starIDs) are unique
-// and returns the finder of the step's neighbour mode.
+// and returns the finder of the step's neighbor mode.
 func (s *session) batchFinder(n int, mode int32, offsets, indices *int64) (neighbor.Finder, error) {
 	slices.Sort(s.starIDs)
 	for i := 1; i < len(s.starIDs); i++ {
@@ -657,7 +657,7 @@ func (s *session) rowFinder(n int, offsets, indices *int64) (neighbor.Finder, er
 	offs := unsafe.Slice(offsets, n+1)
 	total := offs[n]
 	if offs[0] != 0 || total < 0 || total > math.MaxInt32*64 {
-		return nil, fail(codeNeighbours, "row_offsets[0] = %d and row_offsets[%d] = %d: want 0 and a non-negative total", offs[0], n, total)
+		return nil, fail(codeNeighbors, "row_offsets[0] = %d and row_offsets[%d] = %d: want 0 and a non-negative total", offs[0], n, total)
 	}
 	if total > 0 && indices == nil {
 		return nil, fail(codeNullPointer, "row_indices is NULL with %d entries", total)
@@ -670,7 +670,7 @@ func (s *session) rowFinder(n int, offsets, indices *int64) (neighbor.Finder, er
 	if total > 0 {
 		for _, i := range unsafe.Slice(indices, total) {
 			if i < 0 || i >= int64(s.gas.N) {
-				return nil, fail(codeNeighbours, "row_indices names gas index %d, want [0, %d)", i, s.gas.N)
+				return nil, fail(codeNeighbors, "row_indices names gas index %d, want [0, %d)", i, s.gas.N)
 			}
 			s.indices = append(s.indices, int(i))
 		}
@@ -679,7 +679,7 @@ func (s *session) rowFinder(n int, offsets, indices *int64) (neighbor.Finder, er
 	s.ids = s.gas.IDs(s.ids)
 	// The host's rows are handed over every step: reuse the lists' scratch.
 	if err := s.rows.Reset(s.packed, s.ids, s.cfg.Box, s.offsets, s.indices); err != nil {
-		return nil, fail(codeNeighbours, "host rows: %w", err)
+		return nil, fail(codeNeighbors, "host rows: %w", err)
 	}
 	return &s.rows, nil
 }
@@ -713,7 +713,7 @@ func (s *session) step(stars *starABI, n int64, mode int32, offsets, indices *in
 		return fail(codeInvalidArgument, "n_stars %d must be positive", n)
 	}
 	if mode != modeOwnFinder && mode != modeHostRows {
-		return fail(codeInvalidArgument, "neighbour_mode %d: want %d (own finder) or %d (host rows)", mode, modeOwnFinder, modeHostRows)
+		return fail(codeInvalidArgument, "neighbor_mode %d: want %d (own finder) or %d (host rows)", mode, modeOwnFinder, modeHostRows)
 	}
 	if !s.bound {
 		return fail(codeNoGas, "no gas bound: call ejecta_bind_gas first")
@@ -869,7 +869,7 @@ func recordToABI(r *feedback.Record, d *recordABI) {
 		GasIndex: int64(r.GasIndex), GasID: r.GasID, StarID: r.StarID,
 		Channel: int32(r.Channel), Flags: uint32(r.Flags),
 		Mass: r.Mass, SpeciesMass: r.Species, Momentum: r.Momentum, Energy: r.Energy, Heat: r.Heat,
-		Radiated: r.Radiated, CoolingOffUntil: r.CoolingOffUntil, Kick: r.Kick, Heating: r.Heating,
+		Radiated: r.Radiated, HoldCoolingUntil: r.HoldCoolingUntil, Kick: r.Kick, Heating: r.Heating,
 	}
 }
 
@@ -878,7 +878,7 @@ func recordFromABI(d *recordABI) feedback.Record {
 		GasIndex: int(d.GasIndex), GasID: d.GasID, StarID: d.StarID, Channel: yields.Channel(d.Channel),
 		Deposit: feedback.Deposit{
 			Mass: d.Mass, Species: d.SpeciesMass, Momentum: d.Momentum, Energy: d.Energy, Heat: d.Heat,
-			Radiated: d.Radiated, Flags: feedback.Flags(d.Flags), CoolingOffUntil: d.CoolingOffUntil,
+			Radiated: d.Radiated, Flags: feedback.Flags(d.Flags), HoldCoolingUntil: d.HoldCoolingUntil,
 		},
 		Kick: d.Kick, Heating: d.Heating,
 	}
@@ -985,7 +985,7 @@ func entryCopyTouched(h uint64, dst *touchedABI, capacity int64, written *int64)
 		return copyOut(dst, capacity, written, "touched", "touched elements", len(s.touched), true, func(k int, d *touchedABI) {
 			t := &s.touched[k]
 			*d = touchedABI{GasIndex: int64(t.Index), GasID: t.ID, MaxKick: t.MaxKick, MaxHeating: t.MaxHeating,
-				CoolingOffUntil: t.CoolingOffUntil, Flags: uint32(t.Flags)}
+				HoldCoolingUntil: t.HoldCoolingUntil, Flags: uint32(t.Flags)}
 		})
 	})
 }

@@ -146,7 +146,7 @@ func TestConfigErrors(t *testing.T) {
 		}, codeUnknownName, "NUL"},
 		{"NaN length", func(c *configABI) { c.LengthCm = math.NaN() }, codeInvalidArgument, "units"},
 		{"zero mass unit", func(c *configABI) { c.MassG = 0 }, codeInvalidArgument, "units"},
-		{"negative count", func(c *configABI) { c.NeighbourCount = -1 }, codeInvalidArgument, "neighbour_count"},
+		{"negative count", func(c *configABI) { c.NeighborCount = -1 }, codeInvalidArgument, "neighbor_count"},
 		{"NaN radius", func(c *configABI) { c.CouplingRadius = math.NaN() }, codeInvalidArgument, "coupling_radius"},
 		{"negative box", func(c *configABI) { c.BoxSize[1] = -1 }, codeInvalidArgument, "box"},
 		{"too many workers", func(c *configABI) { c.WorkerThreads = 5000 }, codeInvalidArgument, "worker_threads"},
@@ -238,7 +238,7 @@ func TestStepAndApplyErrors(t *testing.T) {
 		{"duplicate star IDs", func() int32 { return entryStep(h, &dup[0], 2, modeOwnFinder, nil, nil) }, codeInvalidArgument},
 		{"unknown channel", func() int32 { return entryStep(h, &badChannel[0], 1, modeOwnFinder, nil, nil) }, codeInvalidArgument},
 		{"rows without offsets", func() int32 { return entryStep(h, &good[0], 2, modeHostRows, nil, nil) }, codeNullPointer},
-		{"row naming one element twice", func() int32 { return entryStep(h, &good[0], 2, modeHostRows, &offs[0], &idx[0]) }, codeNeighbours},
+		{"row naming one element twice", func() int32 { return entryStep(h, &good[0], 2, modeHostRows, &offs[0], &idx[0]) }, codeNeighbors},
 		{"apply before step", func() int32 { return entryApplyStepRecords(h, nil) }, codeInvalidArgument},
 		{"negative record count", func() int32 { return entryApplyRecords(h, nil, -1, locateByID, nil) }, codeInvalidArgument},
 		{"null records", func() int32 { return entryApplyRecords(h, nil, 3, locateByID, nil) }, codeNullPointer},
@@ -412,7 +412,7 @@ func FuzzEntryPoints(f *testing.F) {
 		c.Scheme, c.Weighting = [nameCapacity]byte{}, [nameCapacity]byte{}
 		copy(c.Scheme[:], scheme)
 		copy(c.Weighting[:], weighting)
-		c.NeighbourCount, c.CouplingRadius = k, radius
+		c.NeighborCount, c.CouplingRadius = k, radius
 		c.BoxSize = [3]float64{8, 8, 8}
 		var h uint64
 		var msg [128]byte

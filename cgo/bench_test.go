@@ -19,11 +19,11 @@ import (
 // The benchmark set-up shared by BenchmarkStepFromGo and the C host
 // examples/bench_host.c: benchGas elements uniformly random in a periodic
 // box of about one element per pc^3, benchStars supernovae, each coupled to
-// its benchNeighbours nearest elements, one worker.
+// its benchNeighbors nearest elements, one worker.
 const (
 	benchGas        = 1_000_000
 	benchStars      = 10_000
-	benchNeighbours = 64
+	benchNeighbors = 64
 )
 
 // benchElement is the C host's bench_element.
@@ -90,7 +90,7 @@ func BenchmarkStepFromGo(b *testing.B) {
 		src.Species[yields.Metals] = 2
 	}
 	cfg := feedback.Config{Units: u, Scheme: feedback.TerminalMomentum{Fit: feedback.KimOstriker2015},
-		Neighbours: benchNeighbours, Workers: 1, Box: neighbor.Box{Size: [3]float64{box, box, box}}}
+		Neighbors: benchNeighbors, Workers: 1, Box: neighbor.Box{Size: [3]float64{box, box, box}}}
 	c, err := feedback.NewCoupler(cfg)
 	require.NoError(b, err)
 	tree, err := neighbor.NewTree(gas.PackedPositions(nil), gas.IDs(nil), cfg.Box)
@@ -119,7 +119,7 @@ func BenchmarkStepThroughABI(b *testing.B) {
 	bin := filepath.Join(b.TempDir(), "bench_host")
 	compile(b, gcc, "-std=c11", "-O2", "-I.", "-o", bin, filepath.Join("examples", "bench_host.c"), "-L"+lib, "-lejecta", "-Wl,-rpath,"+lib)
 	b.ResetTimer()
-	out, err := exec.Command(bin, strconv.Itoa(benchGas), strconv.Itoa(benchStars), strconv.Itoa(benchNeighbours), strconv.Itoa(b.N)).CombinedOutput()
+	out, err := exec.Command(bin, strconv.Itoa(benchGas), strconv.Itoa(benchStars), strconv.Itoa(benchNeighbors), strconv.Itoa(b.N)).CombinedOutput()
 	b.StopTimer()
 	require.NoError(b, err, "%s", out)
 	kv := keyValues(string(out))

@@ -74,10 +74,10 @@ extern "C" {
 /* A value is NaN, infinite or negative where it must not be (a star, a
  * release, a record). Nothing was changed. */
 #define EJECTA_ERR_BAD_VALUE 6
-/* The neighbour search or the host-supplied neighbour rows failed (rows
- * malformed, fewer candidates than the neighbour count). Nothing was
+/* The neighbor search or the host-supplied neighbor rows failed (rows
+ * malformed, fewer candidates than the neighbor count). Nothing was
  * deposited. */
-#define EJECTA_ERR_NEIGHBOURS 7
+#define EJECTA_ERR_NEIGHBORS 7
 /* A caller buffer is too small; the call wrote what fitted (see its
  * documentation) and reports the size needed. */
 #define EJECTA_ERR_BUFFER_TOO_SMALL 8
@@ -87,7 +87,7 @@ extern "C" {
 /* Another call on the same context is running. Nothing was changed. */
 #define EJECTA_ERR_BUSY 10
 /* The step completed but the release of at least one star was returned
- * undeposited (no gas within reach, or a neighbour with bad fields: NaN,
+ * undeposited (no gas within reach, or a neighbor with bad fields: NaN,
  * non-positive mass or density). Records and ledger are valid; the ledger's
  * undeposited quantities hold what was returned; ejecta_last_error names the
  * first such star and the number of them. */
@@ -139,16 +139,16 @@ extern "C" {
 /* Channels only a population step drives (ejecta_record.channel,
  * ejecta_get_channel_ledger); not accepted in ejecta_star.channel. */
 #define EJECTA_CHANNEL_RADIATION_PRESSURE 4
-#define EJECTA_CHANNEL_PHOTOIONISATION 5
+#define EJECTA_CHANNEL_PHOTOIONIZATION 5
 /* Number of channels a population step drives (0..5 above). */
 #define EJECTA_NUM_STEP_CHANNELS 6
 
-/* Where a step finds each star's gas (ejecta_step's neighbour_mode). */
+/* Where a step finds each star's gas (ejecta_step's neighbor_mode). */
 /* ejecta's own k-d tree, built on the bound gas positions. */
-#define EJECTA_NEIGHBOURS_OWN_FINDER 0
+#define EJECTA_NEIGHBORS_OWN_FINDER 0
 /* The host's compressed rows: the candidates of star s are
  * row_indices[row_offsets[s] .. row_offsets[s+1]-1], 0-based gas indices. */
-#define EJECTA_NEIGHBOURS_HOST_ROWS 1
+#define EJECTA_NEIGHBORS_HOST_ROWS 1
 
 /* How ejecta_apply_records finds each record's gas element. */
 /* By ejecta_record.gas_index (records made by this context's last step). */
@@ -164,11 +164,11 @@ extern "C" {
 /* The star's kicks were scaled down so that no element's heat went
  * negative. */
 #define EJECTA_FLAG_LIMITED 2u
-/* The element is photoionised. */
-#define EJECTA_FLAG_IONISED 4u
-/* The host should switch cooling off for the element until
- * cooling_off_until (code time from the step start). */
-#define EJECTA_FLAG_COOLING_OFF 8u
+/* The element is photoionized. */
+#define EJECTA_FLAG_IONIZED 4u
+/* The host should hold cooling for the element until
+ * hold_cooling_until (code time from the step start). */
+#define EJECTA_FLAG_HOLD_COOLING 8u
 /* The element was chosen by stochastic heating. */
 #define EJECTA_FLAG_STOCHASTIC 16u
 
@@ -194,7 +194,7 @@ typedef struct ejecta_config {
    * other schemes. */
   double kinetic_fraction;
   /* Radius mode: when > 0, each star couples to every gas element within
-   * this distance (code length), and neighbour_count is ignored. With
+   * this distance (code length), and neighbor_count is ignored. With
    * host rows, the members of the row within the radius. */
   double coupling_radius;
   /* Periodic box side per axis (code length); 0 leaves the axis open. */
@@ -206,10 +206,10 @@ typedef struct ejecta_config {
    * the same numbers for the same star. Population steps also key their
    * supernova draws with this seed, and use the host's step_index. */
   uint64_t seed;
-  /* Count mode: each star couples to its neighbour_count nearest gas
+  /* Count mode: each star couples to its neighbor_count nearest gas
    * elements (host rows: nearest of its row, which must be at least that
    * long). 0 means 32. Must be >= 0. */
-  int32_t neighbour_count;
+  int32_t neighbor_count;
   /* Goroutines used inside a step; 0 means 1; at most 4096. Results do not
    * depend on it. */
   int32_t worker_threads;
@@ -219,7 +219,7 @@ typedef struct ejecta_config {
   int32_t reserved;
   /* NUL-terminated names: scheme "thermal-dump", "kinetic",
    * "terminal-momentum", "stochastic-heating", "stellar-winds",
-   * "radiation-pressure" or "photoionisation"; remnant_fit
+   * "radiation-pressure" or "photoionization"; remnant_fit
    * (terminal-momentum and stellar-winds)
    * "kim-ostriker-2015" or "cioffi-mckee-bertschinger-1988"; weighting
    * "kernel-volume" or "solid-angle". An empty remnant_fit or weighting
@@ -288,9 +288,9 @@ typedef struct ejecta_star {
   /* Release: ejected mass, its species masses (species_mass[s] <=
    * ejected_mass), energy (explosion energy, wind kinetic energy, emitted
    * light for radiation pressure), number of discrete events (supernovae;
-   * 0 for continuous release), hydrogen-ionising photons emitted over the
+   * 0 for continuous release), hydrogen-ionizing photons emitted over the
    * step and the step's duration (code time; both used by
-   * photoionisation, 0 otherwise). All finite and >= 0. */
+   * photoionization, 0 otherwise). All finite and >= 0. */
   double ejected_mass;
   double species_mass[EJECTA_NUM_SPECIES];
   double energy;
@@ -317,8 +317,8 @@ typedef struct ejecta_record {
   double heat;
   /* Energy booked as radiated on the element's behalf. */
   double radiated;
-  /* With EJECTA_FLAG_COOLING_OFF: code time from the step start. */
-  double cooling_off_until;
+  /* With EJECTA_FLAG_HOLD_COOLING: code time from the step start. */
+  double hold_cooling_until;
   /* Speed change this deposit alone gives the element, and its heat per
    * unit mass (timestep help). */
   double kick;
@@ -342,11 +342,11 @@ typedef struct ejecta_ledger {
   ejecta_quantities released;
   /* What the records carry into the gas. */
   ejecta_quantities deposited;
-  /* What was returned to the caller (stars with no gas, bad neighbours). */
+  /* What was returned to the caller (stars with no gas, bad neighbors). */
   ejecta_quantities undeposited;
   /* Energy booked as radiated by unresolved remnants. */
   double radiated;
-  /* Stars handled; of those, returned undeposited; with a neighbour capped
+  /* Stars handled; of those, returned undeposited; with a neighbor capped
    * at the terminal momentum; with kicks scaled down. */
   int64_t stars;
   int64_t skipped;
@@ -390,7 +390,7 @@ typedef struct ejecta_touched {
   int64_t gas_id;
   double max_kick;
   double max_heating;
-  double cooling_off_until;
+  double hold_cooling_until;
   uint32_t flags;
   int32_t reserved;
 } ejecta_touched;
@@ -401,17 +401,17 @@ typedef struct ejecta_touched {
  * host hands ejecta only its star particles and the step length; ejecta
  * works out what each star releases over [age, age + dt] from a stellar
  * population model (core-collapse and Type Ia supernovae drawn as whole
- * events, winds, radiation pressure, photoionisation), couples every
+ * events, winds, radiation pressure, photoionization), couples every
  * channel and keeps records and ledger exactly as ejecta_step does.
  *
  * The population has its own struct and call rather than fields of
  * ejecta_config so that ejecta_config's layout, and every host that fills
  * it, stays as it is: a context without a population behaves exactly as
  * before, and a host that wants population steps adds one call after
- * ejecta_create. The scheme, remnant fit, weighting, neighbours, units,
+ * ejecta_create. The scheme, remnant fit, weighting, neighbors, units,
  * box, workers and seed of the context's ejecta_config apply: the scheme
  * couples the supernovae, winds use the remnant fit of the scheme (when it
- * has one), radiation pressure and photoionisation their built-in
+ * has one), radiation pressure and photoionization their built-in
  * schemes. */
 
 /* A stellar population model. Fill it with ejecta_population_defaults
@@ -423,8 +423,8 @@ typedef struct ejecta_population_config {
   char imf[EJECTA_NAME_CAPACITY];
   /* IMF mass range in Msun (whatever the code units); 0 means 0.1 and
    * 100. Finite, >= 0, min < max. */
-  double imf_min_mass;
-  double imf_max_mass;
+  double lightest_star_mass;
+  double heaviest_star_mass;
   /* A step in which some star expects more supernovae than this makes
    * ejecta_suggested_step report a smaller step; 0 means 10; >= 0. */
   double max_supernovae_per_step;
@@ -436,13 +436,13 @@ typedef struct ejecta_population_config {
   const char *yields_table;
   /* Channel switches, 1 on and 0 off: stellar winds (massive and AGB; off
    * also keeps their mass on the star), radiation pressure,
-   * photoionisation. Defaults 1. */
+   * photoionization. Defaults 1. */
   int32_t winds;
   int32_t radiation_pressure;
-  int32_t photoionisation;
+  int32_t photoionization;
   /* 1: flag the gas touched by supernovae to have its cooling switched off
-   * for the blast-wave time (EJECTA_FLAG_COOLING_OFF with
-   * cooling_off_until in the records and ejecta_touched). Default 0. */
+   * for the blast-wave time (EJECTA_FLAG_HOLD_COOLING with
+   * hold_cooling_until in the records and ejecta_touched). Default 0. */
   int32_t delayed_cooling;
 } ejecta_population_config;
 
@@ -495,7 +495,7 @@ int ejecta_version(char *buffer, int64_t capacity, int32_t *abi_version);
 
 /* ejecta_config_defaults fills *config with the defaults: cgs code units
  * (1, 1, 1), scheme "terminal-momentum" with "kim-ostriker-2015",
- * weighting "kernel-volume", isotropy correction on, 32 neighbours, no
+ * weighting "kernel-volume", isotropy correction on, 32 neighbors, no
  * coupling radius, open box, seed 0, one worker. Errors:
  * EJECTA_ERR_NULL_POINTER. Thread safe. */
 int ejecta_config_defaults(ejecta_config *config);
@@ -508,7 +508,7 @@ int ejecta_config_defaults(ejecta_config *config);
  * bytes, truncated to fit; error_text may be NULL when capacity is 0),
  * since there is no context to ask. Errors: EJECTA_ERR_NULL_POINTER
  * (config or context NULL), EJECTA_ERR_INVALID_ARGUMENT (units not finite
- * and positive, negative neighbour count or radius, NaN or negative box,
+ * and positive, negative neighbor count or radius, NaN or negative box,
  * worker_threads outside 0..4096, kinetic_fraction outside [0, 1],
  * isotropy_correction not 0 or 1), EJECTA_ERR_UNKNOWN_NAME. Thread safe. */
 int ejecta_create(const ejecta_config *config, ejecta_context *context,
@@ -537,7 +537,7 @@ int ejecta_last_error(ejecta_context context, char *buffer, int64_t capacity,
  * the species list are copied; the column memory is not: it must stay valid
  * until the next ejecta_bind_gas or ejecta_destroy, and the host must not
  * change it during a call on this context. Positions and IDs are read at
- * the first step with EJECTA_NEIGHBOURS_OWN_FINDER after binding (to build
+ * the first step with EJECTA_NEIGHBORS_OWN_FINDER after binding (to build
  * the tree), and IDs at the first ejecta_apply_records with
  * EJECTA_LOCATE_BY_ID (to index them): bind again after moving the gas or
  * renumbering it. Other fields are read at each call.
@@ -556,19 +556,19 @@ int ejecta_bind_gas(ejecta_context context, const ejecta_gas *gas);
  * ejecta_record_count / ejecta_copy_records / ejecta_get_ledger, apply them
  * with ejecta_apply_step_records or ejecta_apply_records). The gas is not
  * changed. Stars are copied; all are checked before anything is done.
- * neighbour_mode is EJECTA_NEIGHBOURS_OWN_FINDER (row_offsets and
- * row_indices ignored, may be NULL) or EJECTA_NEIGHBOURS_HOST_ROWS:
+ * neighbor_mode is EJECTA_NEIGHBORS_OWN_FINDER (row_offsets and
+ * row_indices ignored, may be NULL) or EJECTA_NEIGHBORS_HOST_ROWS:
  * row_offsets has n_stars+1 non-decreasing entries starting at 0 and
  * row_indices has row_offsets[n_stars] 0-based gas indices, no row naming
  * an element twice. Errors: EJECTA_ERR_NULL_POINTER,
  * EJECTA_ERR_INVALID_ARGUMENT (n_stars <= 0, unknown mode or channel),
  * EJECTA_ERR_BAD_VALUE (NaN, infinite or negative star or release field,
  * a species mass above the ejected mass; nothing is done),
- * EJECTA_ERR_NO_GAS, EJECTA_ERR_NEIGHBOURS (malformed rows, or the
+ * EJECTA_ERR_NO_GAS, EJECTA_ERR_NEIGHBORS (malformed rows, or the
  * positions or IDs of the gas unusable for the tree: NaN, duplicate IDs),
  * EJECTA_ERR_UNDEPOSITED (completed, some stars returned: see above). */
 int ejecta_step(ejecta_context context, const ejecta_star *stars,
-                int64_t n_stars, int32_t neighbour_mode,
+                int64_t n_stars, int32_t neighbor_mode,
                 const int64_t *row_offsets, const int64_t *row_indices);
 
 /* ejecta_record_count writes the number of records of the last step to
@@ -587,7 +587,7 @@ int ejecta_copy_records(ejecta_context context, ejecta_record *records,
                         int64_t capacity, int64_t *written);
 
 /* ejecta_copy_undeposited lists the releases of the last step (either kind
- * of step) that were returned undeposited — no gas in reach, a neighbour
+ * of step) that were returned undeposited — no gas in reach, a neighbor
  * with unusable fields, a malformed release — so the host can keep them:
  * the star's ID into star_ids[k] and the release's EJECTA_CHANNEL_* into
  * channels[k] (channels may be NULL), for at most capacity entries, in the
@@ -652,7 +652,7 @@ int ejecta_copy_touched(ejecta_context context, ejecta_touched *touched,
 /* ejecta_population_defaults fills *config with the defaults: the built-in
  * Kroupa population over 0.1-100 Msun (yields_table NULL), 10 supernovae
  * per step before a smaller step is suggested, winds, radiation pressure
- * and photoionisation on, delayed cooling off. Errors:
+ * and photoionization on, delayed cooling off. Errors:
  * EJECTA_ERR_NULL_POINTER. Thread safe. */
 int ejecta_population_defaults(ejecta_population_config *config);
 
@@ -687,20 +687,20 @@ int ejecta_enable_population(ejecta_context context,
  * a smaller step: ejecta_suggested_step. step_index (>= 0) is the host's:
  * ranks stepping in lockstep pass the same index and draw the same
  * numbers for a star; it is separate from the count ejecta_step keeps.
- * neighbour_mode, row_offsets and row_indices are as in ejecta_step.
+ * neighbor_mode, row_offsets and row_indices are as in ejecta_step.
  * Stars are copied; all are checked before anything is done. Errors:
  * EJECTA_ERR_NULL_POINTER, EJECTA_ERR_INVALID_ARGUMENT (n_stars <= 0,
  * step_index < 0, unknown mode, duplicate star IDs),
  * EJECTA_ERR_BAD_VALUE (dt NaN, infinite or negative; a star field NaN,
  * infinite or negative, metallicity >= 1), EJECTA_ERR_NO_POPULATION,
- * EJECTA_ERR_NO_GAS, EJECTA_ERR_NEIGHBOURS, EJECTA_ERR_UNDEPOSITED (as in
+ * EJECTA_ERR_NO_GAS, EJECTA_ERR_NEIGHBORS, EJECTA_ERR_UNDEPOSITED (as in
  * ejecta_step: completed, records, ledger and results valid; what was
  * returned stays with the star: it is not in mass_loss, and its energy is
  * in carried_energy). */
 int ejecta_step_population(ejecta_context context,
                            const ejecta_star_particle *stars, int64_t n_stars,
                            double dt, int64_t step_index,
-                           int32_t neighbour_mode, const int64_t *row_offsets,
+                           int32_t neighbor_mode, const int64_t *row_offsets,
                            const int64_t *row_indices);
 
 /* ejecta_copy_star_results copies the per-star results of the last step,

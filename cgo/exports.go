@@ -50,8 +50,8 @@ func ejecta_bind_gas(context C.ejecta_context, gas *C.ejecta_gas) C.int {
 }
 
 //export ejecta_step
-func ejecta_step(context C.ejecta_context, stars *C.ejecta_star, nStars C.int64_t, neighbourMode C.int32_t, rowOffsets, rowIndices *C.int64_t) C.int {
-	return C.int(entryStep(uint64(context), (*starABI)(unsafe.Pointer(stars)), int64(nStars), int32(neighbourMode),
+func ejecta_step(context C.ejecta_context, stars *C.ejecta_star, nStars C.int64_t, neighborMode C.int32_t, rowOffsets, rowIndices *C.int64_t) C.int {
+	return C.int(entryStep(uint64(context), (*starABI)(unsafe.Pointer(stars)), int64(nStars), int32(neighborMode),
 		(*int64)(unsafe.Pointer(rowOffsets)), (*int64)(unsafe.Pointer(rowIndices))))
 }
 
@@ -109,9 +109,9 @@ func ejecta_enable_population(context C.ejecta_context, config *C.ejecta_populat
 
 //export ejecta_step_population
 func ejecta_step_population(context C.ejecta_context, stars *C.ejecta_star_particle, nStars C.int64_t, dt C.double,
-	stepIndex C.int64_t, neighbourMode C.int32_t, rowOffsets, rowIndices *C.int64_t) C.int {
+	stepIndex C.int64_t, neighborMode C.int32_t, rowOffsets, rowIndices *C.int64_t) C.int {
 	return C.int(entryStepPopulation(uint64(context), (*starParticleABI)(unsafe.Pointer(stars)), int64(nStars), float64(dt),
-		int64(stepIndex), int32(neighbourMode), (*int64)(unsafe.Pointer(rowOffsets)), (*int64)(unsafe.Pointer(rowIndices))))
+		int64(stepIndex), int32(neighborMode), (*int64)(unsafe.Pointer(rowOffsets)), (*int64)(unsafe.Pointer(rowIndices))))
 }
 
 //export ejecta_copy_star_results
@@ -152,7 +152,7 @@ func abiMismatches() []string {
 	eq("config.coupling_radius", unsafe.Offsetof(cc.coupling_radius), unsafe.Offsetof(gc.CouplingRadius))
 	eq("config.box_size", unsafe.Offsetof(cc.box_size), unsafe.Offsetof(gc.BoxSize))
 	eq("config.seed", unsafe.Offsetof(cc.seed), unsafe.Offsetof(gc.Seed))
-	eq("config.neighbour_count", unsafe.Offsetof(cc.neighbour_count), unsafe.Offsetof(gc.NeighbourCount))
+	eq("config.neighbor_count", unsafe.Offsetof(cc.neighbor_count), unsafe.Offsetof(gc.NeighborCount))
 	eq("config.worker_threads", unsafe.Offsetof(cc.worker_threads), unsafe.Offsetof(gc.WorkerThreads))
 	eq("config.isotropy_correction", unsafe.Offsetof(cc.isotropy_correction), unsafe.Offsetof(gc.IsotropyCorrection))
 	eq("config.scheme", unsafe.Offsetof(cc.scheme), unsafe.Offsetof(gc.Scheme))
@@ -207,7 +207,7 @@ func abiMismatches() []string {
 	eq("record.energy", unsafe.Offsetof(cr.energy), unsafe.Offsetof(gr.Energy))
 	eq("record.heat", unsafe.Offsetof(cr.heat), unsafe.Offsetof(gr.Heat))
 	eq("record.radiated", unsafe.Offsetof(cr.radiated), unsafe.Offsetof(gr.Radiated))
-	eq("record.cooling_off_until", unsafe.Offsetof(cr.cooling_off_until), unsafe.Offsetof(gr.CoolingOffUntil))
+	eq("record.hold_cooling_until", unsafe.Offsetof(cr.hold_cooling_until), unsafe.Offsetof(gr.HoldCoolingUntil))
 	eq("record.kick", unsafe.Offsetof(cr.kick), unsafe.Offsetof(gr.Kick))
 	eq("record.heating", unsafe.Offsetof(cr.heating), unsafe.Offsetof(gr.Heating))
 
@@ -240,19 +240,19 @@ func abiMismatches() []string {
 	var gt touchedABI
 	eq("sizeof touched", unsafe.Sizeof(ct), unsafe.Sizeof(gt))
 	eq("touched.max_kick", unsafe.Offsetof(ct.max_kick), unsafe.Offsetof(gt.MaxKick))
-	eq("touched.cooling_off_until", unsafe.Offsetof(ct.cooling_off_until), unsafe.Offsetof(gt.CoolingOffUntil))
+	eq("touched.hold_cooling_until", unsafe.Offsetof(ct.hold_cooling_until), unsafe.Offsetof(gt.HoldCoolingUntil))
 	eq("touched.flags", unsafe.Offsetof(ct.flags), unsafe.Offsetof(gt.Flags))
 
 	var cpc C.ejecta_population_config
 	var gpc populationConfigABI
 	eq("sizeof population_config", unsafe.Sizeof(cpc), unsafe.Sizeof(gpc))
-	eq("population_config.imf_min_mass", unsafe.Offsetof(cpc.imf_min_mass), unsafe.Offsetof(gpc.IMFMinMass))
-	eq("population_config.imf_max_mass", unsafe.Offsetof(cpc.imf_max_mass), unsafe.Offsetof(gpc.IMFMaxMass))
+	eq("population_config.lightest_star_mass", unsafe.Offsetof(cpc.lightest_star_mass), unsafe.Offsetof(gpc.LightestStarMass))
+	eq("population_config.heaviest_star_mass", unsafe.Offsetof(cpc.heaviest_star_mass), unsafe.Offsetof(gpc.HeaviestStarMass))
 	eq("population_config.max_supernovae_per_step", unsafe.Offsetof(cpc.max_supernovae_per_step), unsafe.Offsetof(gpc.MaxSupernovaePerStep))
 	eq("population_config.yields_table", unsafe.Offsetof(cpc.yields_table), unsafe.Offsetof(gpc.YieldsTable))
 	eq("population_config.winds", unsafe.Offsetof(cpc.winds), unsafe.Offsetof(gpc.Winds))
 	eq("population_config.radiation_pressure", unsafe.Offsetof(cpc.radiation_pressure), unsafe.Offsetof(gpc.RadiationPressure))
-	eq("population_config.photoionisation", unsafe.Offsetof(cpc.photoionisation), unsafe.Offsetof(gpc.Photoionisation))
+	eq("population_config.photoionization", unsafe.Offsetof(cpc.photoionization), unsafe.Offsetof(gpc.Photoionization))
 	eq("population_config.delayed_cooling", unsafe.Offsetof(cpc.delayed_cooling), unsafe.Offsetof(gpc.DelayedCooling))
 
 	var csp C.ejecta_star_particle
@@ -282,7 +282,7 @@ func abiMismatches() []string {
 		{"EJECTA_ERR_INVALID_CONTEXT", C.EJECTA_ERR_INVALID_CONTEXT, int64(codeInvalidContext)},
 		{"EJECTA_ERR_NO_GAS", C.EJECTA_ERR_NO_GAS, int64(codeNoGas)},
 		{"EJECTA_ERR_BAD_VALUE", C.EJECTA_ERR_BAD_VALUE, int64(codeBadValue)},
-		{"EJECTA_ERR_NEIGHBOURS", C.EJECTA_ERR_NEIGHBOURS, int64(codeNeighbours)},
+		{"EJECTA_ERR_NEIGHBORS", C.EJECTA_ERR_NEIGHBORS, int64(codeNeighbors)},
 		{"EJECTA_ERR_BUFFER_TOO_SMALL", C.EJECTA_ERR_BUFFER_TOO_SMALL, int64(codeBufferTooSmall)},
 		{"EJECTA_ERR_UNKNOWN_GAS", C.EJECTA_ERR_UNKNOWN_GAS, int64(codeUnknownGas)},
 		{"EJECTA_ERR_BUSY", C.EJECTA_ERR_BUSY, int64(codeBusy)},
@@ -299,8 +299,8 @@ func abiMismatches() []string {
 		{"EJECTA_FLOAT32", C.EJECTA_FLOAT32, 2},
 		{"EJECTA_INT64", C.EJECTA_INT64, 3},
 		{"EJECTA_INT32", C.EJECTA_INT32, 4},
-		{"EJECTA_NEIGHBOURS_OWN_FINDER", C.EJECTA_NEIGHBOURS_OWN_FINDER, int64(modeOwnFinder)},
-		{"EJECTA_NEIGHBOURS_HOST_ROWS", C.EJECTA_NEIGHBOURS_HOST_ROWS, int64(modeHostRows)},
+		{"EJECTA_NEIGHBORS_OWN_FINDER", C.EJECTA_NEIGHBORS_OWN_FINDER, int64(modeOwnFinder)},
+		{"EJECTA_NEIGHBORS_HOST_ROWS", C.EJECTA_NEIGHBORS_HOST_ROWS, int64(modeHostRows)},
 		{"EJECTA_LOCATE_BY_INDEX", C.EJECTA_LOCATE_BY_INDEX, int64(locateByIndex)},
 		{"EJECTA_LOCATE_BY_ID", C.EJECTA_LOCATE_BY_ID, int64(locateByID)},
 	}
@@ -313,8 +313,8 @@ func abiMismatches() []string {
 	flags := []namedCode{
 		{"EJECTA_FLAG_CAPPED", C.EJECTA_FLAG_CAPPED, int64(feedback.FlagCapped)},
 		{"EJECTA_FLAG_LIMITED", C.EJECTA_FLAG_LIMITED, int64(feedback.FlagLimited)},
-		{"EJECTA_FLAG_IONISED", C.EJECTA_FLAG_IONISED, int64(feedback.FlagIonised)},
-		{"EJECTA_FLAG_COOLING_OFF", C.EJECTA_FLAG_COOLING_OFF, int64(feedback.FlagCoolingOff)},
+		{"EJECTA_FLAG_IONIZED", C.EJECTA_FLAG_IONIZED, int64(feedback.FlagIonized)},
+		{"EJECTA_FLAG_HOLD_COOLING", C.EJECTA_FLAG_HOLD_COOLING, int64(feedback.FlagHoldCooling)},
 		{"EJECTA_FLAG_STOCHASTIC", C.EJECTA_FLAG_STOCHASTIC, int64(feedback.FlagStochastic)},
 	}
 	for _, k := range flags {
@@ -350,7 +350,7 @@ func speciesAndChannelCodes() []namedCode {
 		{"EJECTA_CHANNEL_MASSIVE_WINDS", C.EJECTA_CHANNEL_MASSIVE_WINDS, int64(yields.MassiveWinds)},
 		{"EJECTA_CHANNEL_AGB_WINDS", C.EJECTA_CHANNEL_AGB_WINDS, int64(yields.AGBWinds)},
 		{"EJECTA_CHANNEL_RADIATION_PRESSURE", C.EJECTA_CHANNEL_RADIATION_PRESSURE, int64(feedback.RadiationChannel)},
-		{"EJECTA_CHANNEL_PHOTOIONISATION", C.EJECTA_CHANNEL_PHOTOIONISATION, int64(feedback.PhotoionisationChannel)},
+		{"EJECTA_CHANNEL_PHOTOIONIZATION", C.EJECTA_CHANNEL_PHOTOIONIZATION, int64(feedback.PhotoionizationChannel)},
 		{"EJECTA_NUM_STEP_CHANNELS", C.EJECTA_NUM_STEP_CHANNELS, int64(numStepChannels)},
 	}
 }

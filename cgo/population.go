@@ -25,13 +25,13 @@ const (
 
 type populationConfigABI struct {
 	IMF                  [nameCapacity]byte
-	IMFMinMass           float64
-	IMFMaxMass           float64
+	LightestStarMass           float64
+	HeaviestStarMass           float64
 	MaxSupernovaePerStep float64
 	YieldsTable          *byte
 	Winds                int32
 	RadiationPressure    int32
-	Photoionisation      int32
+	Photoionization      int32
 	DelayedCooling       int32
 }
 
@@ -73,9 +73,9 @@ type population struct {
 // defaultPopulationConfig is what ejecta_population_defaults writes.
 func defaultPopulationConfig() populationConfigABI {
 	c := populationConfigABI{
-		IMFMinMass: yields.DefaultIMFMinMass, IMFMaxMass: yields.DefaultIMFMaxMass,
+		LightestStarMass: yields.DefaultLightestStarMass, HeaviestStarMass: yields.DefaultHeaviestStarMass,
 		MaxSupernovaePerStep: defaultMaxPerStep,
-		Winds:                1, RadiationPressure: 1, Photoionisation: 1,
+		Winds:                1, RadiationPressure: 1, Photoionization: 1,
 	}
 	copy(c.IMF[:], yields.Kroupa.String())
 	return c
@@ -122,18 +122,18 @@ func populationModel(c *populationConfigABI) (yields.Model, error) {
 		}
 		ycfg.IMF = form
 	}
-	lo, hi := c.IMFMinMass, c.IMFMaxMass
+	lo, hi := c.LightestStarMass, c.HeaviestStarMass
 	if !(lo >= 0) || !(hi >= 0) || math.IsInf(lo, 0) || math.IsInf(hi, 0) {
 		return nil, fail(codeInvalidArgument, "population IMF mass range [%g, %g] Msun must be finite and >= 0", lo, hi)
 	}
 	if lo > 0 {
-		ycfg.IMFMinMass = lo
+		ycfg.LightestStarMass = lo
 	}
 	if hi > 0 {
-		ycfg.IMFMaxMass = hi
+		ycfg.HeaviestStarMass = hi
 	}
-	if !(ycfg.IMFMinMass < ycfg.IMFMaxMass) {
-		return nil, fail(codeInvalidArgument, "population IMF mass range [%g, %g] Msun: want min < max", ycfg.IMFMinMass, ycfg.IMFMaxMass)
+	if !(ycfg.LightestStarMass < ycfg.HeaviestStarMass) {
+		return nil, fail(codeInvalidArgument, "population IMF mass range [%g, %g] Msun: want min < max", ycfg.LightestStarMass, ycfg.HeaviestStarMass)
 	}
 	path, err := cPath(c.YieldsTable)
 	if err != nil {
@@ -170,7 +170,7 @@ func (s *session) enablePopulation(c *populationConfigABI) error {
 	if err != nil {
 		return err
 	}
-	ionisation, err := switchOn("photoionisation", c.Photoionisation)
+	ionization, err := switchOn("photoionization", c.Photoionization)
 	if err != nil {
 		return err
 	}
@@ -184,7 +184,7 @@ func (s *session) enablePopulation(c *populationConfigABI) error {
 	}
 	st, err := feedback.NewStepper(feedback.StepConfig{
 		Coupling: s.cfg, Model: model, Seed: s.seed,
-		SkipWinds: !winds, SkipRadiation: !radiation, SkipPhotoionisation: !ionisation,
+		SkipWinds: !winds, SkipRadiation: !radiation, SkipPhotoionization: !ionization,
 		DelayedCooling: cooling, MaxSupernovaePerStep: c.MaxSupernovaePerStep,
 	})
 	if err != nil {
@@ -241,7 +241,7 @@ func (s *session) stepPopulation(stars *starParticleABI, n int64, dt float64, st
 		return fail(codeInvalidArgument, "step_index %d must be >= 0", step)
 	}
 	if mode != modeOwnFinder && mode != modeHostRows {
-		return fail(codeInvalidArgument, "neighbour_mode %d: want %d (own finder) or %d (host rows)", mode, modeOwnFinder, modeHostRows)
+		return fail(codeInvalidArgument, "neighbor_mode %d: want %d (own finder) or %d (host rows)", mode, modeOwnFinder, modeHostRows)
 	}
 	p := s.pop
 	if p == nil {

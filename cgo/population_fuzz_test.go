@@ -30,7 +30,7 @@ func fuzzLedgerFinite(l *ledgerABI) bool {
 // mass ~1e-300): subnormal amounts have round-off of one subnormal step
 // (4.9e-324), more than any relative tolerance of themselves; and the
 // momentum scale feedback books, the sum of sqrt(kick . kick) over
-// neighbours, underflows to 0 once kicks fall below ~1e-154, so the
+// neighbors, underflows to 0 once kicks fall below ~1e-154, so the
 // isotropic kicks' round-off is judged against the net momentum alone.
 // Any ledger whose amounts are 1e-130 or more is still held to 1e-9 of
 // its scale, since its imbalance would exceed the floor.
@@ -71,7 +71,7 @@ func assertFuzzBalanced(t *testing.T, l *ledgerABI, what string) {
 // ejecta_step_population, ejecta_copy_star_results, ejecta_suggested_step
 // and ejecta_get_channel_ledger with random population configs (IMF names
 // and mass ranges, switches, tables), star particles (fields NaN, infinite,
-// negative or huge), step lengths, step indices, neighbour modes and host
+// negative or huge), step lengths, step indices, neighbor modes and host
 // rows, for up to three steps per input, each applied and fed back into the
 // stars as a host does. No call may return the internal-error code; every
 // step that completes leaves balanced ledgers (the step's and each
@@ -94,7 +94,7 @@ func FuzzPopulationEntryPoints(f *testing.F) {
 		// The context's scheme by index; an index past the end names none.
 		schemes := []string{
 			"terminal-momentum", "kinetic", "thermal-dump", "stochastic-heating",
-			"stellar-winds", "radiation-pressure", "photoionisation",
+			"stellar-winds", "radiation-pressure", "photoionization",
 		}
 		c := pcConfig()
 		c.Scheme = [nameCapacity]byte{}
@@ -103,7 +103,7 @@ func FuzzPopulationEntryPoints(f *testing.F) {
 		} else {
 			copy(c.Scheme[:], "no-such-scheme")
 		}
-		c.CouplingRadius, c.NeighbourCount = radius, k
+		c.CouplingRadius, c.NeighborCount = radius, k
 		c.BoxSize = [3]float64{box, box, box}
 		c.Seed, c.WorkerThreads = seed, int32(1+seed%2)
 		var h uint64
@@ -132,15 +132,15 @@ func FuzzPopulationEntryPoints(f *testing.F) {
 		}
 
 		// The population config, switches from the bits of 'switches':
-		// bits 0-3 turn winds, radiation pressure, photoionisation and
+		// bits 0-3 turn winds, radiation pressure, photoionization and
 		// delayed cooling on; with bits 6 and 7 set, the switch named by
 		// bits 4-5 takes a value that is not a switch (bit 3 picks which).
 		var p populationConfigABI
 		require.Equal(t, codeOK, entryPopulationDefaults(&p))
 		p.IMF = [nameCapacity]byte{}
 		copy(p.IMF[:], imf)
-		p.IMFMinMass, p.IMFMaxMass, p.MaxSupernovaePerStep = minMass, maxMass, perStep
-		sw := []*int32{&p.Winds, &p.RadiationPressure, &p.Photoionisation, &p.DelayedCooling}
+		p.LightestStarMass, p.HeaviestStarMass, p.MaxSupernovaePerStep = minMass, maxMass, perStep
+		sw := []*int32{&p.Winds, &p.RadiationPressure, &p.Photoionization, &p.DelayedCooling}
 		for i, s := range sw {
 			*s = int32(switches>>i) & 1
 		}

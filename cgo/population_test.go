@@ -103,10 +103,10 @@ func TestPopulationConfigErrors(t *testing.T) {
 		{"chabrier 0.08-120", func(p *populationConfigABI) {
 			p.IMF = [nameCapacity]byte{}
 			copy(p.IMF[:], "chabrier")
-			p.IMFMinMass, p.IMFMaxMass = 0.08, 120
+			p.LightestStarMass, p.HeaviestStarMass = 0.08, 120
 		}, codeOK, ""},
 		{"empty name and zero range take defaults", func(p *populationConfigABI) {
-			p.IMF, p.IMFMinMass, p.IMFMaxMass = [nameCapacity]byte{}, 0, 0
+			p.IMF, p.LightestStarMass, p.HeaviestStarMass = [nameCapacity]byte{}, 0, 0
 		}, codeOK, ""},
 		{"example table", func(p *populationConfigABI) { p.YieldsTable = cString(exampleTable) }, codeOK, ""},
 		{"empty table path", func(p *populationConfigABI) { p.YieldsTable = cString("") }, codeOK, ""},
@@ -116,14 +116,14 @@ func TestPopulationConfigErrors(t *testing.T) {
 				p.IMF[i] = 'k'
 			}
 		}, codeUnknownName, "NUL"},
-		{"NaN IMF minimum", func(p *populationConfigABI) { p.IMFMinMass = math.NaN() }, codeInvalidArgument, "IMF mass range"},
-		{"infinite IMF maximum", func(p *populationConfigABI) { p.IMFMaxMass = math.Inf(1) }, codeInvalidArgument, "IMF mass range"},
-		{"reversed IMF range", func(p *populationConfigABI) { p.IMFMinMass, p.IMFMaxMass = 50, 8 }, codeInvalidArgument, "min < max"},
+		{"NaN IMF minimum", func(p *populationConfigABI) { p.LightestStarMass = math.NaN() }, codeInvalidArgument, "IMF mass range"},
+		{"infinite IMF maximum", func(p *populationConfigABI) { p.HeaviestStarMass = math.Inf(1) }, codeInvalidArgument, "IMF mass range"},
+		{"reversed IMF range", func(p *populationConfigABI) { p.LightestStarMass, p.HeaviestStarMass = 50, 8 }, codeInvalidArgument, "min < max"},
 		{"negative supernovae per step", func(p *populationConfigABI) { p.MaxSupernovaePerStep = -1 }, codeInvalidArgument, "max_supernovae_per_step"},
 		{"NaN supernovae per step", func(p *populationConfigABI) { p.MaxSupernovaePerStep = math.NaN() }, codeInvalidArgument, "max_supernovae_per_step"},
 		{"winds switch 2", func(p *populationConfigABI) { p.Winds = 2 }, codeInvalidArgument, "winds"},
 		{"radiation switch -1", func(p *populationConfigABI) { p.RadiationPressure = -1 }, codeInvalidArgument, "radiation_pressure"},
-		{"photoionisation switch 7", func(p *populationConfigABI) { p.Photoionisation = 7 }, codeInvalidArgument, "photoionisation"},
+		{"photoionization switch 7", func(p *populationConfigABI) { p.Photoionization = 7 }, codeInvalidArgument, "photoionization"},
 		{"cooling switch 3", func(p *populationConfigABI) { p.DelayedCooling = 3 }, codeInvalidArgument, "delayed_cooling"},
 		{"missing table", func(p *populationConfigABI) { p.YieldsTable = cString(filepath.Join(dir, "none.csv")) }, codeYieldsTable, "none.csv"},
 		{"malformed table", func(p *populationConfigABI) { p.YieldsTable = cString(malformed) }, codeYieldsTable, "line 3"},
@@ -191,7 +191,7 @@ func TestStepPopulationErrors(t *testing.T) {
 		{"negative dt", step(h, &good[0], 2, -1, 0, modeOwnFinder), codeBadValue, "dt"},
 		{"infinite dt", step(h, &good[0], 2, math.Inf(1), 0, modeOwnFinder), codeBadValue, "dt"},
 		{"negative step index", step(h, &good[0], 2, 1, -1, modeOwnFinder), codeInvalidArgument, "step_index"},
-		{"unknown mode", step(h, &good[0], 2, 1, 0, 5), codeInvalidArgument, "neighbour_mode"},
+		{"unknown mode", step(h, &good[0], 2, 1, 0, 5), codeInvalidArgument, "neighbor_mode"},
 		{"NaN position", step(h, bad(func(s *starParticleABI) { s.Position[2] = math.NaN() }), 1, 1, 0, modeOwnFinder), codeBadValue, "position"},
 		{"infinite velocity", step(h, bad(func(s *starParticleABI) { s.Velocity[0] = math.Inf(-1) }), 1, 1, 0, modeOwnFinder), codeBadValue, "velocity"},
 		{"negative mass", step(h, bad(func(s *starParticleABI) { s.Mass = -1 }), 1, 1, 0, modeOwnFinder), codeBadValue, "mass"},
@@ -207,7 +207,7 @@ func TestStepPopulationErrors(t *testing.T) {
 		{"rows without offsets", step(h, &good[0], 2, 1, 0, modeHostRows), codeNullPointer, "row_offsets"},
 		{"row naming one element twice", func() int32 {
 			return entryStepPopulation(h, &good[0], 2, 1, 0, modeHostRows, &offs[0], &idx[0])
-		}, codeNeighbours, "host rows"},
+		}, codeNeighbors, "host rows"},
 		{"results: null written", func() int32 { return entryCopyStarResults(h, &res[0], 1, nil) }, codeNullPointer, "written"},
 		{"results: negative capacity", func() int32 { return entryCopyStarResults(h, &res[0], -1, &w) }, codeInvalidArgument, "capacity"},
 		{"results: null buffer", func() int32 { return entryCopyStarResults(h, nil, 2, &w) }, codeNullPointer, "results"},
@@ -387,8 +387,8 @@ func TestPopulationSwitchesAndTable(t *testing.T) {
 		{"winds off", func(p *populationConfigABI) { p.Winds = 0 }, builtin,
 			[]yields.Channel{yields.MassiveWinds, yields.AGBWinds},
 			[]int32{int32(yields.MassiveWinds), int32(yields.AGBWinds)}, false},
-		{"radiation and photoionisation off", func(p *populationConfigABI) { p.RadiationPressure, p.Photoionisation = 0, 0 }, builtin,
-			nil, []int32{int32(feedback.RadiationChannel), int32(feedback.PhotoionisationChannel)}, false},
+		{"radiation and photoionization off", func(p *populationConfigABI) { p.RadiationPressure, p.Photoionization = 0, 0 }, builtin,
+			nil, []int32{int32(feedback.RadiationChannel), int32(feedback.PhotoionizationChannel)}, false},
 		{"delayed cooling", func(p *populationConfigABI) { p.DelayedCooling = 1 }, builtin, nil, nil, true},
 		{"table", func(p *populationConfigABI) { p.YieldsTable = cString(exampleTable) }, table, nil, nil, false},
 	}
@@ -426,9 +426,9 @@ func TestPopulationSwitchesAndTable(t *testing.T) {
 				assert.Zero(t, cl.Released.Energy, "channel %d", ch)
 			}
 			var ion ledgerABI
-			require.Equal(t, codeOK, entryGetChannelLedger(h, int32(feedback.PhotoionisationChannel), &ion))
+			require.Equal(t, codeOK, entryGetChannelLedger(h, int32(feedback.PhotoionizationChannel), &ion))
 			if len(tc.silent) == 0 {
-				assert.Positive(t, ion.Released.Energy, "a 4 Myr population ionises")
+				assert.Positive(t, ion.Released.Energy, "a 4 Myr population ionizes")
 			}
 
 			var n, w int64
@@ -437,9 +437,9 @@ func TestPopulationSwitchesAndTable(t *testing.T) {
 			require.Equal(t, codeOK, entryCopyRecords(h, &recs[0], n, &w))
 			cooled := 0
 			for _, r := range recs {
-				if r.Flags&uint32(feedback.FlagCoolingOff) != 0 {
+				if r.Flags&uint32(feedback.FlagHoldCooling) != 0 {
 					cooled++
-					assert.Positive(t, r.CoolingOffUntil)
+					assert.Positive(t, r.HoldCoolingUntil)
 					assert.Contains(t, []int32{int32(yields.CoreCollapse), int32(yields.TypeIa)}, r.Channel)
 				}
 			}

@@ -18,7 +18,7 @@ type Touched struct {
 	MaxKick         float64
 	MaxHeating      float64
 	Flags           Flags
-	CoolingOffUntil float64
+	HoldCoolingUntil float64
 }
 
 // ApplyReport summarises an Apply call.
@@ -155,7 +155,7 @@ func (ap *Applier) Apply(gas *Gas, records []Record, touched []Touched) ([]Touch
 }
 
 func (r *Record) check() error {
-	vals := [...]float64{r.Mass, r.Momentum[0], r.Momentum[1], r.Momentum[2], r.Energy, r.Heat, r.Radiated, r.Kick, r.Heating, r.CoolingOffUntil}
+	vals := [...]float64{r.Mass, r.Momentum[0], r.Momentum[1], r.Momentum[2], r.Energy, r.Heat, r.Radiated, r.Kick, r.Heating, r.HoldCoolingUntil}
 	for _, v := range vals {
 		if !finite(v) {
 			return errors.New("non-finite value")
@@ -197,7 +197,7 @@ func applyElement(gas *Gas, records []Record, keys []applyKey, rep *ApplyReport)
 		t.MaxKick = math.Max(t.MaxKick, r.Kick)
 		t.MaxHeating = math.Max(t.MaxHeating, r.Heating)
 		t.Flags |= r.Flags
-		t.CoolingOffUntil = math.Max(t.CoolingOffUntil, r.CoolingOffUntil)
+		t.HoldCoolingUntil = math.Max(t.HoldCoolingUntil, r.HoldCoolingUntil)
 		rep.Deposited.Mass += r.Mass
 		for a := 0; a < 3; a++ {
 			rep.Deposited.Momentum[a] += r.Momentum[a]

@@ -14,7 +14,7 @@ import (
 
 // benchWorld is the standard coupling benchmark: 10000 stars at random
 // places in a 1e6-element random gas set, each with its 64 nearest
-// neighbours precomputed as host-supplied lists, so the benchmarks measure
+// neighbors precomputed as host-supplied lists, so the benchmarks measure
 // coupling, not searching.
 type benchWorld struct {
 	gas   *feedbacktest.GasArrays
@@ -58,9 +58,9 @@ func newBenchWorld(b *testing.B, nGas, nStars, k int) *benchWorld {
 	return w
 }
 
-// touch is the memory floor: it finds each star's neighbours the same way,
+// touch is the memory floor: it finds each star's neighbors the same way,
 // reads every gas field the coupler reads and writes one record per
-// neighbour, with no physics.
+// neighbor, with no physics.
 func touch(gas *feedback.Gas, f neighbor.Finder, k int, srcs []feedback.Source, buf []neighbor.Neighbor, out []feedback.Record) ([]neighbor.Neighbor, []feedback.Record, float64) {
 	out = out[:0]
 	sink := 0.0
@@ -99,7 +99,7 @@ func BenchmarkCouple(b *testing.B) {
 	}
 	photons := func(src feedback.Source) feedback.Source {
 		n := 1e49 * units.Megayear
-		return feedback.Source{Star: src.Star, Channel: feedback.PhotoionisationChannel, Photons: n,
+		return feedback.Source{Star: src.Star, Channel: feedback.PhotoionizationChannel, Photons: n,
 			Duration: units.Megayear / u.TimeS(), Energy: n * 3 * 1.602e-12 / u.EnergyErg()}
 	}
 	cases := []struct {
@@ -112,7 +112,7 @@ func BenchmarkCouple(b *testing.B) {
 		{feedback.StochasticHeating{Seed: 1}, nil},
 		{feedback.Winds{}, wind},
 		{feedback.RadiationPressure{}, light},
-		{feedback.Photoionisation{}, photons},
+		{feedback.Photoionization{}, photons},
 	}
 	b.Run(fmt.Sprintf("touch/k=%d", k), func(b *testing.B) {
 		var buf []neighbor.Neighbor
@@ -133,7 +133,7 @@ func BenchmarkCouple(b *testing.B) {
 			}
 		}
 		b.Run(fmt.Sprintf("%s/k=%d", cs.scheme.Name(), k), func(b *testing.B) {
-			c, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: cs.scheme, Neighbours: k})
+			c, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: cs.scheme, Neighbors: k})
 			if err != nil {
 				b.Fatal(err)
 			}
@@ -158,7 +158,7 @@ func BenchmarkCoupleWorkers(b *testing.B) {
 	view := w.gas.View()
 	for _, workers := range []int{1, 2} {
 		b.Run(fmt.Sprintf("terminal-momentum/workers=%d", workers), func(b *testing.B) {
-			c, err := feedback.NewCoupler(feedback.Config{Units: pcMsunKms(), Neighbours: 64, Workers: workers})
+			c, err := feedback.NewCoupler(feedback.Config{Units: pcMsunKms(), Neighbors: 64, Workers: workers})
 			if err != nil {
 				b.Fatal(err)
 			}

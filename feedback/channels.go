@@ -14,13 +14,13 @@ const (
 	// hydrogen at 1e4 K, 2.6e-13 cm^3 s^-1 (Osterbrock & Ferland 2006,
 	// table 2.1; from memory).
 	CaseBRecombination = 2.6e-13
-	// IonisedMeanMolecularWeight is the mean mass per particle of fully
-	// ionised gas of solar-like composition in proton masses, 0.59 (common
+	// IonizedMeanMolecularWeight is the mean mass per particle of fully
+	// ionized gas of solar-like composition in proton masses, 0.59 (common
 	// practice; from memory).
-	IonisedMeanMolecularWeight = 0.59
-	// IonisedTemperature is the temperature photoionised gas is heated to,
+	IonizedMeanMolecularWeight = 0.59
+	// IonizedTemperature is the temperature photoionized gas is heated to,
 	// 1e4 K (common practice for H II regions).
-	IonisedTemperature = 1e4
+	IonizedTemperature = 1e4
 )
 
 // specificEnergyAt is the specific internal energy (erg/g) of a monatomic
@@ -36,11 +36,11 @@ func hydrogenDensity(rho float64, u units.CodeUnits) float64 {
 }
 
 // Winds couples continuous stellar winds (massive stars and AGB stars).
-// Neighbour j receives its share of the wind's mass and species and a radial
+// Neighbor j receives its share of the wind's mass and species and a radial
 // momentum: the energy-conserving momentum of the loaded mass (as for
-// supernovae, see TerminalMomentum) while that stays below the neighbour's
+// supernovae, see TerminalMomentum) while that stays below the neighbor's
 // share of the terminal momentum the step's wind energy would reach
-// (Fit); otherwise the wind is radiative and the neighbour gets the larger
+// (Fit); otherwise the wind is radiative and the neighbor gets the larger
 // of that terminal share and its share of the wind's own momentum M v
 // (momentum-conserving coupling, v = sqrt(2 E / M) the wind speed the
 // release states), keeping no heat beyond what the kick leaves: the rest is
@@ -53,7 +53,7 @@ type Winds struct {
 func (Winds) Name() string { return "stellar-winds" }
 
 // Deposit implements Scheme.
-func (s Winds) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
+func (s Winds) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
 	src := nb.Source
 	u := nb.Units
 	eErg := src.Energy * u.EnergyErg()
@@ -75,8 +75,8 @@ func (s Winds) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
 
 // RadiationPressure couples the momentum of starlight absorbed by dust. A
 // source's Energy is the light emitted over the step, L dt. With the dust
-// column from the star to the edge of its neighbourhood, Sigma = 3 M / (4 pi
-// R^2) (M the neighbours' mass, R the farthest neighbour's distance: the
+// column from the star to the edge of its neighborhood, Sigma = 3 M / (4 pi
+// R^2) (M the neighbors' mass, R the farthest neighbor's distance: the
 // mean column through a uniform sphere), the ultraviolet optical depth
 // tau_UV = kappa_UV Sigma and the infrared one tau_IR = kappa_IR Sigma, both
 // opacities scaled with the gas metallicity, the momentum handed out is
@@ -122,7 +122,7 @@ func (s RadiationPressure) Momentum(e, sigma, zeta float64, u units.CodeUnits) f
 }
 
 // Deposit implements Scheme.
-func (s RadiationPressure) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
+func (s RadiationPressure) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
 	uv, ir := s.opacities()
 	if !(uv >= 0) || !(ir >= 0) {
 		return 0, fmt.Errorf("radiation pressure: opacities %g, %g must be non-negative", uv, ir)
@@ -146,39 +146,39 @@ func (s RadiationPressure) Deposit(nb *Neighbourhood, out []Deposit) (float64, e
 	return nb.CoupleRadial(out), nil
 }
 
-// Photoionisation heats the gas a star's ionising photons can keep
-// ionised. Neighbours are taken nearest first; neighbour j, of hydrogen
+// Photoionization heats the gas a star's ionizing photons can keep
+// ionized. Neighbors are taken nearest first; neighbor j, of hydrogen
 // density n_j and volume V_j = m_j / rho_j, needs alpha_B n_j^2 V_j
-// recombinations per second to stay ionised (case B, n_e = n_H). While the
+// recombinations per second to stay ionized (case B, n_e = n_H). While the
 // photon rate Q = Photons / Duration covers the running sum, each
-// neighbour is flagged FlagIonised and heated to IonisedTemperature (never
-// cooled). The first neighbour the budget cannot fully cover is ionised by
+// neighbor is flagged FlagIonized and heated to IonizedTemperature (never
+// cooled). The first neighbor the budget cannot fully cover is ionized by
 // the fraction f of its recombinations that remain: it receives f of its
 // heating, and the flag only if f >= 1/2 (our choice: a deterministic
-// rounding of the ionised fraction). The heat is paid from the source's
+// rounding of the ionized fraction). The heat is paid from the source's
 // Energy (the photoheating energy of the photons); if it is not enough,
 // every heating is scaled down together. What the photons' energy does not
 // heat is booked as radiated. Any ejected mass the source carries is shared
 // by weight as in a thermal dump.
-type Photoionisation struct{}
+type Photoionization struct{}
 
-// Name is "photoionisation".
-func (Photoionisation) Name() string { return "photoionisation" }
+// Name is "photoionization".
+func (Photoionization) Name() string { return "photoionization" }
 
 // Deposit implements Scheme.
-func (Photoionisation) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
+func (Photoionization) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
 	src := nb.Source
 	u := nb.Units
 	heat := nb.scratch // free: no kicks, so CoupleRadial does not tilt
 	for j := range heat {
 		heat[j] = 0
 	}
-	// Neighbours come nearest first, so the ionised ones are a prefix.
+	// Neighbors come nearest first, so the ionized ones are a prefix.
 	flagged := 0
 	need := 0.0
 	if src.Photons > 0 && src.Duration > 0 {
 		q := src.Photons / (src.Duration * u.TimeS()) // photons per second
-		floor := specificEnergyAt(IonisedTemperature, IonisedMeanMolecularWeight) / u.SpecificEnergy()
+		floor := specificEnergyAt(IonizedTemperature, IonizedMeanMolecularWeight) / u.SpecificEnergy()
 		for j := range heat {
 			n := hydrogenDensity(nb.Density[j], u)
 			v := nb.Mass[j] / nb.Density[j] * u.LengthCm * u.LengthCm * u.LengthCm
@@ -204,7 +204,7 @@ func (Photoionisation) Deposit(nb *Neighbourhood, out []Deposit) (float64, error
 		need = src.Energy
 	}
 	// Mass, species and the ejecta's momentum (if the source carries any)
-	// go by weight; the photoheating goes to the ionised neighbours.
+	// go by weight; the photoheating goes to the ionized neighbors.
 	for j := range heat {
 		nb.Momentum[j] = 0
 		nb.HeatCap[j] = math.Inf(1)
@@ -215,20 +215,20 @@ func (Photoionisation) Deposit(nb *Neighbourhood, out []Deposit) (float64, error
 	}
 	rad := nb.CoupleRadial(out)
 	for j := 0; j < flagged; j++ {
-		out[j].Flags |= FlagIonised
+		out[j].Flags |= FlagIonized
 	}
 	return rad + src.Energy - need, nil
 }
 
 // StochasticHeating is the stochastic thermal feedback of Dalla Vecchia &
 // Schaye 2012 (MNRAS 426, 140): rather than spreading the energy thinly,
-// it heats a few neighbours by a fixed temperature jump, so the heated gas
-// cools slowly. Each neighbour is heated with probability p = E / (Δu sum_j
+// it heats a few neighbors by a fixed temperature jump, so the heated gas
+// cools slowly. Each neighbor is heated with probability p = E / (Δu sum_j
 // m_j), Δu the specific energy of the jump, so the expected energy is E;
 // the draws use the counter-based generator keyed by (seed, star ID, step),
-// neighbour by neighbour in order of distance. The heated neighbours share
+// neighbor by neighbor in order of distance. The heated neighbors share
 // E in proportion to their masses, so energy is conserved exactly in every
-// draw, not only on average; when no neighbour is drawn, the energy is
+// draw, not only on average; when no neighbor is drawn, the energy is
 // returned undeposited for the caller to carry into the next step. Mass,
 // species and the ejecta's momentum are shared by weight as in a thermal
 // dump.
@@ -244,7 +244,7 @@ type StochasticHeating struct {
 func (StochasticHeating) Name() string { return "stochastic-heating" }
 
 // Deposit implements Scheme.
-func (s StochasticHeating) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
+func (s StochasticHeating) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
 	dT := s.TemperatureJump
 	if dT == 0 {
 		dT = math.Pow(10, 7.5)
@@ -253,7 +253,7 @@ func (s StochasticHeating) Deposit(nb *Neighbourhood, out []Deposit) (float64, e
 		return 0, fmt.Errorf("stochastic heating: temperature jump %g K must be positive", dT)
 	}
 	src := nb.Source
-	du := specificEnergyAt(dT, IonisedMeanMolecularWeight) / nb.Units.SpecificEnergy()
+	du := specificEnergyAt(dT, IonizedMeanMolecularWeight) / nb.Units.SpecificEnergy()
 	total := 0.0
 	for _, m := range nb.Mass {
 		total += m
@@ -290,13 +290,13 @@ func (s StochasticHeating) Deposit(nb *Neighbourhood, out []Deposit) (float64, e
 // supernova counts drawn with the same key.
 const streamStochastic = 3
 
-// CoolingOffTime is how long a supernova blast wave keeps its gas hot in
+// CoolingHoldTime is how long a supernova blast wave keeps its gas hot in
 // the blast-wave estimate of McKee & Ostriker 1977 (ApJ 218, 148) as used
 // for delayed cooling by Stinson et al. 2006 (MNRAS 373, 1074; from
 // memory): t = 10^6.85 yr E51^0.32 n^0.34 (P / 1e4 K cm^-3 k)^-0.70, for
 // energy e (erg), hydrogen density n (cm^-3) and thermal pressure p/k in
 // K cm^-3. It returns seconds.
-func CoolingOffTime(e, n, pOverK float64) float64 {
+func CoolingHoldTime(e, n, pOverK float64) float64 {
 	e51 := math.Max(e/units.FOE, 1e-10)
 	n = math.Max(n, 1e-10)
 	p04 := math.Max(pOverK/1e4, 1e-10)

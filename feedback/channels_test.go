@@ -43,8 +43,8 @@ func latticeGas(n int, dx, nH float64, u units.CodeUnits) *feedbacktest.GasArray
 }
 
 func TestStromgrenBudget(t *testing.T) {
-	// A source of Q ionising photons per second in uniform gas of density
-	// n keeps ionised the Strömgren volume (4 pi/3) R_S^3 = Q / (alpha_B n^2)
+	// A source of Q ionizing photons per second in uniform gas of density
+	// n keeps ionized the Strömgren volume (4 pi/3) R_S^3 = Q / (alpha_B n^2)
 	// (Strömgren 1939, ApJ 89, 526; alpha_B = 2.6e-13 cm^3/s, Osterbrock &
 	// Ferland 2006, from memory).
 	u := pcMsunKms()
@@ -52,29 +52,29 @@ func TestStromgrenBudget(t *testing.T) {
 	g := latticeGas(21, dx, nH, u)
 	q := 1e48 // photons per second: R_S about 6.8 pc at n = 10
 	dt := units.Megayear / u.TimeS()
-	src := feedback.Source{Star: feedback.Star{ID: 1, Pos: [3]float64{0.1, 0.05, 0.02}}, Channel: feedback.PhotoionisationChannel,
+	src := feedback.Source{Star: feedback.Star{ID: 1, Pos: [3]float64{0.1, 0.05, 0.02}}, Channel: feedback.PhotoionizationChannel,
 		Photons: q * units.Megayear, Duration: dt, Energy: 1e60 / u.EnergyErg()}
-	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.Photoionisation{}, Neighbours: 9000}, []feedback.Source{src})
+	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.Photoionization{}, Neighbors: 9000}, []feedback.Source{src})
 	n := nH
 	rs := math.Cbrt(3 * q / (4 * math.Pi * feedback.CaseBRecombination * n * n)) // cm
 	vs := 4 * math.Pi / 3 * rs * rs * rs
 	cell := math.Pow(dx*units.Parsec, 3)
-	ionised := 0.0
+	ionized := 0.0
 	far := 0.0
 	for _, r := range out.Records {
-		if r.Flags&feedback.FlagIonised == 0 {
+		if r.Flags&feedback.FlagIonized == 0 {
 			continue
 		}
-		ionised++
+		ionized++
 		i := r.GasIndex
 		d := math.Sqrt(math.Pow(g.Pos[0][i]-0.1, 2) + math.Pow(g.Pos[1][i]-0.05, 2) + math.Pow(g.Pos[2][i]-0.02, 2))
 		far = math.Max(far, d)
 	}
-	// Whole ionised cells fill the Strömgren volume to within one cell.
-	assert.InDelta(t, vs/cell, ionised, 1.0)
-	assert.InDelta(t, rs/units.Parsec, far, 1.5*dx, "farthest ionised cell sits at the Strömgren radius")
+	// Whole ionized cells fill the Strömgren volume to within one cell.
+	assert.InDelta(t, vs/cell, ionized, 1.0)
+	assert.InDelta(t, rs/units.Parsec, far, 1.5*dx, "farthest ionized cell sits at the Strömgren radius")
 	for _, r := range out.Records {
-		if r.Flags&feedback.FlagIonised != 0 {
+		if r.Flags&feedback.FlagIonized != 0 {
 			// Heated to 1e4 K: u = (3/2) k T / (0.59 m_p).
 			want := 1.5 * units.Boltzmann * 1e4 / (0.59 * units.ProtonMass) / u.SpecificEnergy()
 			assert.InEpsilon(t, want, g.Energy[r.GasIndex], 1e-9)
@@ -98,7 +98,7 @@ func TestRadiationPressureMomentum(t *testing.T) {
 	// Through the coupler, in dense gas that absorbs everything.
 	g := uniformGas(12, 400, 100, 1e3, u)
 	src := feedback.Source{Star: feedback.Star{ID: 2}, Channel: feedback.RadiationChannel, Energy: e}
-	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: rp, Neighbours: 64}, []feedback.Source{src})
+	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: rp, Neighbors: 64}, []feedback.Source{src})
 	assert.InEpsilon(t, want, out.Ledger.RadialMomentum, 1e-6)
 	assert.Greater(t, out.Ledger.Radiated, 0.99*e, "the light's energy escapes, only the kicks stay")
 }
@@ -116,7 +116,7 @@ func TestChannelSchemesPassTheHarness(t *testing.T) {
 	}
 	photons := func(s feedback.Star) feedback.Source {
 		n := 1e49 * units.Megayear
-		return feedback.Source{Star: s, Channel: feedback.PhotoionisationChannel, Photons: n,
+		return feedback.Source{Star: s, Channel: feedback.PhotoionizationChannel, Photons: n,
 			Duration: units.Megayear / u.TimeS(), Energy: n * 3 * 1.602e-12 / u.EnergyErg()}
 	}
 	cases := []struct {
@@ -126,7 +126,7 @@ func TestChannelSchemesPassTheHarness(t *testing.T) {
 	}{
 		{"winds", feedback.Winds{}, wind},
 		{"radiation-pressure", feedback.RadiationPressure{}, light},
-		{"photoionisation", feedback.Photoionisation{}, photons},
+		{"photoionization", feedback.Photoionization{}, photons},
 		{"stochastic-heating", feedback.StochasticHeating{Seed: 5}, nil},
 	}
 	for _, c := range cases {
@@ -147,7 +147,7 @@ func TestStochasticHeatingJump(t *testing.T) {
 		src.Star.Pos = [3]float64{g.Pos[0][s*7], g.Pos[1][s*7], g.Pos[2][s*7] + 0.5}
 		srcs = append(srcs, src)
 	}
-	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.StochasticHeating{Seed: 9}, Neighbours: 32}, srcs)
+	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.StochasticHeating{Seed: 9}, Neighbors: 32}, srcs)
 	heated := 0
 	for _, r := range out.Records {
 		if r.Flags&feedback.FlagStochastic != 0 {
@@ -163,11 +163,11 @@ func TestStochasticHeatingJump(t *testing.T) {
 	assert.Greater(t, heated, 0)
 }
 
-func TestCoolingOffTime(t *testing.T) {
+func TestCoolingHoldTime(t *testing.T) {
 	// McKee & Ostriker 1977 as used by Stinson et al. 2006 (from memory):
 	// 10^6.85 yr at E51 = 1, n = 1, P/k = 1e4 K cm^-3.
-	assert.InEpsilon(t, math.Pow(10, 6.85)*units.JulianYear, feedback.CoolingOffTime(units.FOE, 1, 1e4), 1e-12)
-	assert.Greater(t, feedback.CoolingOffTime(units.FOE, 10, 1e4), feedback.CoolingOffTime(units.FOE, 1, 1e4))
+	assert.InEpsilon(t, math.Pow(10, 6.85)*units.JulianYear, feedback.CoolingHoldTime(units.FOE, 1, 1e4), 1e-12)
+	assert.Greater(t, feedback.CoolingHoldTime(units.FOE, 10, 1e4), feedback.CoolingHoldTime(units.FOE, 1, 1e4))
 }
 
 func TestStepperSingleStarHundredMyr(t *testing.T) {
@@ -189,7 +189,7 @@ func TestStepperSingleStarHundredMyr(t *testing.T) {
 	const seeds = 12
 	for seed := uint64(1); seed <= seeds; seed++ {
 		g := uniformGas(seed, 600, 200, 1, u)
-		st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u, Neighbours: 32}, Model: pop, Seed: seed})
+		st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u, Neighbors: 32}, Model: pop, Seed: seed})
 		require.NoError(t, err)
 		f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 		require.NoError(t, err)
@@ -252,13 +252,13 @@ func TestStepperDelayedCoolingFlags(t *testing.T) {
 	require.Positive(t, out.Supernovae[0], "1e5 Msun at 10 Myr explodes within a Myr")
 	flagged := 0
 	for _, r := range out.Records {
-		if r.Flags&feedback.FlagCoolingOff != 0 {
+		if r.Flags&feedback.FlagHoldCooling != 0 {
 			flagged++
-			assert.Greater(t, r.CoolingOffUntil, 0.0)
+			assert.Greater(t, r.HoldCoolingUntil, 0.0)
 			assert.Equal(t, yields.CoreCollapse, r.Channel)
 		}
 	}
-	assert.Equal(t, feedback.DefaultNeighbours, flagged)
+	assert.Equal(t, feedback.DefaultNeighbors, flagged)
 }
 
 func TestStepperTypeIaIronAndWindEnergy(t *testing.T) {
@@ -327,7 +327,7 @@ func TestStepperBitwiseForAnyWorkerCount(t *testing.T) {
 			_, _, err = feedback.Apply(view, out.Records, nil)
 			require.NoError(t, err)
 			if radius != 0 {
-				continue // a different neighbourhood; balanced is all we ask
+				continue // a different neighborhood; balanced is all we ask
 			}
 			if ref == nil {
 				ref = g
@@ -360,7 +360,7 @@ func BenchmarkStep(b *testing.B) {
 		stars = append(stars, feedback.StarParticle{Star: feedback.Star{ID: int64(s + 1), Mass: 1e4, Metallicity: 0.0134,
 			Pos: [3]float64{g.Pos[0][i], g.Pos[1][i] + 0.2, g.Pos[2][i]}, Age: float64(1+s%30) * myr}, FormedMass: 1e4})
 	}
-	st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u, Neighbours: 64}, Model: pop, Seed: 1})
+	st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u, Neighbors: 64}, Model: pop, Seed: 1})
 	if err != nil {
 		b.Fatal(err)
 	}

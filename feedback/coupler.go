@@ -55,19 +55,19 @@ type Config struct {
 	// Scheme splits each release; nil means TerminalMomentum with the
 	// Kim & Ostriker 2015 fit.
 	Scheme Scheme
-	// Weighting shares the release among neighbours before the isotropy
+	// Weighting shares the release among neighbors before the isotropy
 	// correction.
 	Weighting Weighting
 	// SkipIsotropyCorrection turns the isotropy correction off (for
 	// comparisons); the net momentum is still removed so that momentum is
 	// conserved, and the residual is reported.
 	SkipIsotropyCorrection bool
-	// Neighbours is the number of nearest gas elements each star couples
+	// Neighbors is the number of nearest gas elements each star couples
 	// to; 0 means 32. Ignored when Radius > 0.
-	Neighbours int
+	Neighbors int
 	// Radius, when positive, couples each star to all gas within this
-	// distance (code length) instead of a fixed number of neighbours. With
-	// host-supplied neighbour lists, a huge radius takes whole rows.
+	// distance (code length) instead of a fixed number of neighbors. With
+	// host-supplied neighbor lists, a huge radius takes whole rows.
 	Radius float64
 	// Workers is the number of goroutines; 0 means 1. Results are bitwise
 	// the same for any number.
@@ -77,8 +77,8 @@ type Config struct {
 	Box neighbor.Box
 }
 
-// DefaultNeighbours is the neighbour count used when Config.Neighbours is 0.
-const DefaultNeighbours = 32
+// DefaultNeighbors is the neighbor count used when Config.Neighbors is 0.
+const DefaultNeighbors = 32
 
 // Coupler deposits releases into gas. It holds per-worker scratch and is
 // reused from call to call; one Coupler must not run two Couple calls at
@@ -114,7 +114,7 @@ type slot struct {
 }
 
 type workerScratch struct {
-	nb      Neighbourhood
+	nb      Neighborhood
 	found   []neighbor.Neighbor
 	deps    []Deposit
 	records []Record
@@ -128,11 +128,11 @@ func NewCoupler(cfg Config) (*Coupler, error) {
 	if cfg.Scheme == nil {
 		cfg.Scheme = TerminalMomentum{Fit: KimOstriker2015}
 	}
-	if cfg.Neighbours == 0 {
-		cfg.Neighbours = DefaultNeighbours
+	if cfg.Neighbors == 0 {
+		cfg.Neighbors = DefaultNeighbors
 	}
-	if cfg.Neighbours < 0 {
-		return nil, fmt.Errorf("coupler: neighbour count %d must be positive", cfg.Neighbours)
+	if cfg.Neighbors < 0 {
+		return nil, fmt.Errorf("coupler: neighbor count %d must be positive", cfg.Neighbors)
 	}
 	if !(cfg.Radius >= 0) {
 		return nil, fmt.Errorf("coupler: radius %g must be non-negative", cfg.Radius)
@@ -162,15 +162,15 @@ func NewCoupler(cfg Config) (*Coupler, error) {
 // Config returns the configuration in force (with defaults filled in).
 func (c *Coupler) Config() Config { return c.cfg }
 
-// errNoNeighbours is the reason a source with no gas around it is returned
+// errNoNeighbors is the reason a source with no gas around it is returned
 // undeposited.
-var errNoNeighbours = errors.New("no gas neighbours")
+var errNoNeighbors = errors.New("no gas neighbors")
 
 // Couple deposits every source's release into the gas around it. finder
 // must have been built on the same gas (the same element order). Records
 // are written to out.Records (not applied: call Apply, or send them to the
 // owning rank first), and out.Ledger accounts for everything. A source
-// that cannot be coupled (bad values, no neighbours, a neighbour with bad
+// that cannot be coupled (bad values, no neighbors, a neighbor with bad
 // fields) is returned undeposited in the ledger and listed in
 // out.Problems; Couple's error is for problems with the call itself.
 func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out *Output) error {
@@ -188,7 +188,7 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 		return fmt.Errorf("couple: %w", err)
 	}
 	if finder == nil {
-		return errors.New("couple: nil neighbour finder")
+		return errors.New("couple: nil neighbor finder")
 	}
 	n := len(sources)
 	if cap(c.slots) < n {
@@ -202,11 +202,11 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 	}
 	metals, hasMetals := gas.speciesColumn(yields.Metals)
 
-	// With a fixed neighbour count every star's records go straight to
+	// With a fixed neighbor count every star's records go straight to
 	// their final place in out.Records (k slots per star, compacted after);
 	// with a radius they collect in per-worker buffers and are copied.
 	fixed := c.cfg.Radius == 0
-	k := c.cfg.Neighbours
+	k := c.cfg.Neighbors
 	if fixed {
 		if cap(out.Records) < n*k {
 			out.Records = make([]Record, n*k)
@@ -284,7 +284,7 @@ func (c *Coupler) work(w int) {
 	cs := &c.call
 	ws := &c.workers[w]
 	n := len(cs.sources)
-	k := c.cfg.Neighbours
+	k := c.cfg.Neighbors
 	for {
 		lo := int(cs.next.Add(couplerChunk)) - couplerChunk
 		if lo >= n {
@@ -317,7 +317,7 @@ func (c *Coupler) work(w int) {
 func depositsFinite(deps []Deposit) bool {
 	for j := range deps {
 		d := &deps[j]
-		sum := d.Mass + d.Energy + d.Heat + d.Radiated + d.CoolingOffUntil +
+		sum := d.Mass + d.Energy + d.Heat + d.Radiated + d.HoldCoolingUntil +
 			d.Momentum[0] + d.Momentum[1] + d.Momentum[2]
 		for _, m := range d.Species {
 			sum += m
@@ -325,7 +325,7 @@ func depositsFinite(deps []Deposit) bool {
 		// A sum of finite numbers can overflow to Inf: check it, and fall
 		// back to one by one only then.
 		if !finite(sum) {
-			vals := [...]float64{d.Mass, d.Energy, d.Heat, d.Radiated, d.CoolingOffUntil, d.Momentum[0], d.Momentum[1], d.Momentum[2]}
+			vals := [...]float64{d.Mass, d.Energy, d.Heat, d.Radiated, d.HoldCoolingUntil, d.Momentum[0], d.Momentum[1], d.Momentum[2]}
 			for _, v := range vals {
 				if !finite(v) {
 					return false
@@ -373,29 +373,29 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 	if c.cfg.Radius > 0 {
 		ws.found, err = finder.Within(q, c.cfg.Radius, ws.found)
 	} else {
-		ws.found, err = finder.Nearest(q, c.cfg.Neighbours, ws.found)
+		ws.found, err = finder.Nearest(q, c.cfg.Neighbors, ws.found)
 	}
 	if err != nil {
-		return undeposited(src, fmt.Errorf("star %d: neighbour search: %w", src.Star.ID, err))
+		return undeposited(src, fmt.Errorf("star %d: neighbor search: %w", src.Star.ID, err))
 	}
 	k := len(ws.found)
-	if c.cfg.Radius == 0 && k > c.cfg.Neighbours {
-		return undeposited(src, fmt.Errorf("star %d: finder returned %d neighbours, %d asked for", src.Star.ID, k, c.cfg.Neighbours))
+	if c.cfg.Radius == 0 && k > c.cfg.Neighbors {
+		return undeposited(src, fmt.Errorf("star %d: finder returned %d neighbors, %d asked for", src.Star.ID, k, c.cfg.Neighbors))
 	}
 	if k == 0 {
-		return undeposited(src, fmt.Errorf("star %d: %w", src.Star.ID, errNoNeighbours))
+		return undeposited(src, fmt.Errorf("star %d: %w", src.Star.ID, errNoNeighbors))
 	}
 	nb := &ws.nb
 	nb.resize(k)
 	nb.Source = src
 	vs := src.Star.Vel
 	// Gather first, in a tight loop that keeps many cache misses in
-	// flight (neighbours are scattered in the host's memory); check and
+	// flight (neighbors are scattered in the host's memory); check and
 	// derive afterwards. Positions wait in Dir until then.
 	for j, f := range ws.found {
 		i := f.Index
 		if i < 0 || i >= gas.N {
-			return undeposited(src, fmt.Errorf("star %d: neighbour index %d outside the gas (%d elements)", src.Star.ID, i, gas.N))
+			return undeposited(src, fmt.Errorf("star %d: neighbor index %d outside the gas (%d elements)", src.Star.ID, i, gas.N))
 		}
 		nb.Index[j] = i
 		nb.ID[j] = gas.ID.Int(i)
@@ -440,7 +440,7 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 	baseWeights(c.cfg.Weighting, nb.Dist, nb.Mass, nb.Density, nb.Weight)
 	if nb.correct {
 		tilt(nb.Weight, nb.Dir, nb.scratch)
-		normalise(nb.Weight)
+		normalize(nb.Weight)
 	}
 	copy(nb.EnergyWeight, nb.Weight)
 	if cap(ws.deps) < k {

@@ -80,14 +80,14 @@ func pcMsunKms() units.CodeUnits {
 }
 
 func TestTerminalMomentumUnresolved(t *testing.T) {
-	// Gas elements of 1e4 Msun at n = 1: 64 neighbours hold 6.4e5 Msun, far
+	// Gas elements of 1e4 Msun at n = 1: 64 neighbors hold 6.4e5 Msun, far
 	// above the shell-formation mass (1.54e3 Msun, Kim & Ostriker 2015, from
-	// memory), so every neighbour is capped and the radial momentum is the
+	// memory), so every neighbor is capped and the radial momentum is the
 	// terminal momentum, 2.17e5 Msun km/s at n = 1 (Kim & Ostriker 2015).
 	u := pcMsunKms()
 	for _, fit := range []feedback.RemnantFit{feedback.KimOstriker2015, feedback.CioffiMcKeeBertschinger1988} {
 		g := uniformGas(1, 400, 1e4, 1, u)
-		out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.TerminalMomentum{Fit: fit}, Neighbours: 64},
+		out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.TerminalMomentum{Fit: fit}, Neighbors: 64},
 			[]feedback.Source{supernova(1, u)})
 		want := fit.Remnant(units.FOE, 1, 0.0134/feedback.SolarMetallicity).TerminalMomentum / units.MsunKms
 		assert.InEpsilon(t, want, out.Ledger.RadialMomentum, 1e-6, "%v", fit)
@@ -97,16 +97,16 @@ func TestTerminalMomentumUnresolved(t *testing.T) {
 }
 
 func TestTerminalMomentumResolved(t *testing.T) {
-	// Elements of 0.5 Msun: 64 neighbours hold 32 Msun, far below the
-	// cooling mass, so no neighbour is capped and the momentum is that of
+	// Elements of 0.5 Msun: 64 neighbors hold 32 Msun, far below the
+	// cooling mass, so no neighbor is capped and the momentum is that of
 	// energy-conserving sweep-up, between the free-ejecta momentum
 	// sqrt(2 M_ej E) (about 3.2e4 Msun km/s for 10 Msun, REFERENCES.md) and
 	// sqrt(2 (M_ej + M_swept) E), the bound with all energy kinetic.
 	u := pcMsunKms()
 	g := uniformGas(2, 300, 0.5, 1, u)
-	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Neighbours: 64}, []feedback.Source{supernova(1, u)})
+	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Neighbors: 64}, []feedback.Source{supernova(1, u)})
 	e := units.FOE / u.EnergyErg()
-	// Only the lightly weighted neighbours at the kernel's edge, which see a
+	// Only the lightly weighted neighbors at the kernel's edge, which see a
 	// large swept mass per unit of ejecta, may reach their terminal share.
 	capped := 0
 	for _, r := range out.Records {
@@ -114,7 +114,7 @@ func TestTerminalMomentumResolved(t *testing.T) {
 			capped++
 		}
 	}
-	assert.Less(t, capped, 16, "most neighbours stay energy-conserving")
+	assert.Less(t, capped, 16, "most neighbors stay energy-conserving")
 	assert.Less(t, out.Ledger.Radiated, 0.05*e)
 	free := math.Sqrt(2 * 10 * e)
 	upper := math.Sqrt(2 * (10 + 32) * e)
@@ -129,7 +129,7 @@ func TestSedovSplitOfKineticScheme(t *testing.T) {
 	// memory).
 	u := pcMsunKms()
 	g := uniformGas(3, 400, 100, 1, u)
-	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.Kinetic{}, Neighbours: 64}, []feedback.Source{supernova(1, u)})
+	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.Kinetic{}, Neighbors: 64}, []feedback.Source{supernova(1, u)})
 	heat, total := 0.0, 0.0
 	for _, r := range out.Records {
 		heat += r.Heat
@@ -146,7 +146,7 @@ func TestSameAnswerInTwoUnitSystems(t *testing.T) {
 	var p, rad []float64
 	for _, u := range systems {
 		g := uniformGas(4, 300, 300, 3, u)
-		out, _ := coupleOnce(t, g, feedback.Config{Units: u, Neighbours: 48}, []feedback.Source{supernova(1, u)})
+		out, _ := coupleOnce(t, g, feedback.Config{Units: u, Neighbors: 48}, []feedback.Source{supernova(1, u)})
 		p = append(p, out.Ledger.RadialMomentum*u.MomentumGCmPS())
 		rad = append(rad, out.Ledger.Radiated*u.EnergyErg())
 	}
@@ -174,7 +174,7 @@ func TestBitwiseIdenticalForWorkersAndStarOrder(t *testing.T) {
 				rng.Shuffle(len(order), func(i, j int) { order[i], order[j] = order[j], order[i] })
 			}
 			g := base.Clone()
-			coupleOnce(t, g, feedback.Config{Units: u, Neighbours: 32, Workers: workers}, order)
+			coupleOnce(t, g, feedback.Config{Units: u, Neighbors: 32, Workers: workers}, order)
 			if ref == nil {
 				ref = g
 				continue
@@ -234,7 +234,7 @@ func TestArrayOfStructsFloat32Host(t *testing.T) {
 		gas.Vel[a] = feedback.Strided(unsafe.Pointer(&parts[0].Vel[a]), n, stride, feedback.Float64)
 	}
 	require.NoError(t, gas.Validate())
-	cfg := feedback.Config{Units: u, Neighbours: 32}
+	cfg := feedback.Config{Units: u, Neighbors: 32}
 	c, err := feedback.NewCoupler(cfg)
 	require.NoError(t, err)
 	f, err := neighbor.NewTree(gas.PackedPositions(nil), gas.IDs(nil), neighbor.Box{})
@@ -300,7 +300,7 @@ func TestBadInputLosesNothing(t *testing.T) {
 			src := supernova(3, u)
 			src.Star.Pos = [3]float64{g.Pos[0][0] + 1e-3, g.Pos[1][0], g.Pos[2][0]}
 			c.mutate(g, &src)
-			co, err := feedback.NewCoupler(feedback.Config{Units: u, Neighbours: 8})
+			co, err := feedback.NewCoupler(feedback.Config{Units: u, Neighbors: 8})
 			require.NoError(t, err)
 			pos := g.Packed()
 			for i := range pos {
@@ -324,7 +324,7 @@ func TestBadInputLosesNothing(t *testing.T) {
 	}
 }
 
-func TestNoNeighboursReturnsRelease(t *testing.T) {
+func TestNoNeighborsReturnsRelease(t *testing.T) {
 	u := pcMsunKms()
 	g := uniformGas(9, 10, 10, 1, u)
 	// A host list whose row for the star is empty.
@@ -343,7 +343,7 @@ func TestNoNeighboursReturnsRelease(t *testing.T) {
 func TestApplyRejectsBadRecordsWithoutWriting(t *testing.T) {
 	u := pcMsunKms()
 	g := uniformGas(10, 50, 10, 1, u)
-	out, _ := coupleOnce(t, g.Clone(), feedback.Config{Units: u, Neighbours: 16}, []feedback.Source{supernova(1, u)})
+	out, _ := coupleOnce(t, g.Clone(), feedback.Config{Units: u, Neighbors: 16}, []feedback.Source{supernova(1, u)})
 	before := g.Clone()
 	for _, bad := range []func(r *feedback.Record){
 		func(r *feedback.Record) { r.GasIndex = 1 << 30 },
@@ -363,7 +363,7 @@ func TestApplyRejectsBadRecordsWithoutWriting(t *testing.T) {
 func TestConfigErrors(t *testing.T) {
 	for _, cfg := range []feedback.Config{
 		{},
-		{Units: pcMsunKms(), Neighbours: -1},
+		{Units: pcMsunKms(), Neighbors: -1},
 		{Units: pcMsunKms(), Radius: math.NaN()},
 		{Units: pcMsunKms(), Workers: -2},
 		{Units: pcMsunKms(), Weighting: 9},
@@ -383,7 +383,7 @@ func TestConfigErrors(t *testing.T) {
 func TestIDIndexResolvesRecordsFromAnotherRank(t *testing.T) {
 	u := pcMsunKms()
 	g := uniformGas(11, 60, 10, 1, u)
-	out, _ := coupleOnce(t, g.Clone(), feedback.Config{Units: u, Neighbours: 16}, []feedback.Source{supernova(1, u)})
+	out, _ := coupleOnce(t, g.Clone(), feedback.Config{Units: u, Neighbors: 16}, []feedback.Source{supernova(1, u)})
 	// The receiving rank holds the same elements in reverse order.
 	rev := g.Clone()
 	n := rev.Len()
@@ -448,7 +448,7 @@ func TestCoupleAllocatesNothingInSteadyState(t *testing.T) {
 func TestApplierRejectsDuplicatesAndKeepsRecordOrder(t *testing.T) {
 	u := pcMsunKms()
 	g := uniformGas(14, 300, 10, 1, u)
-	out, _ := coupleOnce(t, g.Clone(), feedback.Config{Units: u, Neighbours: 16}, []feedback.Source{supernova(1, u), supernova(2, u)})
+	out, _ := coupleOnce(t, g.Clone(), feedback.Config{Units: u, Neighbors: 16}, []feedback.Source{supernova(1, u), supernova(2, u)})
 	recs := append([]feedback.Record(nil), out.Records...)
 	before := g.Clone()
 	twice := append(append([]feedback.Record(nil), recs...), recs[3])
@@ -491,7 +491,7 @@ func TestFieldViewsArrayOfStructs(t *testing.T) {
 // overflowing stands for a scheme pushed out of floating-point range.
 type overflowing struct{ feedback.Kinetic }
 
-func (s overflowing) Deposit(nb *feedback.Neighbourhood, out []feedback.Deposit) (float64, error) {
+func (s overflowing) Deposit(nb *feedback.Neighborhood, out []feedback.Deposit) (float64, error) {
 	rad, err := s.Kinetic.Deposit(nb, out)
 	out[len(out)-1].Momentum[1] = math.Inf(1)
 	return rad, err
@@ -500,7 +500,7 @@ func (s overflowing) Deposit(nb *feedback.Neighbourhood, out []feedback.Deposit)
 func TestNonFiniteDepositsAreReturnedNotWritten(t *testing.T) {
 	u := pcMsunKms()
 	g := uniformGas(15, 100, 10, 1, u)
-	c, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: overflowing{}, Neighbours: 16})
+	c, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: overflowing{}, Neighbors: 16})
 	require.NoError(t, err)
 	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 	require.NoError(t, err)

@@ -17,19 +17,19 @@
 // # Weights and the isotropy correction
 //
 // Each star couples to its k nearest gas elements (or all within a radius,
-// or a host-supplied list). Neighbour j gets a base weight: KernelVolume,
-// the star's cubic-spline kernel at the neighbour times its volume m/rho, or
-// SolidAngle, the share of the sky the neighbour covers seen from the star.
+// or a host-supplied list). Neighbor j gets a base weight: KernelVolume,
+// the star's cubic-spline kernel at the neighbor times its volume m/rho, or
+// SolidAngle, the share of the sky the neighbor covers seen from the star.
 //
 // The base weights are then corrected so that the weighted sum of unit
-// vectors from the star to its neighbours vanishes, keeping every weight
+// vectors from the star to its neighbors vanishes, keeping every weight
 // positive. Among all positive weights with that property and the same
 // total, the correction picks the one closest to the base weights in
 // relative entropy (sum w' log(w'/w)); the answer is an exponential tilt
 // w'_j ∝ w_j exp(lambda · n_j), with the 3-vector lambda found by Newton's
 // method on a convex function (weights.go has the details). The same
 // correction is applied to the radial momenta a scheme asks for, since they
-// differ from the weights by per-neighbour factors. When the gas lies in
+// differ from the weights by per-neighbor factors. When the gas lies in
 // one half-space around the star, no positive correction exists: the tilt
 // stops at a bounded lambda, and the residual |sum p_j n_j| / sum |p_j| is
 // reported (Ledger.MaxIsotropyResidual), never hidden. Whatever net vector
@@ -38,7 +38,7 @@
 //
 // # Schemes
 //
-// A Scheme decides how much of each neighbour's share becomes radial
+// A Scheme decides how much of each neighbor's share becomes radial
 // momentum and how much heat it keeps: ThermalDump (all heat), Kinetic (a
 // fixed kinetic fraction), TerminalMomentum (energy-conserving sweep-up
 // while the cooling radius is resolved, capped at the terminal momentum of
@@ -50,11 +50,11 @@
 // # Frames and energy
 //
 // Momentum is split in the star's frame; the ejecta carry the star's
-// velocity into the lab frame. Neighbour j's heat is its energy share less
+// velocity into the lab frame. Neighbor j's heat is its energy share less
 // its gain of kinetic energy in the star's frame; because the star-frame
 // kicks sum to zero, the lab-frame energy deposited equals the released
 // energy plus the ejecta's lab-frame kinetic energy, less what is radiated,
-// for a moving star in moving gas. If any neighbour's heat would be
+// for a moving star in moving gas. If any neighbor's heat would be
 // negative (gas already moving outward fast), all the star's kicks are
 // scaled down together, which keeps momentum conserved (FlagLimited).
 //

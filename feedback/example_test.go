@@ -39,7 +39,7 @@ func ExampleCoupler_Couple() {
 		panic(err)
 	}
 	coupler, err := feedback.NewCoupler(feedback.Config{Units: u,
-		Scheme: feedback.TerminalMomentum{Fit: feedback.KimOstriker2015}, Neighbours: 32})
+		Scheme: feedback.TerminalMomentum{Fit: feedback.KimOstriker2015}, Neighbors: 32})
 	if err != nil {
 		panic(err)
 	}

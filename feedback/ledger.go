@@ -23,9 +23,9 @@ type Star struct {
 // its species, and the energy (explosion energy for supernovae, wind kinetic
 // energy for winds, emitted light for radiation pressure). Events is the
 // number of discrete events (supernovae) the energy comes from, 0 for
-// continuous release. Photons is the number of hydrogen-ionising photons
+// continuous release. Photons is the number of hydrogen-ionizing photons
 // emitted over the step and Duration the step's length (code time), used by
-// the photoionisation scheme.
+// the photoionization scheme.
 type Source struct {
 	Star     Star
 	Channel  yields.Channel
@@ -130,9 +130,9 @@ type Ledger struct {
 	// Radiated is the energy booked as lost to cooling.
 	Radiated float64
 	// Stars is the number of sources handled; Skipped those whose release
-	// was returned undeposited (no neighbours, bad input).
+	// was returned undeposited (no neighbors, bad input).
 	Stars, Skipped int
-	// Capped counts sources for which at least one neighbour received the
+	// Capped counts sources for which at least one neighbor received the
 	// terminal momentum cap (cooling radius unresolved).
 	Capped int
 	// Limited counts sources whose kicks were scaled down so that no
@@ -140,15 +140,15 @@ type Ledger struct {
 	Limited int
 	// MaxIsotropyResidual is the largest, over sources, of |sum p_j| /
 	// sum |p_j| for the radial momenta before the net was removed: zero for a
-	// perfectly balanced neighbourhood, one for all gas on one side.
+	// perfectly balanced neighborhood, one for all gas on one side.
 	// SumIsotropyResidual sums it, for means.
 	MaxIsotropyResidual, SumIsotropyResidual float64
 	// RadialMomentum is the radial momentum handed out, summed over
-	// neighbours: sum_j dp_j . n_j in each star's frame, with n_j the unit
-	// vector from the star to neighbour j. It is what a remnant's momentum
+	// neighbors: sum_j dp_j . n_j in each star's frame, with n_j the unit
+	// vector from the star to neighbor j. It is what a remnant's momentum
 	// is compared with.
 	RadialMomentum float64
-	// MomentumScale is sum_j |dp_j| over neighbours (star frame), the
+	// MomentumScale is sum_j |dp_j| over neighbors (star frame), the
 	// scale against which momentum round-off is judged.
 	MomentumScale float64
 	// EnergyScale is the lab-frame kinetic energy of the touched gas before

@@ -21,7 +21,7 @@ type SchemeOptions struct {
 func SchemeNames() []string {
 	return []string{
 		ThermalDump{}.Name(), Kinetic{}.Name(), TerminalMomentum{}.Name(), StochasticHeating{}.Name(),
-		Winds{}.Name(), RadiationPressure{}.Name(), Photoionisation{}.Name(),
+		Winds{}.Name(), RadiationPressure{}.Name(), Photoionization{}.Name(),
 	}
 }
 
@@ -40,8 +40,8 @@ func SchemeByName(name string, o SchemeOptions) (Scheme, error) {
 		return Winds{Fit: o.Fit}, nil
 	case RadiationPressure{}.Name():
 		return RadiationPressure{}, nil
-	case Photoionisation{}.Name():
-		return Photoionisation{}, nil
+	case Photoionization{}.Name():
+		return Photoionization{}, nil
 	}
 	return nil, fmt.Errorf("scheme %q: want one of %s", name, strings.Join(SchemeNames(), ", "))
 }

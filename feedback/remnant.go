@@ -55,7 +55,7 @@ const (
 	KimOstriker2015 RemnantFit = iota
 	// CioffiMcKeeBertschinger1988 is the pressure-driven-snowplough
 	// solution of Cioffi, McKee & Bertschinger 1988 (ApJ 334, 252; from
-	// memory, normalisation to be checked against the paper):
+	// memory, normalization to be checked against the paper):
 	//   p_t = 4.8e5 Msun km/s E51^(13/14) n0^(-1/7) zeta^(-3/14),
 	//   R_PDS = 14 pc E51^(2/7) n0^(-3/7) zeta^(-1/7),
 	// with zeta the metallicity in solar units.

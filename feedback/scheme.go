@@ -17,17 +17,17 @@ const (
 	// FlagLimited: the star's kicks were scaled down so that no element's
 	// heat would be negative.
 	FlagLimited
-	// FlagIonised: the element is photoionised; the host should not cool it
-	// below the ionised floor temperature this step.
-	FlagIonised
-	// FlagCoolingOff: the host should switch cooling off for the element
+	// FlagIonized: the element is photoionized; the host should not cool it
+	// below the ionized floor temperature this step.
+	FlagIonized
+	// FlagHoldCooling: the host should hold cooling for the element
 	// until the time given in the record.
-	FlagCoolingOff
+	FlagHoldCooling
 	// FlagStochastic: the element was chosen by stochastic heating.
 	FlagStochastic
 )
 
-// Deposit is what one star gives one neighbour, in code units: mass, the
+// Deposit is what one star gives one neighbor, in code units: mass, the
 // mass of each species, lab-frame momentum, and the change of the element's
 // total (thermal plus lab-frame kinetic) energy. Heat is the thermal part,
 // the rest being the change of kinetic energy; Apply recomputes the heat
@@ -45,59 +45,59 @@ type Deposit struct {
 	// (see ApplyReport.Reclaimed).
 	Radiated float64
 	Flags    Flags
-	// CoolingOffUntil is, with FlagCoolingOff, how long (code time from the
-	// step start) the host should keep the element's cooling off.
-	CoolingOffUntil float64
+	// HoldCoolingUntil is, with FlagHoldCooling, how long (code time from the
+	// step start) the host should hold the element's cooling.
+	HoldCoolingUntil float64
 }
 
-// Scheme decides how one star's release is split over its neighbours:
+// Scheme decides how one star's release is split over its neighbors:
 // how much of it goes into radial momentum and how much stays as heat or is
 // radiated. Built-in schemes are ThermalDump, Kinetic and TerminalMomentum;
 // users may write their own and check them with package feedbacktest.
 //
-// Deposit is called once per star with the neighbourhood filled in, and
-// writes one Deposit per neighbour into out (len(out) == nb.Len()). It
+// Deposit is called once per star with the neighborhood filled in, and
+// writes one Deposit per neighbor into out (len(out) == nb.Len()). It
 // returns the energy booked as radiated. Deposit must not retain nb or out,
 // and is called concurrently from several goroutines: a scheme must keep no
 // mutable state (use nb.Momentum and nb.HeatCap as scratch).
 type Scheme interface {
 	Name() string
-	Deposit(nb *Neighbourhood, out []Deposit) (radiated float64, err error)
+	Deposit(nb *Neighborhood, out []Deposit) (radiated float64, err error)
 }
 
-// Neighbourhood is one star's release and the gas around it, read from the
-// host's columns, in code units. Slices have one entry per neighbour,
+// Neighborhood is one star's release and the gas around it, read from the
+// host's columns, in code units. Slices have one entry per neighbor,
 // nearest first. It is reused from star to star: schemes must not keep it.
-type Neighbourhood struct {
+type Neighborhood struct {
 	// Source is the star and its release.
 	Source *Source
 	// Units are the host's code units.
 	Units units.CodeUnits
-	// Index and ID locate each neighbour in the host's gas.
+	// Index and ID locate each neighbor in the host's gas.
 	Index []int
 	ID    []int64
 	// Mass, Density, InternalEnergy (specific) and Metallicity (metal mass
 	// fraction; the star's metallicity when the host tracks no metals) of
-	// each neighbour.
+	// each neighbor.
 	Mass, Density, InternalEnergy, Metallicity []float64
 	// Dist is the distance from the star; Dir the unit vector from the star
-	// to the neighbour (zero for a neighbour at the star's position).
+	// to the neighbor (zero for a neighbor at the star's position).
 	Dist []float64
 	Dir  [][3]float64
-	// Vel is each neighbour's lab-frame velocity, RelVel the same in the
+	// Vel is each neighbor's lab-frame velocity, RelVel the same in the
 	// star's frame.
 	Vel, RelVel [][3]float64
-	// Weight holds each neighbour's share of mass, species and energy:
+	// Weight holds each neighbor's share of mass, species and energy:
 	// positive, summing to one, isotropy-corrected unless the coupler was
 	// configured without the correction.
 	Weight []float64
-	// EnergyWeight is each neighbour's share of the energy used by
+	// EnergyWeight is each neighbor's share of the energy used by
 	// CoupleRadial; the coupler fills it with Weight, and a scheme that
 	// concentrates energy (stochastic heating) overwrites it. Its sum must
 	// be one, or zero when the scheme returns the whole energy.
 	EnergyWeight []float64
 	// Momentum and HeatCap are scratch for schemes that use CoupleRadial:
-	// the radial momentum to give each neighbour (star frame, before the
+	// the radial momentum to give each neighbor (star frame, before the
 	// isotropy correction) and the most heat each may keep (the excess is
 	// radiated); +Inf keeps all.
 	Momentum, HeatCap []float64
@@ -112,11 +112,11 @@ type Neighbourhood struct {
 	scratch  []float64
 }
 
-// Len is the number of neighbours.
-func (nb *Neighbourhood) Len() int { return len(nb.Index) }
+// Len is the number of neighbors.
+func (nb *Neighborhood) Len() int { return len(nb.Index) }
 
-// resize sets the number of neighbours, growing storage only when needed.
-func (nb *Neighbourhood) resize(k int) {
+// resize sets the number of neighbors, growing storage only when needed.
+func (nb *Neighborhood) resize(k int) {
 	if cap(nb.Index) < k {
 		nb.Index = make([]int, k)
 		nb.ID = make([]int64, k)
@@ -154,28 +154,28 @@ func (nb *Neighbourhood) resize(k int) {
 }
 
 // ReturnEnergy books energy the scheme did not deposit as returned to the
-// caller (Ledger.Undeposited); the scheme must then give the neighbours only
+// caller (Ledger.Undeposited); the scheme must then give the neighbors only
 // the rest (by setting EnergyWeight to sum to the deposited fraction).
-func (nb *Neighbourhood) ReturnEnergy(e float64) { nb.returned += e }
+func (nb *Neighborhood) ReturnEnergy(e float64) { nb.returned += e }
 
-// MarkCapped records that the scheme capped at least one neighbour at the
+// MarkCapped records that the scheme capped at least one neighbor at the
 // terminal momentum; the coupler counts such stars in the ledger.
-func (nb *Neighbourhood) MarkCapped() { nb.capped = true }
+func (nb *Neighborhood) MarkCapped() { nb.capped = true }
 
 // CoupleRadial completes the deposits of a scheme that has filled
-// nb.Momentum and nb.HeatCap. Each neighbour receives its share of the
+// nb.Momentum and nb.HeatCap. Each neighbor receives its share of the
 // ejected mass and species (nb.Weight), its share of the energy
 // (nb.EnergyWeight, times the energy not returned), the ejecta's lab-frame momentum,
 // and a radial kick: the momenta are isotropy-corrected, any remaining net
 // vector is removed in proportion to the shares so that the kicks sum to
 // zero in the star's frame, and the kicks are scaled down together if any
-// neighbour's heat would otherwise be negative. The heat of neighbour j is
+// neighbor's heat would otherwise be negative. The heat of neighbor j is
 // its energy share minus its gain of kinetic energy in the star's frame,
 // capped at nb.HeatCap[j]; what the cap removes is returned as radiated.
 // Because the star-frame kicks sum to zero, the lab-frame energy deposited
 // equals the released energy plus the ejecta's kinetic energy, less the
 // radiated part, to round-off, for a moving star and moving gas alike.
-func (nb *Neighbourhood) CoupleRadial(out []Deposit) (radiated float64) {
+func (nb *Neighborhood) CoupleRadial(out []Deposit) (radiated float64) {
 	src := nb.Source
 	k := nb.Len()
 	M, E := src.Mass, src.Energy-nb.returned
@@ -202,7 +202,7 @@ func (nb *Neighbourhood) CoupleRadial(out []Deposit) (radiated float64) {
 			}
 		}
 	}
-	// Scale factor keeping every neighbour's heat non-negative.
+	// Scale factor keeping every neighbor's heat non-negative.
 	s := 1.0
 	if any {
 		for j := 0; j < k; j++ {
@@ -269,9 +269,9 @@ func (nb *Neighbourhood) CoupleRadial(out []Deposit) (radiated float64) {
 	return radiated
 }
 
-// kick is neighbour j's star-frame kick before energy limiting: its
+// kick is neighbor j's star-frame kick before energy limiting: its
 // corrected radial momentum minus its share of the net vector.
-func (nb *Neighbourhood) kick(j int, net [3]float64) [3]float64 {
+func (nb *Neighborhood) kick(j int, net [3]float64) [3]float64 {
 	p, w, n := nb.Momentum[j], nb.Weight[j], nb.Dir[j]
 	return [3]float64{p*n[0] - w*net[0], p*n[1] - w*net[1], p*n[2] - w*net[2]}
 }

@@ -5,7 +5,7 @@ import (
 	"math"
 )
 
-// ThermalDump deposits all released energy as heat: each neighbour receives
+// ThermalDump deposits all released energy as heat: each neighbor receives
 // its share of the ejected mass, species and energy, and the ejecta's
 // lab-frame momentum, but no radial kick. In dense gas at coarse resolution
 // the heat is radiated by the host's cooling almost at once; this is the
@@ -16,7 +16,7 @@ type ThermalDump struct{}
 func (ThermalDump) Name() string { return "thermal-dump" }
 
 // Deposit implements Scheme.
-func (ThermalDump) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
+func (ThermalDump) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
 	for j := range nb.Momentum {
 		nb.Momentum[j] = 0
 		nb.HeatCap[j] = math.Inf(1)
@@ -25,7 +25,7 @@ func (ThermalDump) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
 }
 
 // Kinetic hands a fixed fraction of the released energy to the gas as
-// radial kicks and the rest as heat. Neighbour j, of mass m_j, receiving
+// radial kicks and the rest as heat. Neighbor j, of mass m_j, receiving
 // ejecta dm_j and energy share e_j, gets the momentum whose kinetic energy
 // in the star's frame is KineticFraction times its share,
 // p_j = sqrt(2 (m_j + dm_j) f e_j).
@@ -45,7 +45,7 @@ func (s Kinetic) fraction() float64 {
 }
 
 // Deposit implements Scheme.
-func (s Kinetic) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
+func (s Kinetic) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
 	f := s.fraction()
 	if !(f >= 0 && f <= 1) {
 		return 0, fmt.Errorf("kinetic scheme: kinetic fraction %g outside [0, 1]", f)
@@ -62,7 +62,7 @@ func (s Kinetic) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
 // TerminalMomentum couples the momentum a remnant really delivers whether
 // or not the host resolves its cooling radius.
 //
-// Neighbour j, of mass m_j, receives ejecta dm_j = w_j M and energy share
+// Neighbor j, of mass m_j, receives ejecta dm_j = w_j M and energy share
 // e_j = w_j E (w_j its isotropy-corrected weight). While the cooling radius
 // is resolved, it gets the momentum of energy-conserving sweep-up,
 //
@@ -72,14 +72,14 @@ func (s Kinetic) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
 // own choice) between free expansion, where the ejecta carry all the energy
 // as kinetic energy and p_j = w_j sqrt(2 M E), and the Sedov–Taylor phase,
 // where 28% of the energy is kinetic (Chevalier 1974). Once the loaded
-// mass passes the cooling mass, p_j exceeds the neighbour's share of the
+// mass passes the cooling mass, p_j exceeds the neighbor's share of the
 // terminal momentum, w_j p_t(E, n_j, Z_j), from the chosen Fit at the
-// neighbour's own hydrogen density and metallicity, and is capped there.
-// A capped neighbour keeps only the heat of a cooled remnant: the
+// neighbor's own hydrogen density and metallicity, and is capped there.
+// A capped neighbor keeps only the heat of a cooled remnant: the
 // Sedov–Taylor thermal share 0.72 e_j scaled by (R_j / R_cool)^-6.5 (Thornton
-// et al. 1998), with R_j the radius of a sphere of the neighbour's density
+// et al. 1998), with R_j the radius of a sphere of the neighbor's density
 // holding (m_j + dm_j) / w_j, the mass the whole remnant would have swept at
-// this neighbour's loading. The rest of its energy share is booked as
+// this neighbor's loading. The rest of its energy share is booked as
 // radiated. Several simultaneous supernovae from one star are treated as one
 // remnant of their summed energy (common practice).
 type TerminalMomentum struct {
@@ -90,11 +90,11 @@ type TerminalMomentum struct {
 // Name is "terminal-momentum".
 func (TerminalMomentum) Name() string { return "terminal-momentum" }
 
-// sweepUp is neighbour j's energy-conserving momentum (the loaded mass
+// sweepUp is neighbor j's energy-conserving momentum (the loaded mass
 // m_j + dm_j taking the kinetic share f_K of its energy share), the remnant
-// of the release's energy eErg (erg) in the neighbour's gas, and whether
-// that momentum exceeds the neighbour's share of the terminal momentum.
-func (nb *Neighbourhood) sweepUp(j int, fit RemnantFit, eErg float64) (float64, Remnant, bool) {
+// of the release's energy eErg (erg) in the neighbor's gas, and whether
+// that momentum exceeds the neighbor's share of the terminal momentum.
+func (nb *Neighborhood) sweepUp(j int, fit RemnantFit, eErg float64) (float64, Remnant, bool) {
 	src := nb.Source
 	w := nb.Weight[j]
 	m, dm := nb.Mass[j], w*src.Mass
@@ -109,7 +109,7 @@ func (nb *Neighbourhood) sweepUp(j int, fit RemnantFit, eErg float64) (float64, 
 }
 
 // Deposit implements Scheme.
-func (s TerminalMomentum) Deposit(nb *Neighbourhood, out []Deposit) (float64, error) {
+func (s TerminalMomentum) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
 	src := nb.Source
 	u := nb.Units
 	eErg := src.Energy * u.EnergyErg()

@@ -9,7 +9,7 @@ import (
 	"github.com/ejecta-dev/ejecta/neighbor"
 )
 
-// sharedSearch finds each star's neighbours once per step and answers every
+// sharedSearch finds each star's neighbors once per step and answers every
 // channel's coupler from that one search: all channels of a step couple
 // the same stars to the same gas. It implements neighbor.Finder for queries
 // whose Query.Star is the star's index in the step.
@@ -21,7 +21,7 @@ type sharedSearch struct {
 }
 
 // fill runs the search for every star with the coupling configuration's
-// neighbour count or radius, on workers goroutines.
+// neighbor count or radius, on workers goroutines.
 func (s *sharedSearch) fill(f neighbor.Finder, stars []StarParticle, cfg Config) {
 	n := len(stars)
 	if cap(s.rows) < n {
@@ -36,7 +36,7 @@ func (s *sharedSearch) fill(f neighbor.Finder, stars []StarParticle, cfg Config)
 		if cfg.Radius > 0 {
 			s.rows[i], s.errs[i] = f.Within(q, cfg.Radius, s.rows[i])
 		} else {
-			s.rows[i], s.errs[i] = f.Nearest(q, cfg.Neighbours, s.rows[i])
+			s.rows[i], s.errs[i] = f.Nearest(q, cfg.Neighbors, s.rows[i])
 		}
 	}
 	if cfg.Workers <= 1 || n <= couplerChunk {
@@ -71,19 +71,19 @@ func (s *sharedSearch) row(q neighbor.Query) ([]neighbor.Neighbor, error) {
 	return s.rows[q.Star], s.errs[q.Star]
 }
 
-// Nearest returns the first k of the star's neighbours.
+// Nearest returns the first k of the star's neighbors.
 func (s *sharedSearch) Nearest(q neighbor.Query, k int, buf []neighbor.Neighbor) ([]neighbor.Neighbor, error) {
 	row, err := s.row(q)
 	if err != nil {
 		return buf[:0], err
 	}
 	if k > len(row) {
-		return buf[:0], fmt.Errorf("shared search: %d neighbours asked for, %d found: %w", k, len(row), neighbor.ErrTooFew)
+		return buf[:0], fmt.Errorf("shared search: %d neighbors asked for, %d found: %w", k, len(row), neighbor.ErrTooFew)
 	}
 	return append(buf[:0], row[:k]...), nil
 }
 
-// Within returns the star's neighbours within r.
+// Within returns the star's neighbors within r.
 func (s *sharedSearch) Within(q neighbor.Query, r float64, buf []neighbor.Neighbor) ([]neighbor.Neighbor, error) {
 	row, err := s.row(q)
 	if err != nil {

@@ -11,11 +11,11 @@ import (
 )
 
 // Channels of a step beyond the four release channels of package yields:
-// radiation pressure and photoionisation, which records carry in their
+// radiation pressure and photoionization, which records carry in their
 // Channel field.
 const (
 	RadiationChannel       = yields.NumChannels
-	PhotoionisationChannel = yields.NumChannels + 1
+	PhotoionizationChannel = yields.NumChannels + 1
 	// NumStepChannels counts every channel a step drives.
 	NumStepChannels = int(yields.NumChannels) + 2
 )
@@ -25,8 +25,8 @@ func ChannelName(c yields.Channel) string {
 	switch c {
 	case RadiationChannel:
 		return "radiation-pressure"
-	case PhotoionisationChannel:
-		return "photoionisation"
+	case PhotoionizationChannel:
+		return "photoionization"
 	}
 	return c.String()
 }
@@ -34,7 +34,7 @@ func ChannelName(c yields.Channel) string {
 // StarParticle is a star particle with the state a step needs: its star
 // (age in code time at the step's start), the stellar mass it formed with
 // (code mass; releases scale with it), and energy carried over from earlier
-// steps (returned undeposited, e.g. by stochastic heating when no neighbour
+// steps (returned undeposited, e.g. by stochastic heating when no neighbor
 // was drawn), which is added to this step's supernova energy.
 type StarParticle struct {
 	Star
@@ -44,7 +44,7 @@ type StarParticle struct {
 
 // StepConfig sets up a Stepper.
 type StepConfig struct {
-	// Coupling is shared by every channel (units, weights, neighbours,
+	// Coupling is shared by every channel (units, weights, neighbors,
 	// workers, box). Its Scheme couples supernovae (core-collapse and Ia);
 	// nil means TerminalMomentum with Kim & Ostriker 2015.
 	Coupling Config
@@ -57,17 +57,17 @@ type StepConfig struct {
 	Winds Scheme
 	// Radiation couples radiation pressure; nil means RadiationPressure{}.
 	Radiation Scheme
-	// Photoionisation heats ionised gas; nil means Photoionisation{}.
-	Photoionisation Scheme
-	// SkipWinds, SkipRadiation and SkipPhotoionisation turn channels off.
-	SkipWinds, SkipRadiation, SkipPhotoionisation bool
+	// Photoionization heats ionized gas; nil means Photoionization{}.
+	Photoionization Scheme
+	// SkipWinds, SkipRadiation and SkipPhotoionization turn channels off.
+	SkipWinds, SkipRadiation, SkipPhotoionization bool
 	// DelayedCooling flags the gas touched by supernovae to have its
-	// cooling switched off for the blast-wave time of CoolingOffTime.
+	// cooling switched off for the blast-wave time of CoolingHoldTime.
 	DelayedCooling bool
 	// MaxSupernovaePerStep: a step in which some star expects more
 	// supernovae than this suggests a smaller step; 0 means 10.
 	MaxSupernovaePerStep float64
-	// PhotoheatingPerPhoton is the heat one ionising photon can deposit,
+	// PhotoheatingPerPhoton is the heat one ionizing photon can deposit,
 	// in erg; 0 means 3 eV (from memory: the mean photoelectron energy of
 	// a young cluster's spectrum, Osterbrock & Ferland 2006 order of
 	// magnitude).
@@ -144,14 +144,14 @@ func NewStepper(cfg StepConfig) (*Stepper, error) {
 	if cfg.Radiation == nil {
 		cfg.Radiation = RadiationPressure{}
 	}
-	if cfg.Photoionisation == nil {
-		cfg.Photoionisation = Photoionisation{}
+	if cfg.Photoionization == nil {
+		cfg.Photoionization = Photoionization{}
 	}
 	s := &Stepper{cfg: cfg}
 	schemes := [NumStepChannels]Scheme{
 		yields.CoreCollapse: cfg.Coupling.Scheme, yields.TypeIa: cfg.Coupling.Scheme,
 		yields.MassiveWinds: cfg.Winds, yields.AGBWinds: cfg.Winds,
-		RadiationChannel: cfg.Radiation, PhotoionisationChannel: cfg.Photoionisation,
+		RadiationChannel: cfg.Radiation, PhotoionizationChannel: cfg.Photoionization,
 	}
 	for c, sch := range schemes {
 		cc := cfg.Coupling
@@ -251,19 +251,19 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 		}
 		s.sources[RadiationChannel] = append(s.sources[RadiationChannel], rad)
 		ion := base
-		ion.Channel = PhotoionisationChannel
-		if !s.cfg.SkipPhotoionisation {
+		ion.Channel = PhotoionizationChannel
+		if !s.cfg.SkipPhotoionization {
 			ion.Photons = rel.IonizingPhotons * formed
 			ion.Energy = ion.Photons * s.cfg.PhotoheatingPerPhoton * erg
 		}
-		s.sources[PhotoionisationChannel] = append(s.sources[PhotoionisationChannel], ion)
+		s.sources[PhotoionizationChannel] = append(s.sources[PhotoionizationChannel], ion)
 	}
 	if maxExpected > s.cfg.MaxSupernovaePerStep {
 		out.SuggestedStep = dt * s.cfg.MaxSupernovaePerStep / maxExpected
 	}
-	// One neighbour search per star serves every channel.
+	// One neighbor search per star serves every channel.
 	if finder == nil {
-		return errors.New("step: nil neighbour finder")
+		return errors.New("step: nil neighbor finder")
 	}
 	s.search.fill(finder, stars, s.couplers[0].Config())
 	for c := range s.couplers {
@@ -297,7 +297,7 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 	return nil
 }
 
-// delayCooling flags supernova records with the blast-wave cooling-off
+// delayCooling flags supernova records with the blast-wave cooling-hold
 // time of each element.
 func (s *Stepper) delayCooling(gas *Gas, c int, recs []Record) {
 	u := s.cfg.Coupling.Units
@@ -316,8 +316,8 @@ func (s *Stepper) delayCooling(gas *Gas, c int, recs []Record) {
 		rho := gas.Density.At(r.GasIndex)
 		n := hydrogenDensity(rho, u)
 		pk := 2.0 / 3 * rho * u.DensityGCm3() * gas.InternalEnergy.At(r.GasIndex) * u.SpecificEnergy() / units.Boltzmann
-		r.Flags |= FlagCoolingOff
-		r.CoolingOffUntil = CoolingOffTime(e*u.EnergyErg(), n, pk) / u.TimeS()
+		r.Flags |= FlagHoldCooling
+		r.HoldCoolingUntil = CoolingHoldTime(e*u.EnergyErg(), n, pk) / u.TimeS()
 	}
 }
 

@@ -2,18 +2,18 @@ package feedback
 
 import "math"
 
-// Weighting chooses how a release is shared among a star's neighbours
+// Weighting chooses how a release is shared among a star's neighbors
 // before the isotropy correction.
 type Weighting uint8
 
 const (
-	// KernelVolume weighs neighbour j by W(r_j, H) V_j: the star's cubic
-	// spline kernel (Monaghan & Lattanzio 1985) at the neighbour's distance,
-	// with support H = 1.1 times the distance of the farthest neighbour so
-	// that every neighbour gets a positive weight, times the neighbour's
+	// KernelVolume weighs neighbor j by W(r_j, H) V_j: the star's cubic
+	// spline kernel (Monaghan & Lattanzio 1985) at the neighbor's distance,
+	// with support H = 1.1 times the distance of the farthest neighbor so
+	// that every neighbor gets a positive weight, times the neighbor's
 	// volume V_j = m_j / rho_j.
 	KernelVolume Weighting = iota
-	// SolidAngle weighs neighbour j by the fraction of the sky it covers as
+	// SolidAngle weighs neighbor j by the fraction of the sky it covers as
 	// seen from the star, taking the element as a disc of its
 	// volume-equivalent radius R_j = (3 V_j / 4 pi)^(1/3) facing the star:
 	// dOmega_j / 4 pi = (1 - 1/sqrt(1 + R_j^2 / r_j^2)) / 2, the solid angle
@@ -33,11 +33,11 @@ func (w Weighting) String() string {
 }
 
 // kernelSupportFactor sets the kernel support H relative to the farthest
-// neighbour's distance.
+// neighbor's distance.
 const kernelSupportFactor = 1.1
 
-// cubicSpline is the unnormalised M4 cubic spline with compact support at
-// q = 1 (the normalisation cancels in shares).
+// cubicSpline is the unnormalized M4 cubic spline with compact support at
+// q = 1 (the normalization cancels in shares).
 func cubicSpline(q float64) float64 {
 	switch {
 	case q < 0.5:
@@ -49,7 +49,7 @@ func cubicSpline(q float64) float64 {
 	return 0
 }
 
-// baseWeights fills w with the chosen weighting, normalised to sum to one.
+// baseWeights fills w with the chosen weighting, normalized to sum to one.
 func baseWeights(kind Weighting, dist, mass, density, w []float64) {
 	switch kind {
 	case SolidAngle:
@@ -79,11 +79,11 @@ func baseWeights(kind Weighting, dist, mass, density, w []float64) {
 			w[j] = cubicSpline(q) * mass[j] / density[j]
 		}
 	}
-	normalise(w)
+	normalize(w)
 }
 
-// normalise scales a to sum to one; an all-zero a becomes uniform.
-func normalise(a []float64) {
+// normalize scales a to sum to one; an all-zero a becomes uniform.
+func normalize(a []float64) {
 	s := 0.0
 	for _, v := range a {
 		s += v
@@ -124,14 +124,14 @@ func netVector(a []float64, n [][3]float64) float64 {
 // The minimiser is an exponential tilt, a'_j = a_j exp(lambda . n_j) / Z,
 // where the 3-vector lambda minimises the convex function
 // F(lambda) = log sum_j a_j exp(lambda . n_j); the gradient of F is the
-// normalised net vector and its Hessian is the covariance of the n_j under
+// normalized net vector and its Hessian is the covariance of the n_j under
 // a'. Newton's method with a backtracking line search converges in a handful
 // of iterations. A positive solution exists exactly when the origin lies
 // strictly inside the convex hull of the directions; when all gas lies in a
 // closed half-space, F has no minimum, lambda runs off, and the iteration
 // stops at |lambda| = maxTilt with the residual it reached, which the
 // caller reports. Elements at the star's position (n_j = 0) keep their share
-// of the tilt normalisation but carry no direction.
+// of the tilt normalization but carry no direction.
 
 const (
 	maxTilt       = 40.0
@@ -222,7 +222,7 @@ func tilt(a []float64, n [][3]float64, scratch []float64) float64 {
 }
 
 // tiltState evaluates F, its gradient and Hessian (packed xx, xy, xz, yy,
-// yz, zz) at lambda, leaving the unnormalised tilted amounts in t.
+// yz, zz) at lambda, leaving the unnormalized tilted amounts in t.
 func tiltState(a []float64, n [][3]float64, lam [3]float64, t []float64) (float64, [3]float64, [6]float64) {
 	zero := lam == [3]float64{}
 	// Shift the exponent by its maximum for stability.

@@ -84,7 +84,7 @@ func TestBaseWeights(t *testing.T) {
 	// Omega/4pi = (1 - r/sqrt(r^2+R^2))/2 (elementary geometry).
 	w := make([]float64, 1)
 	baseWeights(SolidAngle, []float64{2}, []float64{4 * math.Pi / 3}, []float64{1}, w)
-	assert.InDelta(t, 1, w[0], 0) // a single neighbour takes everything
+	assert.InDelta(t, 1, w[0], 0) // a single neighbor takes everything
 }
 
 func TestExpNonPositive(t *testing.T) {

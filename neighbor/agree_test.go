@@ -9,14 +9,14 @@ import (
 	"github.com/stretchr/testify/require"
 )
 
-// requireSame fails unless got holds exactly the neighbours of want, in the
+// requireSame fails unless got holds exactly the neighbors of want, in the
 // same order, with the same Dist2 bits.
 func requireSame(t *testing.T, want, got []Neighbor, msg string, args ...any) {
 	t.Helper()
 	require.Equal(t, len(want), len(got), "length: "+fmt.Sprintf(msg, args...))
 	for i := range want {
 		if want[i].Index != got[i].Index || math.Float64bits(want[i].Dist2) != math.Float64bits(got[i].Dist2) {
-			require.Failf(t, "neighbour lists differ", "at %d: want %+v, got %+v; %s", i, want[i], got[i], fmt.Sprintf(msg, args...))
+			require.Failf(t, "neighbor lists differ", "at %d: want %+v, got %+v; %s", i, want[i], got[i], fmt.Sprintf(msg, args...))
 		}
 	}
 }

@@ -5,7 +5,7 @@
 //
 // # Finders
 //
-// Every finder implements Finder and reports the same neighbours with the
+// Every finder implements Finder and reports the same neighbors with the
 // same Dist2 bits: distances are always Box.Dist2 (both points wrapped into
 // the box, separation through Box.MinImage, squares summed x, y, z).
 //
@@ -14,7 +14,7 @@
 //   - KyroyFinder (NewKyroyFinder) runs on github.com/kyroy/kdtree, for
 //     callers who use that library; periodic boxes by searching the shifted
 //     images of the search box, exact tie order applied afterwards.
-//   - HostLists (NewHostLists) serves neighbour lists a hydro code already
+//   - HostLists (NewHostLists) serves neighbor lists a hydro code already
 //     has, as compressed rows (offsets, indices), one row per star.
 //
 // Gas is given as flat interleaved positions (x0, y0, z0, x1, ...) and one
@@ -29,7 +29,7 @@
 // safe for concurrent queries once built.
 //
 // KernelRadius and MassRadius find the smallest radius around a point that
-// encloses a target cubic-spline neighbour number N_eff = (4π/3) h³ Σ W(r_i,
+// encloses a target cubic-spline neighbor number N_eff = (4π/3) h³ Σ W(r_i,
 // h), or a target gas mass, on top of any Finder.
 //
 // # Why a k-d tree

@@ -4,7 +4,7 @@ import (
 	"fmt"
 )
 
-// HostLists is a Finder on neighbour lists the host code already has, in
+// HostLists is a Finder on neighbor lists the host code already has, in
 // compressed rows: the candidates of star s are indices[offsets[s]:offsets[s+1]]
 // into the gas arrays. The row is chosen by Query.Star; distances are
 // computed from the gas positions with Box.Dist2 around Query.Pos, so results

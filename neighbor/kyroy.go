@@ -18,7 +18,7 @@ import (
 // are therefore exactly those of Tree.
 //
 // kyroy allocates on every query (its results are fresh slices); the
-// neighbours are still written into the caller's buf. Safe for concurrent
+// neighbors are still written into the caller's buf. Safe for concurrent
 // queries once built: kyroy's searches only read the tree.
 type KyroyFinder struct {
 	box  Box

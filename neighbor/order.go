@@ -1,6 +1,6 @@
 package neighbor
 
-// The helpers below keep neighbour lists in (Dist2, ID) order. Index in the
+// The helpers below keep neighbor lists in (Dist2, ID) order. Index in the
 // Neighbor values they see is an index into ids (a finder may use its own
 // internal order and map to gas indices afterwards).
 

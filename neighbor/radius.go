@@ -13,12 +13,12 @@ import (
 //	                     { 2(1 - q)³        for 1/2 < q <= 1
 //	                     { 0                for q > 1,        q = r/h,
 //
-// normalised so that its integral over space is 1.
+// normalized so that its integral over space is 1.
 func CubicSplineW(r, h float64) float64 {
 	return 8 / (math.Pi * h * h * h) * cubicSplineShape(r/h)
 }
 
-// cubicSplineShape is W without its normalisation, as a function of q.
+// cubicSplineShape is W without its normalization, as a function of q.
 func cubicSplineShape(q float64) float64 {
 	switch {
 	case q <= 0.5:
@@ -30,11 +30,11 @@ func cubicSplineShape(q float64) float64 {
 	return 0
 }
 
-// EffectiveNeighbours returns the kernel-weighted neighbour number
-// N_eff = (4π/3) h³ Σ W(r_i, h) of the neighbours nb (sorted by distance,
+// EffectiveNeighbors returns the kernel-weighted neighbor number
+// N_eff = (4π/3) h³ Σ W(r_i, h) of the neighbors nb (sorted by distance,
 // as every Finder returns them) for the cubic spline with support radius h.
 // In gas of uniform density it approaches the number of elements inside h.
-func EffectiveNeighbours(nb []Neighbor, h float64) float64 {
+func EffectiveNeighbors(nb []Neighbor, h float64) float64 {
 	s := 0.0
 	for _, x := range nb {
 		q := math.Sqrt(x.Dist2) / h
@@ -87,9 +87,9 @@ func nearestOrCount(f Finder, q Query, k, lastOK int, buf []Neighbor) (nb []Neig
 }
 
 // KernelRadius returns the smallest radius h around q.Pos at which the
-// cubic-spline neighbour number EffectiveNeighbours reaches target, found by
+// cubic-spline neighbor number EffectiveNeighbors reaches target, found by
 // bisection to float64 resolution over the Nearest results of f, together
-// with the neighbours that carry kernel weight (those EffectiveNeighbours
+// with the neighbors that carry kernel weight (those EffectiveNeighbors
 // counts: r_i/h < 1), sorted. The returned slice
 // reuses buf; pass it back on the next call and the helper allocates
 // nothing once it has grown.
@@ -129,14 +129,14 @@ func KernelRadius(f Finder, q Query, target float64, buf []Neighbor) (float64, [
 		// nb, it decides N_eff everywhere.
 		lo, hi := 0.0, hk
 		switch {
-		case hk > 0 && EffectiveNeighbours(nb, hk) >= target:
+		case hk > 0 && EffectiveNeighbors(nb, hk) >= target:
 		case k == avail:
 			if target >= 32.0/3.0*float64(k) {
 				return 0, nb, fmt.Errorf("neighbor: kernel radius: target %v not below the limit %v that all %d reachable elements approach: %w",
 					target, 32.0/3.0*float64(k), k, ErrUnreachable)
 			}
 			lo, hi = hk, max(2*hk, math.SmallestNonzeroFloat64)
-			for EffectiveNeighbours(nb, hi) < target && !math.IsInf(hi, 0) {
+			for EffectiveNeighbors(nb, hi) < target && !math.IsInf(hi, 0) {
 				lo, hi = hi, 2*hi
 			}
 		default:
@@ -155,7 +155,7 @@ func KernelRadius(f Finder, q Query, target float64, buf []Neighbor) (float64, [
 			if mid <= lo || mid >= hi {
 				break
 			}
-			if EffectiveNeighbours(nb, mid) >= target {
+			if EffectiveNeighbors(nb, mid) >= target {
 				hi = mid
 			} else {
 				lo = mid
@@ -172,12 +172,12 @@ func KernelRadius(f Finder, q Query, target float64, buf []Neighbor) (float64, [
 // MassRadius returns the smallest float64 radius r around q.Pos such that
 // the gas within r (Dist2 <= r*r, as Within counts it) holds at least target
 // mass, by ordered accumulation over the Nearest results of f, together with
-// exactly those neighbours (all elements tied at the last distance
+// exactly those neighbors (all elements tied at the last distance
 // included), sorted. masses[i] is
 // the mass of gas element i. The returned slice reuses buf; once it has grown
 // the helper allocates nothing.
 //
-// Errors: a target that is not finite and positive, a neighbour whose index
+// Errors: a target that is not finite and positive, a neighbor whose index
 // has no mass or whose mass is negative or not finite (ErrInvalid), and a
 // target above the mass of all reachable gas (ErrUnreachable).
 func MassRadius(f Finder, q Query, masses []float64, target float64, buf []Neighbor) (float64, []Neighbor, error) {

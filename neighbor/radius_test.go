@@ -11,11 +11,11 @@ import (
 )
 
 // The cubic spline integrates to one over space: ∫ W(r, h) 4π r² dr = 1
-// (normalisation of the M4 kernel, Monaghan & Lattanzio 1985, A&A 149, 135;
+// (normalization of the M4 kernel, Monaghan & Lattanzio 1985, A&A 149, 135;
 // from memory, support-radius form common practice). Checked with gonum's
 // Gauss–Legendre quadrature on each polynomial piece, which is exact for
 // these degrees.
-func TestCubicSplineNormalised(t *testing.T) {
+func TestCubicSplineNormalized(t *testing.T) {
 	for _, h := range []float64{0.1, 1, 3.7} {
 		f := func(r float64) float64 { return 4 * math.Pi * r * r * CubicSplineW(r, h) }
 		got := quad.Fixed(f, 0, h/2, 8, nil, 0) + quad.Fixed(f, h/2, h, 8, nil, 0)
@@ -23,7 +23,7 @@ func TestCubicSplineNormalised(t *testing.T) {
 		assert.Zero(t, CubicSplineW(h, h))
 		assert.Zero(t, CubicSplineW(1.5*h, h))
 	}
-	// EffectiveNeighbours is (4π/3) h³ Σ W by definition.
+	// EffectiveNeighbors is (4π/3) h³ Σ W by definition.
 	nb := []Neighbor{{0, 0}, {1, 0.04}, {2, 0.2}, {3, 0.7}, {4, 1.2}}
 	h := 0.9
 	want := 0.0
@@ -31,7 +31,7 @@ func TestCubicSplineNormalised(t *testing.T) {
 		want += CubicSplineW(math.Sqrt(x.Dist2), h)
 	}
 	want *= 4 * math.Pi / 3 * h * h * h
-	assert.InEpsilon(t, want, EffectiveNeighbours(nb, h), 1e-14)
+	assert.InEpsilon(t, want, EffectiveNeighbors(nb, h), 1e-14)
 }
 
 // On a periodic cubic lattice of spacing a (density 1/a³), N_eff(h) is a
@@ -52,7 +52,7 @@ func TestKernelRadiusOnLattice(t *testing.T) {
 		require.NoError(t, err)
 		want := math.Cbrt(3*target/(4*math.Pi)) / m
 		assert.InEpsilon(t, want, h, 0.01, "target %v", target)
-		assert.InDelta(t, target, EffectiveNeighbours(nb, h), 1e-9*target)
+		assert.InDelta(t, target, EffectiveNeighbors(nb, h), 1e-9*target)
 	}
 }
 
@@ -76,8 +76,8 @@ func TestKernelRadiusIsSmallest(t *testing.T) {
 			require.NoError(t, err)
 			all, err := brute.Nearest(q, len(ids), nil)
 			require.NoError(t, err)
-			assert.GreaterOrEqual(t, EffectiveNeighbours(all, h), target)
-			assert.Less(t, EffectiveNeighbours(all, math.Nextafter(h, 0)), target)
+			assert.GreaterOrEqual(t, EffectiveNeighbors(all, h), target)
+			assert.Less(t, EffectiveNeighbors(all, math.Nextafter(h, 0)), target)
 			for _, x := range nb {
 				assert.Less(t, math.Sqrt(x.Dist2)/h, 1.0)
 			}
@@ -129,7 +129,7 @@ func TestRadiusHelpersWithoutCounter(t *testing.T) {
 }
 
 // MassRadius: the gas within r holds the target, the gas within the next
-// float below does not; Within(r) returns the same neighbours.
+// float below does not; Within(r) returns the same neighbors.
 func TestMassRadius(t *testing.T) {
 	rng := rand.New(rand.NewPCG(13, 14))
 	box := Box{Size: [3]float64{1, 1, 1}}

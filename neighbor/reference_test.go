@@ -111,7 +111,7 @@ func (g *gonumFinder) shifts(qp [3]float64, d float64) [][3]float64 {
 }
 
 // collect turns the coordinates gonum returned into (Dist2, ID)-sorted
-// neighbours, each gas element once.
+// neighbors, each gas element once.
 func (g *gonumFinder) collect(qp [3]float64, found map[[3]float64]bool, buf []Neighbor) []Neighbor {
 	out := buf[:0]
 	for w := range found {

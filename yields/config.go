@@ -5,7 +5,7 @@ import (
 	"math"
 )
 
-// HubbleTime is the age of the Universe in Myr used to normalise the Type Ia
+// HubbleTime is the age of the Universe in Myr used to normalize the Type Ia
 // delay-time distribution (13.8 Gyr; Planck 2018 gives 13.79 Gyr, from memory).
 const HubbleTime = 13800.0
 
@@ -153,8 +153,8 @@ type AGBConfig struct {
 type Config struct {
 	// IMF is the initial mass function's form. Default Kroupa.
 	IMF IMFForm
-	// IMFMinMass and IMFMaxMass give the IMF's mass range in Msun. Default 0.1–100.
-	IMFMinMass, IMFMaxMass float64
+	// LightestStarMass and HeaviestStarMass give the IMF's mass range in Msun. Default 0.1–100.
+	LightestStarMass, HeaviestStarMass float64
 	// Remnants left by massive stars.
 	Remnants RemnantConfig
 	// CoreCollapse, TypeIa, MassiveWinds and AGB set the channels.
@@ -190,8 +190,8 @@ func DefaultConfig() Config {
 	ia[Neon] = 0.002
 	return Config{
 		IMF:        Kroupa,
-		IMFMinMass: DefaultIMFMinMass,
-		IMFMaxMass: DefaultIMFMaxMass,
+		LightestStarMass: DefaultLightestStarMass,
+		HeaviestStarMass: DefaultHeaviestStarMass,
 		Remnants:   RemnantConfig{NeutronStarMass: 1.4, BlackHoleMinMass: 25, BlackHoleMass: 10},
 		CoreCollapse: CoreCollapseConfig{
 			MinMass: 8, MaxMass: 100, Energy: 1e51,

@@ -1,6 +1,6 @@
 // Package yields says what a stellar population releases as it ages: the
 // number of core-collapse and Type Ia supernovae, the mass, metals and energy
-// they eject, the mass lost in winds, and the light and ionising photons the
+// they eject, the mass lost in winds, and the light and ionizing photons the
 // stars emit, per solar mass of stars formed, as a function of age and
 // metallicity.
 //
@@ -14,7 +14,7 @@
 // between two ages, channel by channel (CoreCollapse, TypeIa, MassiveWinds,
 // AGBWinds), with per-species masses (total metals, H, He, C, N, O, Ne, Mg,
 // Si, S, Ca, Fe; H + He + metals is the ejected mass), plus the radiant
-// energy and ionising photons emitted. Two models are provided:
+// energy and ionizing photons emitted. Two models are provided:
 //
 //   - Population, the built-in simple stellar population, configured by
 //     Config (DefaultConfig documents every default and its source): an IMF
@@ -23,7 +23,7 @@
 //     supernovae in a progenitor window, Type Ia supernovae from a t^-1
 //     delay-time distribution, winds of massive stars spread over their
 //     lives, AGB mass loss from an initial–final mass relation, and the light
-//     and ionising photons of the stars still on the main sequence.
+//     and ionizing photons of the stars still on the main sequence.
 //   - Table, read from a user's CSV file (ReadTable), for the output of any
 //     population-synthesis model; WriteTable writes any Model in the format.
 //
@@ -43,9 +43,9 @@
 //	age[Myr]                       age since formation, > 0
 //	metallicity[mass_fraction]     metal mass fraction, in (0, 1)
 //	luminosity[Lsun/Msun]          bolometric luminosity at that age
-//	ionizing_rate[photons/s/Msun]  hydrogen-ionising photon rate at that age
+//	ionizing_rate[photons/s/Msun]  hydrogen-ionizing photon rate at that age
 //	radiant_energy[erg/Msun]       cumulative: light emitted since formation
-//	ionizing_photons[photons/Msun] cumulative: ionising photons since formation
+//	ionizing_photons[photons/Msun] cumulative: ionizing photons since formation
 //
 // and, for each channel prefix ccsn, snia, massive_wind and agb_wind, all
 // cumulative since formation:

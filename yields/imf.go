@@ -51,8 +51,8 @@ func ParseIMFForm(name string) (IMFForm, error) {
 
 // Default IMF mass range in Msun (common practice in the trade).
 const (
-	DefaultIMFMinMass = 0.1
-	DefaultIMFMaxMass = 100
+	DefaultLightestStarMass = 0.1
+	DefaultHeaviestStarMass = 100
 )
 
 // maxIMFPieces bounds the number of analytic pieces of any supported IMF.
@@ -108,7 +108,7 @@ func erfDiff(a, b float64) float64 {
 	}
 }
 
-// IMF is an initial mass function normalised to one solar mass formed over
+// IMF is an initial mass function normalized to one solar mass formed over
 // its mass range: Mass(MinMass(), MaxMass()) == 1 (to round-off). Density is
 // dN/dm in stars per Msun per Msun formed. An IMF is a small value: copy it
 // freely; it holds no slices.
@@ -120,7 +120,7 @@ type IMF struct {
 	offsets [maxIMFPieces][3]float64 // Primitives at each piece's lower end
 }
 
-// NewIMF builds the given form over [minMass, maxMass] in Msun, normalised to
+// NewIMF builds the given form over [minMass, maxMass] in Msun, normalized to
 // one Msun formed over that range.
 func NewIMF(form IMFForm, minMass, maxMass float64) (IMF, error) {
 	if form < 0 || form >= numIMFForms {
@@ -129,7 +129,7 @@ func NewIMF(form IMFForm, minMass, maxMass float64) (IMF, error) {
 	if !(minMass > 0) || !(maxMass > minMass) || math.IsInf(maxMass, 0) {
 		return IMF{}, fmt.Errorf("yields: %v IMF range [%g, %g] Msun: want 0 < min < max < Inf", form, minMass, maxMass)
 	}
-	// Full-range pieces with unnormalised, continuous coefficients.
+	// Full-range pieces with unnormalized, continuous coefficients.
 	var full []imfPiece
 	switch form {
 	case Salpeter:
@@ -167,7 +167,7 @@ func NewIMF(form IMFForm, minMass, maxMass float64) (IMF, error) {
 		mass += p.moment(1, p.lo, p.hi)
 	}
 	if !(mass > 0) || math.IsInf(mass, 0) {
-		return IMF{}, fmt.Errorf("yields: %v IMF over [%g, %g] Msun cannot be normalised (mass integral %g)", form, minMass, maxMass, mass)
+		return IMF{}, fmt.Errorf("yields: %v IMF over [%g, %g] Msun cannot be normalized (mass integral %g)", form, minMass, maxMass, mass)
 	}
 	for i := range f.pieces[:f.n] {
 		f.pieces[i].coef /= mass

@@ -8,7 +8,7 @@ import (
 	"github.com/stretchr/testify/require"
 )
 
-func TestIMFNormalisedToOneMsun(t *testing.T) {
+func TestIMFNormalizedToOneMsun(t *testing.T) {
 	for _, form := range []IMFForm{Salpeter, Kroupa, Chabrier} {
 		for _, rng := range [][2]float64{{0.1, 100}, {0.01, 120}, {0.5, 50}, {2, 8}} {
 			f, err := NewIMF(form, rng[0], rng[1])

@@ -43,7 +43,7 @@ func massLuminosity() piecewisePower {
 	}
 }
 
-// ionizingRatePerStar is the hydrogen-ionising photon rate of a
+// ionizingRatePerStar is the hydrogen-ionizing photon rate of a
 // main-sequence star in photons/s: a simple power-law fit through
 // log10 Q = 47.6 at 16 Msun, 48.6 at 26 Msun and 49.65 at 58 Msun (from
 // memory, the dwarf O-star scale of Martins, Schaerer & Hillier 2005, A&A

@@ -32,7 +32,7 @@ const (
 // C(age1) − C(age0), so the releases of consecutive intervals add up to the
 // release of their union to round-off. Supernova counts and ejecta (and AGB
 // ejecta) are closed-form IMF integrals above the turn-off mass. Radiant
-// energy, ionising photons and massive-star winds, which a star emits all
+// energy, ionizing photons and massive-star winds, which a star emits all
 // through its life, are tabulated at construction: cumulative values on a
 // grid of 32 nodes per decade of age from 0.01 Myr to 1e6 Myr (and age 0)
 // and 25 nodes in log Z, computed by Gauss–Legendre quadrature over mass
@@ -57,7 +57,7 @@ type Population struct {
 	tabT                   []float64 // node ages, Myr; tabT[0] = 0
 	tabLZ                  []float64 // node log10 Z
 	rad                    []float64 // cumulative radiant energy, Lsun Myr, [iz*nt+it]
-	phot                   []float64 // cumulative ionising photons, photons/s Myr
+	phot                   []float64 // cumulative ionizing photons, photons/s Myr
 	wind                   []float64 // cumulative massive-wind mass per unit metallicity factor, Msun
 	// Rates at the nodes (the cumulative values' time derivatives), limited
 	// so that the cubic Hermite interpolant is monotone.
@@ -69,7 +69,7 @@ func NewPopulation(cfg Config) (*Population, error) {
 	if err := cfg.validate(); err != nil {
 		return nil, fmt.Errorf("yields: population config: %w", err)
 	}
-	imf, err := NewIMF(cfg.IMF, cfg.IMFMinMass, cfg.IMFMaxMass)
+	imf, err := NewIMF(cfg.IMF, cfg.LightestStarMass, cfg.HeaviestStarMass)
 	if err != nil {
 		return nil, fmt.Errorf("yields: population config: %w", err)
 	}
@@ -158,7 +158,7 @@ func (p *Population) checkMassBudget() error {
 	return nil
 }
 
-// buildTables tabulates the cumulative radiant energy, ionising photons and
+// buildTables tabulates the cumulative radiant energy, ionizing photons and
 // massive-wind mass.
 func (p *Population) buildTables() error {
 	nt := 1 + tablePerDecade*int(math.Round(math.Log10(tableMaxAge/tableMinAge))) + 1
@@ -275,7 +275,7 @@ func (p *Population) buildTables() error {
 // Numer. Anal. 17, 238) condition: in each cell, with Δ the secant slope,
 // the slopes are zero if Δ = 0 and otherwise scaled down so that
 // (d_i/Δ)² + (d_{i+1}/Δ)² <= 9. Scaling a slope down never breaks the
-// condition in the neighbouring cell.
+// condition in the neighboring cell.
 func limitSlopes(t, y, d []float64) {
 	for i := range d {
 		d[i] = math.Max(d[i], 0)
@@ -595,7 +595,7 @@ func (p *Population) Luminosity(age, z float64) (float64, error) {
 	return p.lum.integrate(&p.imf, p.imf.MinMass(), x), nil
 }
 
-// IonizingRate is the hydrogen-ionising photon rate at an age in photons/s
+// IonizingRate is the hydrogen-ionizing photon rate at an age in photons/s
 // per Msun formed (closed form, as Luminosity).
 func (p *Population) IonizingRate(age, z float64) (float64, error) {
 	if err := checkAge(age, z); err != nil {

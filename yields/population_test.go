@@ -163,7 +163,7 @@ func TestTypeIa(t *testing.T) {
 }
 
 // A young (< 3 Myr) population emits about 1e3 Lsun per Msun and a few
-// times 1e46 ionising photons per second per Msun (REFERENCES.md; common
+// times 1e46 ionizing photons per second per Msun (REFERENCES.md; common
 // practice, from memory, order of magnitude: checked within a factor of 3
 // for the luminosity and in [1e46, 1e47] for the photon rate).
 func TestYoungPopulationLight(t *testing.T) {
@@ -276,7 +276,7 @@ func TestPopulationConfigRejected(t *testing.T) {
 		"Ia elements over":     func(c *Config) { c.TypeIa.ElementMass[Iron] = 2 },
 		"winds eat the star":   func(c *Config) { c.MassiveWinds.LostFractionAt100 = 0.9 },
 		"too many new metals":  func(c *Config) { c.CoreCollapse.NewMetalsPerMsun = 0.9 },
-		"IMF range":            func(c *Config) { c.IMFMinMass = 0 },
+		"IMF range":            func(c *Config) { c.LightestStarMass = 0 },
 		"AGB overlaps":         func(c *Config) { c.AGB.MaxMass = 9 },
 		"final mass slope":     func(c *Config) { c.AGB.FinalMassSlope = 1 },
 		"heavy black hole":     func(c *Config) { c.Remnants.BlackHoleMass = 30 },

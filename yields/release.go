@@ -115,7 +115,7 @@ type Release struct {
 	// RadiantEnergy is the bolometric energy emitted over the interval, in
 	// erg per Msun formed (the time integral of the luminosity).
 	RadiantEnergy float64
-	// IonizingPhotons is the number of hydrogen-ionising photons emitted over
+	// IonizingPhotons is the number of hydrogen-ionizing photons emitted over
 	// the interval per Msun formed.
 	IonizingPhotons float64
 }
@@ -136,7 +136,7 @@ type Model interface {
 	Release(age0, age1, z float64) (Release, error)
 	// Luminosity is the bolometric luminosity at an age, in Lsun per Msun formed.
 	Luminosity(age, z float64) (float64, error)
-	// IonizingRate is the hydrogen-ionising photon rate at an age, in photons
+	// IonizingRate is the hydrogen-ionizing photon rate at an age, in photons
 	// per second per Msun formed.
 	IonizingRate(age, z float64) (float64, error)
 }

@@ -385,7 +385,7 @@ func (t *Table) Luminosity(age, z float64) (float64, error) {
 	return t.rate(colLuminosity, age, z)
 }
 
-// IonizingRate is the tabulated ionising photon rate per Msun formed,
+// IonizingRate is the tabulated ionizing photon rate per Msun formed,
 // interpolated as Luminosity.
 func (t *Table) IonizingRate(age, z float64) (float64, error) {
 	return t.rate(colIonizingRate, age, z)

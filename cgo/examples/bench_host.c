@@ -1,13 +1,13 @@
 /*
  * bench_host.c — times ejecta steps through the C ABI. Gas: N_GAS elements
  * uniformly random in a periodic box (array of structs, float64), stars at
- * random positions, each coupled to its K nearest neighbours. One step is
+ * random positions, each coupled to its K nearest neighbors. One step is
  * ejecta_step + ejecta_apply_step_records. The set-up matches
  * BenchmarkStepFromGo in cgo/bench_test.go (same hash, same layout).
  *
  * usage: bench_host N_GAS N_STARS K STEPS
  * prints: ns_per_step=... (mean over STEPS steps after one untimed step
- * that builds the neighbour tree)
+ * that builds the neighbor tree)
  */
 #define _POSIX_C_SOURCE 199309L
 #include <stdint.h>
@@ -90,7 +90,7 @@ int main(int argc, char **argv) {
   cfg.length_cm = 3.0856775814913673e18;
   cfg.mass_g = 1.98841e33;
   cfg.velocity_cm_per_s = 1e5;
-  cfg.neighbour_count = k;
+  cfg.neighbor_count = k;
   cfg.worker_threads = 1;
   for (int a = 0; a < 3; a++) cfg.box_size[a] = box;
   ejecta_context ctx = 0;
@@ -117,12 +117,12 @@ int main(int argc, char **argv) {
   g.species_fraction = fractions;
   must(ctx, ejecta_bind_gas(ctx, &g), "bind");
   /* Untimed first step: builds the tree. */
-  must(ctx, ejecta_step(ctx, stars, n_stars, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL), "step");
+  must(ctx, ejecta_step(ctx, stars, n_stars, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL), "step");
   must(ctx, ejecta_apply_step_records(ctx, NULL), "apply");
   struct timespec t0, t1;
   clock_gettime(CLOCK_MONOTONIC, &t0);
   for (int i = 0; i < steps; i++) {
-    must(ctx, ejecta_step(ctx, stars, n_stars, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL), "step");
+    must(ctx, ejecta_step(ctx, stars, n_stars, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL), "step");
     must(ctx, ejecta_apply_step_records(ctx, NULL), "apply");
   }
   clock_gettime(CLOCK_MONOTONIC, &t1);

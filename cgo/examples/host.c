@@ -99,7 +99,7 @@ static void bad_input(ejecta_context ctx, gas_element *gas) {
   cfg.mass_g = NAN;
   CHECK(ejecta_create(&cfg, &other, msg, sizeof msg) == EJECTA_ERR_INVALID_ARGUMENT, "NaN units");
   ejecta_config_defaults(&cfg);
-  cfg.neighbour_count = -3;
+  cfg.neighbor_count = -3;
   CHECK(ejecta_create(&cfg, &other, msg, sizeof msg) == EJECTA_ERR_INVALID_ARGUMENT, "negative count");
 
   /* Bad gas descriptors on a scratch context. */
@@ -131,22 +131,22 @@ static void bad_input(ejecta_context ctx, gas_element *gas) {
 
   ejecta_star s;
   memset(&s, 0, sizeof s);
-  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_NO_GAS, "step before bind");
+  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_NO_GAS, "step before bind");
   describe(gas, &d, species, fractions, N_GAS);
   must(other, ejecta_bind_gas(other, &d), "bind scratch");
-  CHECK(ejecta_step(other, NULL, 1, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_NULL_POINTER, "NULL stars");
-  CHECK(ejecta_step(other, &s, 0, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "zero stars");
-  CHECK(ejecta_step(other, &s, -1, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "negative stars");
+  CHECK(ejecta_step(other, NULL, 1, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_NULL_POINTER, "NULL stars");
+  CHECK(ejecta_step(other, &s, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "zero stars");
+  CHECK(ejecta_step(other, &s, -1, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "negative stars");
   CHECK(ejecta_step(other, &s, 1, 9, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "unknown mode");
-  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBOURS_HOST_ROWS, NULL, NULL) == EJECTA_ERR_NULL_POINTER, "rows NULL");
+  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBORS_HOST_ROWS, NULL, NULL) == EJECTA_ERR_NULL_POINTER, "rows NULL");
   s.energy = NAN;
-  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "NaN energy");
+  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "NaN energy");
   int64_t len = 0;
   CHECK(ejecta_last_error(other, msg, sizeof msg, &len) == EJECTA_OK && len > 0, "last error after NaN");
   printf("nan_error=%s\n", msg);
   s.energy = 1;
   s.ejected_mass = -1;
-  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "negative mass");
+  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "negative mass");
   CHECK(ejecta_apply_step_records(other, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "apply without step");
   ejecta_record r;
   memset(&r, 0, sizeof r);
@@ -207,7 +207,7 @@ int main(void) {
   cfg.length_cm = 3.0856775814913673e18;
   cfg.mass_g = 1.98841e33;
   cfg.velocity_cm_per_s = 1e5;
-  cfg.neighbour_count = 48;
+  cfg.neighbor_count = 48;
   cfg.worker_threads = 2;
   for (int a = 0; a < 3; a++) cfg.box_size[a] = BOX;
   char err[256];
@@ -243,7 +243,7 @@ int main(void) {
     stars[s].energy = foe;
     stars[s].events = 1;
   }
-  must(ctx, ejecta_step(ctx, stars, N_STARS, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL), "step");
+  must(ctx, ejecta_step(ctx, stars, N_STARS, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL), "step");
 
   int64_t n_rec = 0, written = 0;
   must(ctx, ejecta_record_count(ctx, &n_rec), "record count");

@@ -60,7 +60,7 @@ program ejecta_fortran_host
   cfg%length_cm = 3.0856775814913673d18
   cfg%mass_g = 1.98841d33
   cfg%velocity_cm_per_s = 1.0d5
-  cfg%neighbour_count = k
+  cfg%neighbor_count = k
   cfg%box_size = box
   call ejecta_set_name(cfg%scheme, 'kinetic')
   cfg%kinetic_fraction = 0.5d0
@@ -108,7 +108,7 @@ program ejecta_fortran_host
      stars(s)%energy = foe
      stars(s)%events = 1.0d0
   end do
-  call must(ctx, ejecta_step(ctx, stars, int(n_stars, c_int64_t), EJECTA_NEIGHBOURS_OWN_FINDER, &
+  call must(ctx, ejecta_step(ctx, stars, int(n_stars, c_int64_t), EJECTA_NEIGHBORS_OWN_FINDER, &
        c_null_ptr, c_null_ptr), 'step')
   call must(ctx, ejecta_record_count(ctx, n_rec), 'record count')
   if (n_rec /= n_stars * k) call fail('record count')

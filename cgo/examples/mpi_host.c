@@ -3,7 +3,7 @@
  * periodic box) is decomposed over the ranks in slabs of x. Each rank
  * imports as ghosts the gas of other ranks within the coupling radius of
  * its slab, runs the step for the stars in its slab (radius mode: every
- * rank sees the same neighbours of a star whatever the decomposition),
+ * rank sees the same neighbors of a star whatever the decomposition),
  * sends the records of ghost elements back to their owners
  * (MPI_Alltoallv), applies its own records together with those it
  * received (located by gas ID), and rank 0 gathers the final gas, sorts it
@@ -184,7 +184,7 @@ int main(int argc, char **argv) {
   int64_t n_rec = 0;
   ejecta_record *recs = NULL;
   if (n_stars > 0) {
-    if ((code = ejecta_step(ctx, stars, n_stars, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL))) die("step", ctx, code);
+    if ((code = ejecta_step(ctx, stars, n_stars, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL))) die("step", ctx, code);
     if ((code = ejecta_record_count(ctx, &n_rec))) die("count", ctx, code);
     recs = malloc((n_rec + 1) * sizeof *recs);
     int64_t written;

@@ -2,7 +2,7 @@
  * mpi_population_host.c — an MPI host of ejecta's population steps. One gas
  * set (a jittered lattice in a periodic box) is decomposed over the ranks in
  * slabs of x; a young cluster of star particles (ages spread over 0-40 Myr,
- * so supernovae, winds, radiation pressure and photoionisation all act) is
+ * so supernovae, winds, radiation pressure and photoionization all act) is
  * spread over the box, each star owned by the rank of its slab. Every step,
  * on every rank:
  *
@@ -305,7 +305,7 @@ int main(int argc, char **argv) {
     int64_t n_rec = 0;
     double suggested = 0;
     if (n_stars > 0) {
-      code = ejecta_step_population(ctx, stars, n_stars, dt, k, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL);
+      code = ejecta_step_population(ctx, stars, n_stars, dt, k, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL);
       if (code) die("population step", ctx, code);
       if ((code = ejecta_record_count(ctx, &n_rec))) die("count", ctx, code);
       free(recs);
@@ -455,7 +455,7 @@ int main(int argc, char **argv) {
     printf("supernovae_cc=%lld supernovae_ia=%lld min_suggested=%.17g\n", (long long)total_sn_cc,
            (long long)total_sn_ia, min_suggested);
     static const char *names[EJECTA_NUM_STEP_CHANNELS] = {"core_collapse", "type_ia", "massive_winds",
-                                                          "agb_winds", "radiation_pressure", "photoionisation"};
+                                                          "agb_winds", "radiation_pressure", "photoionization"};
     for (int c = 0; c < EJECTA_NUM_STEP_CHANNELS; c++)
       printf("%s_mass=%.17g %s_energy=%.17g\n", names[c], channel_mass[c], names[c], channel_energy[c]);
     printf("star_mass_loss=%.17g gas_mass_gain=%.17g deposited_energy=%.17g gas_energy_gain=%.17g\n", lost, dm,

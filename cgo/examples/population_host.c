@@ -80,7 +80,7 @@ static void bad_input(ejecta_context ctx, const ejecta_star_particle *good) {
   ejecta_last_error(ctx, msg, sizeof msg, NULL);
   printf("imf_error=%s\n", msg);
   ejecta_population_defaults(&pc);
-  pc.imf_min_mass = NAN;
+  pc.lightest_star_mass = NAN;
   CHECK(ejecta_enable_population(ctx, &pc) == EJECTA_ERR_INVALID_ARGUMENT, "NaN IMF mass");
   ejecta_population_defaults(&pc);
   pc.winds = 5;
@@ -92,17 +92,17 @@ static void bad_input(ejecta_context ctx, const ejecta_star_particle *good) {
   printf("table_error=%s\n", msg);
 
   ejecta_star_particle s = *good;
-  CHECK(ejecta_step_population(ctx, NULL, 1, 1.0, 0, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_NULL_POINTER, "NULL stars");
-  CHECK(ejecta_step_population(ctx, &s, 0, 1.0, 0, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "zero stars");
-  CHECK(ejecta_step_population(ctx, &s, 1, NAN, 0, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "NaN dt");
-  CHECK(ejecta_step_population(ctx, &s, 1, -1.0, 0, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "negative dt");
-  CHECK(ejecta_step_population(ctx, &s, 1, 1.0, -4, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "negative step index");
+  CHECK(ejecta_step_population(ctx, NULL, 1, 1.0, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_NULL_POINTER, "NULL stars");
+  CHECK(ejecta_step_population(ctx, &s, 0, 1.0, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "zero stars");
+  CHECK(ejecta_step_population(ctx, &s, 1, NAN, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "NaN dt");
+  CHECK(ejecta_step_population(ctx, &s, 1, -1.0, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "negative dt");
+  CHECK(ejecta_step_population(ctx, &s, 1, 1.0, -4, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "negative step index");
   CHECK(ejecta_step_population(ctx, &s, 1, 1.0, 0, 3, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "unknown mode");
   s.formed_mass = -1;
-  CHECK(ejecta_step_population(ctx, &s, 1, 1.0, 0, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "negative formed mass");
+  CHECK(ejecta_step_population(ctx, &s, 1, 1.0, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "negative formed mass");
   s = *good;
   s.age = NAN;
-  CHECK(ejecta_step_population(ctx, &s, 1, 1.0, 0, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "NaN age");
+  CHECK(ejecta_step_population(ctx, &s, 1, 1.0, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "NaN age");
   ejecta_last_error(ctx, msg, sizeof msg, NULL);
   printf("star_error=%s\n", msg);
 
@@ -120,7 +120,7 @@ static void bad_input(ejecta_context ctx, const ejecta_star_particle *good) {
   ejecta_config_defaults(&cfg);
   ejecta_context bare = 0;
   must(0, ejecta_create(&cfg, &bare, msg, sizeof msg), "create bare");
-  CHECK(ejecta_step_population(bare, good, 1, 1.0, 0, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_NO_POPULATION, "no population");
+  CHECK(ejecta_step_population(bare, good, 1, 1.0, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_NO_POPULATION, "no population");
   ejecta_destroy(&bare);
 }
 
@@ -201,7 +201,7 @@ int main(int argc, char **argv) {
   int64_t sn_cc = 0, sn_ia = 0, n_records = 0;
   double max_suggested = 0;
   for (int64_t k = 0; k < N_STEPS; k++) {
-    int code = ejecta_step_population(ctx, stars, N_STARS, dt, k, EJECTA_NEIGHBOURS_OWN_FINDER, NULL, NULL);
+    int code = ejecta_step_population(ctx, stars, N_STARS, dt, k, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL);
     must(ctx, code, "population step");
     ejecta_ledger led;
     must(ctx, ejecta_get_ledger(ctx, &led), "ledger");

@@ -86,7 +86,7 @@ program ejecta_population_host
   star(1)%mass = 5.0d3
   star(1)%metallicity = 0.0134d0
   star(1)%age = 3.0d0 * myr
-  rc = ejecta_step_population(ctx, star, 1_c_int64_t, myr, 0_c_int64_t, EJECTA_NEIGHBOURS_OWN_FINDER, &
+  rc = ejecta_step_population(ctx, star, 1_c_int64_t, myr, 0_c_int64_t, EJECTA_NEIGHBORS_OWN_FINDER, &
        c_null_ptr, c_null_ptr)
   if (rc /= EJECTA_ERR_NO_POPULATION) call fail('step without population accepted')
 
@@ -101,7 +101,7 @@ program ejecta_population_host
   lost = 0
   supernovae = 0
   do k = 0, n_steps - 1
-     call must(ejecta_step_population(ctx, star, 1_c_int64_t, 1.5d0 * myr, k, EJECTA_NEIGHBOURS_OWN_FINDER, &
+     call must(ejecta_step_population(ctx, star, 1_c_int64_t, 1.5d0 * myr, k, EJECTA_NEIGHBORS_OWN_FINDER, &
           c_null_ptr, c_null_ptr), 'population step')
      call must(ejecta_get_ledger(ctx, led), 'ledger')
      cmsg = c_null_char

@@ -2,7 +2,7 @@
 ! interface, ejecta.h. Types mirror the C structs field for field; the
 ! interfaces bind the C functions of the same names, with the same
 ! arguments, return codes, units, ownership and thread-safety rules as
-! documented in ejecta.h. Indices in records and neighbour rows are 0-based
+! documented in ejecta.h. Indices in records and neighbor rows are 0-based
 ! as in C. Helpers at the end fill name fields, describe strided columns
 ! and fetch error text as Fortran strings.
 module ejecta_mod
@@ -14,7 +14,7 @@ module ejecta_mod
   integer(c_int), parameter, public :: EJECTA_OK = 0, EJECTA_ERR_NULL_POINTER = 1, &
        EJECTA_ERR_INVALID_ARGUMENT = 2, EJECTA_ERR_UNKNOWN_NAME = 3, &
        EJECTA_ERR_INVALID_CONTEXT = 4, EJECTA_ERR_NO_GAS = 5, EJECTA_ERR_BAD_VALUE = 6, &
-       EJECTA_ERR_NEIGHBOURS = 7, EJECTA_ERR_BUFFER_TOO_SMALL = 8, EJECTA_ERR_UNKNOWN_GAS = 9, &
+       EJECTA_ERR_NEIGHBORS = 7, EJECTA_ERR_BUFFER_TOO_SMALL = 8, EJECTA_ERR_UNKNOWN_GAS = 9, &
        EJECTA_ERR_BUSY = 10, EJECTA_ERR_UNDEPOSITED = 11, EJECTA_ERR_IMBALANCE = 12, &
        EJECTA_ERR_ALREADY_APPLIED = 13, EJECTA_ERR_NO_POPULATION = 14, EJECTA_ERR_YIELDS_TABLE = 15, &
        EJECTA_ERR_INTERNAL = 99
@@ -29,15 +29,15 @@ module ejecta_mod
        EJECTA_SPECIES_SILICON = 8, EJECTA_SPECIES_SULFUR = 9, EJECTA_SPECIES_CALCIUM = 10, &
        EJECTA_SPECIES_IRON = 11
   integer, parameter, public :: EJECTA_NUM_SPECIES = 12, EJECTA_NAME_CAPACITY = 48
-  ! Channels, neighbour modes, record locating, flags.
+  ! Channels, neighbor modes, record locating, flags.
   integer(c_int32_t), parameter, public :: EJECTA_CHANNEL_CORE_COLLAPSE = 0, EJECTA_CHANNEL_TYPE_IA = 1, &
        EJECTA_CHANNEL_MASSIVE_WINDS = 2, EJECTA_CHANNEL_AGB_WINDS = 3, &
-       EJECTA_CHANNEL_RADIATION_PRESSURE = 4, EJECTA_CHANNEL_PHOTOIONISATION = 5
+       EJECTA_CHANNEL_RADIATION_PRESSURE = 4, EJECTA_CHANNEL_PHOTOIONIZATION = 5
   integer, parameter, public :: EJECTA_NUM_STEP_CHANNELS = 6
-  integer(c_int32_t), parameter, public :: EJECTA_NEIGHBOURS_OWN_FINDER = 0, EJECTA_NEIGHBOURS_HOST_ROWS = 1
+  integer(c_int32_t), parameter, public :: EJECTA_NEIGHBORS_OWN_FINDER = 0, EJECTA_NEIGHBORS_HOST_ROWS = 1
   integer(c_int32_t), parameter, public :: EJECTA_LOCATE_BY_INDEX = 0, EJECTA_LOCATE_BY_ID = 1
   integer(c_int32_t), parameter, public :: EJECTA_FLAG_CAPPED = 1, EJECTA_FLAG_LIMITED = 2, &
-       EJECTA_FLAG_IONISED = 4, EJECTA_FLAG_COOLING_OFF = 8, EJECTA_FLAG_STOCHASTIC = 16
+       EJECTA_FLAG_IONIZED = 4, EJECTA_FLAG_HOLD_COOLING = 8, EJECTA_FLAG_STOCHASTIC = 16
 
   ! ejecta_config (seed is uint64_t in C: use non-negative values).
   type, bind(c), public :: ejecta_config
@@ -45,7 +45,7 @@ module ejecta_mod
      real(c_double) :: kinetic_fraction, coupling_radius
      real(c_double) :: box_size(3)
      integer(c_int64_t) :: seed
-     integer(c_int32_t) :: neighbour_count, worker_threads, isotropy_correction, reserved
+     integer(c_int32_t) :: neighbor_count, worker_threads, isotropy_correction, reserved
      character(kind=c_char) :: scheme(EJECTA_NAME_CAPACITY)
      character(kind=c_char) :: remnant_fit(EJECTA_NAME_CAPACITY)
      character(kind=c_char) :: weighting(EJECTA_NAME_CAPACITY)
@@ -82,7 +82,7 @@ module ejecta_mod
      real(c_double) :: mass
      real(c_double) :: species_mass(EJECTA_NUM_SPECIES)
      real(c_double) :: momentum(3)
-     real(c_double) :: energy, heat, radiated, cooling_off_until, kick, heating
+     real(c_double) :: energy, heat, radiated, hold_cooling_until, kick, heating
   end type ejecta_record
 
   type, bind(c), public :: ejecta_quantities
@@ -109,7 +109,7 @@ module ejecta_mod
 
   type, bind(c), public :: ejecta_touched
      integer(c_int64_t) :: gas_index, gas_id
-     real(c_double) :: max_kick, max_heating, cooling_off_until
+     real(c_double) :: max_kick, max_heating, hold_cooling_until
      integer(c_int32_t) :: flags, reserved
   end type ejecta_touched
 
@@ -118,9 +118,9 @@ module ejecta_mod
   ! with the target attribute (see ejecta_c_string).
   type, bind(c), public :: ejecta_population_config
      character(kind=c_char) :: imf(EJECTA_NAME_CAPACITY)
-     real(c_double) :: imf_min_mass, imf_max_mass, max_supernovae_per_step
+     real(c_double) :: lightest_star_mass, heaviest_star_mass, max_supernovae_per_step
      type(c_ptr) :: yields_table = c_null_ptr
-     integer(c_int32_t) :: winds, radiation_pressure, photoionisation, delayed_cooling
+     integer(c_int32_t) :: winds, radiation_pressure, photoionization, delayed_cooling
   end type ejecta_population_config
 
   type, bind(c), public :: ejecta_star_particle
@@ -184,14 +184,14 @@ module ejecta_mod
      end function ejecta_bind_gas
 
      ! row_offsets and row_indices: c_loc of int64 arrays, or c_null_ptr
-     ! with EJECTA_NEIGHBOURS_OWN_FINDER.
-     integer(c_int) function ejecta_step(context, stars, n_stars, neighbour_mode, row_offsets, row_indices) &
+     ! with EJECTA_NEIGHBORS_OWN_FINDER.
+     integer(c_int) function ejecta_step(context, stars, n_stars, neighbor_mode, row_offsets, row_indices) &
           bind(c, name='ejecta_step')
        import :: c_int, c_int64_t, c_int32_t, c_ptr, ejecta_star
        integer(c_int64_t), value :: context
        type(ejecta_star), intent(in) :: stars(*)
        integer(c_int64_t), value :: n_stars
-       integer(c_int32_t), value :: neighbour_mode
+       integer(c_int32_t), value :: neighbor_mode
        type(c_ptr), value :: row_offsets, row_indices
      end function ejecta_step
 
@@ -270,7 +270,7 @@ module ejecta_mod
      end function ejecta_enable_population
 
      ! row_offsets and row_indices as in ejecta_step.
-     integer(c_int) function ejecta_step_population(context, stars, n_stars, dt, step_index, neighbour_mode, &
+     integer(c_int) function ejecta_step_population(context, stars, n_stars, dt, step_index, neighbor_mode, &
           row_offsets, row_indices) bind(c, name='ejecta_step_population')
        import :: c_int, c_int64_t, c_int32_t, c_double, c_ptr, ejecta_star_particle
        integer(c_int64_t), value :: context
@@ -278,7 +278,7 @@ module ejecta_mod
        integer(c_int64_t), value :: n_stars
        real(c_double), value :: dt
        integer(c_int64_t), value :: step_index
-       integer(c_int32_t), value :: neighbour_mode
+       integer(c_int32_t), value :: neighbor_mode
        type(c_ptr), value :: row_offsets, row_indices
      end function ejecta_step_population
 

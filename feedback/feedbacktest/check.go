@@ -27,7 +27,7 @@ type Options struct {
 	// released; 0 means 0.1. Single stars must have none.
 	ShortfallBound float64
 	// Release, when set, replaces each scenario star's supernova release
-	// (to check schemes for winds, radiation or photoionisation).
+	// (to check schemes for winds, radiation or photoionization).
 	Release func(star feedback.Star) feedback.Source
 	// Weighting and SkipIsotropyCorrection configure the coupler.
 	Weighting              feedback.Weighting
@@ -90,12 +90,12 @@ type result struct {
 
 func couple(scheme feedback.Scheme, sc Scenario, opts Options, workers int, sources []feedback.Source) (*result, error) {
 	g := sc.Gas.Clone()
-	k := sc.Neighbours
+	k := sc.Neighbors
 	if k > g.Len() {
 		k = g.Len()
 	}
 	c, err := feedback.NewCoupler(feedback.Config{Units: Units(), Scheme: scheme, Weighting: opts.Weighting,
-		SkipIsotropyCorrection: opts.SkipIsotropyCorrection, Neighbours: k, Workers: workers, Box: sc.Box})
+		SkipIsotropyCorrection: opts.SkipIsotropyCorrection, Neighbors: k, Workers: workers, Box: sc.Box})
 	if err != nil {
 		return nil, err
 	}

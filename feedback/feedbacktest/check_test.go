@@ -17,7 +17,7 @@ func TestBuiltInSchemesPass(t *testing.T) {
 	// 0.24, pure kinetic 0.005 / 0.70, terminal momentum 0.05 / 0.05
 	// (Kim & Ostriker) and 0.07 / 0.25 (Cioffi et al.). Solid-angle weights
 	// give the nearest element up to half of a star's release, so coherent
-	// kicks of neighbouring stars concentrate there.
+	// kicks of neighboring stars concentrate there.
 	schemes := []struct {
 		name   string
 		scheme feedback.Scheme
@@ -42,7 +42,7 @@ func TestBuiltInSchemesPass(t *testing.T) {
 type losesMass struct{ feedback.TerminalMomentum }
 
 func (losesMass) Name() string { return "loses-mass" }
-func (s losesMass) Deposit(nb *feedback.Neighbourhood, out []feedback.Deposit) (float64, error) {
+func (s losesMass) Deposit(nb *feedback.Neighborhood, out []feedback.Deposit) (float64, error) {
 	rad, err := s.TerminalMomentum.Deposit(nb, out)
 	for j := range out {
 		out[j].Mass *= 0.99
@@ -54,7 +54,7 @@ func (s losesMass) Deposit(nb *feedback.Neighbourhood, out []feedback.Deposit) (
 type wrongFrame struct{ feedback.Kinetic }
 
 func (wrongFrame) Name() string { return "wrong-frame" }
-func (s wrongFrame) Deposit(nb *feedback.Neighbourhood, out []feedback.Deposit) (float64, error) {
+func (s wrongFrame) Deposit(nb *feedback.Neighborhood, out []feedback.Deposit) (float64, error) {
 	rad, err := s.Kinetic.Deposit(nb, out)
 	for j := range out {
 		for a := 0; a < 3; a++ {
@@ -64,12 +64,12 @@ func (s wrongFrame) Deposit(nb *feedback.Neighbourhood, out []feedback.Deposit) 
 	return rad, err
 }
 
-// oneSided pushes every neighbour along +x, energy accounted but momentum
+// oneSided pushes every neighbor along +x, energy accounted but momentum
 // created.
 type oneSided struct{ feedback.Kinetic }
 
 func (oneSided) Name() string { return "one-sided" }
-func (s oneSided) Deposit(nb *feedback.Neighbourhood, out []feedback.Deposit) (float64, error) {
+func (s oneSided) Deposit(nb *feedback.Neighborhood, out []feedback.Deposit) (float64, error) {
 	rad, err := s.Kinetic.Deposit(nb, out)
 	for j := range out {
 		out[j].Momentum[0] += 0.01 * nb.Mass[j]
@@ -84,7 +84,7 @@ func (s oneSided) Deposit(nb *feedback.Neighbourhood, out []feedback.Deposit) (f
 type unbalancedRadial struct{}
 
 func (unbalancedRadial) Name() string { return "unbalanced-radial" }
-func (unbalancedRadial) Deposit(nb *feedback.Neighbourhood, out []feedback.Deposit) (float64, error) {
+func (unbalancedRadial) Deposit(nb *feedback.Neighborhood, out []feedback.Deposit) (float64, error) {
 	src := nb.Source
 	for j := range out {
 		w := nb.Weight[j]

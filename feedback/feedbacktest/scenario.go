@@ -1,6 +1,6 @@
 // Package feedbacktest checks any feedback scheme, a user's own included,
 // inside go test: it runs the scheme on randomised and adversarial
-// neighbourhoods (uniform, clustered, one-sided, a single neighbour, gas at
+// neighborhoods (uniform, clustered, one-sided, a single neighbor, gas at
 // the star's position, a huge density contrast, a moving star in moving gas,
 // overlapping stars) and asserts that mass, every species, momentum and
 // energy are conserved to round-off, that masses and energies stay
@@ -105,15 +105,15 @@ func (g *GasArrays) Totals() feedback.Quantities {
 	return q
 }
 
-// Scenario is a named neighbourhood set-up: gas, the stars releasing into
+// Scenario is a named neighborhood set-up: gas, the stars releasing into
 // it, and whether its geometry admits an isotropic deposit.
 type Scenario struct {
 	Name    string
 	Gas     *GasArrays
 	Sources []feedback.Source
 	Box     neighbor.Box
-	// Neighbours to couple to (at most the gas count).
-	Neighbours int
+	// Neighbors to couple to (at most the gas count).
+	Neighbors int
 	// Balanced is true when gas surrounds every star, so a corrected scheme
 	// must hand out radial momentum with a vanishing net.
 	Balanced bool
@@ -187,7 +187,7 @@ func Scenarios(seed uint64) []Scenario {
 	var out []Scenario
 
 	g := newGas(400, func(int) [3]float64 { return ball(rng, 50) }, 100, 1, rng, 0, 1)
-	out = append(out, Scenario{Name: "uniform", Gas: g, Neighbours: 48, Balanced: true,
+	out = append(out, Scenario{Name: "uniform", Gas: g, Neighbors: 48, Balanced: true,
 		Sources: []feedback.Source{SupernovaRelease(star(7, [3]float64{}, [3]float64{}))}})
 
 	// Six clumps of different size and density around the star.
@@ -201,7 +201,7 @@ func Scenarios(seed uint64) []Scenario {
 	for i := range g.Density {
 		g.Density[i] *= float64(1 + i%len(centres))
 	}
-	out = append(out, Scenario{Name: "clustered", Gas: g, Neighbours: 200, Balanced: true,
+	out = append(out, Scenario{Name: "clustered", Gas: g, Neighbors: 200, Balanced: true,
 		Sources: []feedback.Source{SupernovaRelease(star(11, [3]float64{}, [3]float64{}))}})
 
 	g = newGas(200, func(int) [3]float64 {
@@ -209,11 +209,11 @@ func Scenarios(seed uint64) []Scenario {
 		p[0] = math.Abs(p[0]) + 0.5
 		return p
 	}, 100, 1, rng, 0, 3)
-	out = append(out, Scenario{Name: "one-sided", Gas: g, Neighbours: 32,
+	out = append(out, Scenario{Name: "one-sided", Gas: g, Neighbors: 32,
 		Sources: []feedback.Source{SupernovaRelease(star(13, [3]float64{}, [3]float64{}))}})
 
 	g = newGas(1, func(int) [3]float64 { return [3]float64{3, 1, -2} }, 1e3, 10, rng, 0, 4)
-	out = append(out, Scenario{Name: "single-neighbour", Gas: g, Neighbours: 1,
+	out = append(out, Scenario{Name: "single-neighbor", Gas: g, Neighbors: 1,
 		Sources: []feedback.Source{SupernovaRelease(star(17, [3]float64{}, [3]float64{}))}})
 
 	g = newGas(64, func(i int) [3]float64 {
@@ -222,7 +222,7 @@ func Scenarios(seed uint64) []Scenario {
 		}
 		return ball(rng, 20)
 	}, 80, 3, rng, 0, 5)
-	out = append(out, Scenario{Name: "at-star", Gas: g, Neighbours: 24,
+	out = append(out, Scenario{Name: "at-star", Gas: g, Neighbors: 24,
 		Sources: []feedback.Source{SupernovaRelease(star(19, [3]float64{1, 2, 3}, [3]float64{}))}})
 
 	g = newGas(300, func(int) [3]float64 { return ball(rng, 40) }, 100, 0.1, rng, 0, 6)
@@ -232,11 +232,11 @@ func Scenarios(seed uint64) []Scenario {
 			g.Mass[i] *= 10
 		}
 	}
-	out = append(out, Scenario{Name: "density-contrast", Gas: g, Neighbours: 48, Balanced: true,
+	out = append(out, Scenario{Name: "density-contrast", Gas: g, Neighbors: 48, Balanced: true,
 		Sources: []feedback.Source{SupernovaRelease(star(23, [3]float64{}, [3]float64{}))}})
 
 	g = newGas(300, func(int) [3]float64 { return ball(rng, 40) }, 100, 3, rng, 80, 7)
-	out = append(out, Scenario{Name: "moving", Gas: g, Neighbours: 48, Balanced: true,
+	out = append(out, Scenario{Name: "moving", Gas: g, Neighbors: 48, Balanced: true,
 		Sources: []feedback.Source{SupernovaRelease(star(29, [3]float64{1, -2, 0.5}, [3]float64{250, -120, 60}))}})
 
 	g = newGas(500, func(int) [3]float64 { return ball(rng, 40) }, 60, 2, rng, 20, 8)
@@ -246,12 +246,12 @@ func Scenarios(seed uint64) []Scenario {
 		v := [3]float64{30 * rng.NormFloat64(), 30 * rng.NormFloat64(), 30 * rng.NormFloat64()}
 		srcs = append(srcs, SupernovaRelease(star(int64(100+7*s), p, v)))
 	}
-	out = append(out, Scenario{Name: "overlapping-stars", Gas: g, Neighbours: 40, Balanced: true, Sources: srcs})
+	out = append(out, Scenario{Name: "overlapping-stars", Gas: g, Neighbors: 40, Balanced: true, Sources: srcs})
 
 	g = newGas(216, func(i int) [3]float64 {
 		return [3]float64{float64(i%6) * 10, float64(i/6%6) * 10, float64(i/36) * 10}
 	}, 100, 1, rng, 0, 9)
-	out = append(out, Scenario{Name: "periodic-corner", Gas: g, Neighbours: 32, Balanced: true,
+	out = append(out, Scenario{Name: "periodic-corner", Gas: g, Neighbors: 32, Balanced: true,
 		Box:     neighbor.Box{Size: [3]float64{60, 60, 60}},
 		Sources: []feedback.Source{SupernovaRelease(star(31, [3]float64{0.5, 59.5, 0.2}, [3]float64{}))}})
 	return out

@@ -21,7 +21,7 @@ type benchFlags struct {
 	suite, schemes, setups, out, gasDir string
 	lengthCm, massG, velocityCmPS       float64
 	boxSize                             float64
-	neighbours, workers                 int
+	neighbors, workers                 int
 	seed                                uint64
 	skipSpeed, quiet, list              bool
 }
@@ -39,7 +39,7 @@ func runBench(args []string, stdout, stderr io.Writer) int {
 	fs.Float64Var(&f.massG, "mass-unit-g", units.SolarMass, "with -gas: g per code mass unit (default 1 Msun)")
 	fs.Float64Var(&f.velocityCmPS, "velocity-unit-cms", units.Kilometre, "with -gas: cm/s per code velocity unit (default 1 km/s)")
 	fs.Float64Var(&f.boxSize, "box-size", 0, "with -gas: side of the periodic cubic box in code length units (0: open box)")
-	fs.IntVar(&f.neighbours, "neighbours", 0, "gas elements each star couples to (0: the suite's, 64)")
+	fs.IntVar(&f.neighbors, "neighbors", 0, "gas elements each star couples to (0: the suite's, 64)")
 	fs.IntVar(&f.workers, "workers", 1, "goroutines per coupler (results other than speed do not depend on it)")
 	fs.Uint64Var(&f.seed, "seed", 0, "seed of the built-in set-ups (0: the suite's)")
 	fs.BoolVar(&f.skipSpeed, "skip-speed", false, "skip the speed measurement")
@@ -120,11 +120,11 @@ func benchResult(f *benchFlags, stderr io.Writer) (*bench.Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	if f.neighbours < 0 {
-		return nil, fmt.Errorf("neighbour count %d must be positive", f.neighbours)
+	if f.neighbors < 0 {
+		return nil, fmt.Errorf("neighbor count %d must be positive", f.neighbors)
 	}
-	if f.neighbours > 0 {
-		suite.Neighbours = f.neighbours
+	if f.neighbors > 0 {
+		suite.Neighbors = f.neighbors
 	}
 	if f.seed != 0 {
 		suite.Seed = f.seed
@@ -145,7 +145,7 @@ func benchResult(f *benchFlags, stderr io.Writer) (*bench.Result, error) {
 		if err != nil {
 			return nil, err
 		}
-		return bench.RunCase(c, suite.Neighbours, suite.Speed, opts)
+		return bench.RunCase(c, suite.Neighbors, suite.Speed, opts)
 	}
 	if suite.Setups, err = bench.SelectSetups(splitList(f.setups)); err != nil {
 		return nil, err
@@ -193,11 +193,11 @@ func (p *progress) finish() {
 // summarise prints the headline figures: speed, worst isotropy residual
 // per set-up, and the momentum at the reference density on each set-up.
 func summarise(w io.Writer, res *bench.Result) {
-	fmt.Fprintf(w, "ejecta bench: suite %s, %d schemes, %d set-ups, %d neighbours, one %.0e erg SN with %g Msun ejecta per star\n",
-		res.Suite, len(res.Schemes), len(res.Setups), res.Neighbours, res.SupernovaEnergyErg, res.EjectaMassMsun)
+	fmt.Fprintf(w, "ejecta bench: suite %s, %d schemes, %d set-ups, %d neighbors, one %.0e erg SN with %g Msun ejecta per star\n",
+		res.Suite, len(res.Schemes), len(res.Setups), res.Neighbors, res.SupernovaEnergyErg, res.EjectaMassMsun)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	if len(res.Speed) > 0 {
-		fmt.Fprintf(w, "\nspeed on %s (%d stars, %d neighbours):\n", res.Speed[0].Setup, res.Speed[0].Stars, res.Speed[0].Neighbours)
+		fmt.Fprintf(w, "\nspeed on %s (%d stars, %d neighbors):\n", res.Speed[0].Setup, res.Speed[0].Stars, res.Speed[0].Neighbors)
 		fmt.Fprintln(tw, "scheme\tstars/s\telements/s\ttouch ratio\t")
 		for _, r := range res.Speed {
 			fmt.Fprintf(tw, "%s\t%.4g\t%.4g\t%.3g\t\n", r.Scheme, r.StarsPerS, r.TouchedPerS, r.TouchRatio)

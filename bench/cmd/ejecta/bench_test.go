@@ -119,7 +119,7 @@ func TestBenchCommandUserGas(t *testing.T) {
 
 	code, stdout, stderr := runCLI("bench", "-gas", gasDir, "-out", outDir, "-quiet",
 		"-length-unit-cm", "1", "-mass-unit-g", "1", "-velocity-unit-cms", "1",
-		"-box-size", formatFloat(side*d), "-neighbours", "32", "-schemes", "thermal-dump,terminal-momentum")
+		"-box-size", formatFloat(side*d), "-neighbors", "32", "-schemes", "thermal-dump,terminal-momentum")
 	require.Equal(t, 0, code, stderr)
 	assert.Contains(t, stdout, "user-gas")
 	res := readResult(t, outDir)
@@ -153,7 +153,7 @@ func TestBenchCommandErrors(t *testing.T) {
 		{"unknown scheme", []string{"-schemes", "nope"}, 1, "unknown scheme"},
 		{"unknown set-up", []string{"-setups", "moon"}, 1, "unknown set-up"},
 		{"unknown suite", []string{"-suite", "huge"}, 1, "unknown suite"},
-		{"negative neighbours", []string{"-neighbours", "-3"}, 1, "neighbour count"},
+		{"negative neighbors", []string{"-neighbors", "-3"}, 1, "neighbor count"},
 		{"empty gas dir", []string{"-gas", gasDir}, 1, "pos.npy"},
 		{"gas and set-ups", []string{"-gas", gasDir, "-setups", "glass"}, 1, "exclude"},
 		{"bad units", []string{"-gas", gasDir, "-length-unit-cm", "0"}, 1, "read gas"},

@@ -58,7 +58,7 @@ func runRates(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "usage: ejecta rates [flags]")
 		fmt.Fprintln(stderr, "Prints what one Msun of stars formed in a single burst releases, by age:")
 		fmt.Fprintln(stderr, "supernovae, ejected mass and metals, energy (explosions and wind kinetic energy),")
-		fmt.Fprintln(stderr, "and the luminosity and ionising photon rate at each bin's start. The first bin")
+		fmt.Fprintln(stderr, "and the luminosity and ionizing photon rate at each bin's start. The first bin")
 		fmt.Fprintln(stderr, "runs from age 0 to 0.1 Myr; the rest are log-spaced up to 13.8 Gyr.")
 		fs.PrintDefaults()
 	}
