@@ -138,7 +138,7 @@ type Options struct {
 type Result struct {
 	Suite              string         `json:"suite"`
 	Units              string         `json:"units"`
-	Neighbors         int            `json:"neighbors"`
+	Neighbors          int            `json:"neighbors"`
 	Seed               uint64         `json:"seed"`
 	SupernovaEnergyErg float64        `json:"supernova_energy_erg"`
 	EjectaMassMsun     float64        `json:"ejecta_mass_msun"`
@@ -226,7 +226,7 @@ type Speed struct {
 	Scheme         string  `json:"scheme"`
 	Setup          string  `json:"setup"`
 	Stars          int     `json:"stars"`
-	Neighbors     int     `json:"neighbors"`
+	Neighbors      int     `json:"neighbors"`
 	StarsPerS      float64 `json:"stars_per_s"`
 	TouchedPerS    float64 `json:"touched_per_s"`
 	FloorStarsPerS float64 `json:"floor_stars_per_s"`

@@ -26,7 +26,7 @@ const (
 	codeInvalidContext  int32 = 4
 	codeNoGas           int32 = 5
 	codeBadValue        int32 = 6
-	codeNeighbors      int32 = 7
+	codeNeighbors       int32 = 7
 	codeBufferTooSmall  int32 = 8
 	codeUnknownGas      int32 = 9
 	codeBusy            int32 = 10
@@ -38,14 +38,14 @@ const (
 
 // Enumerations of ejecta.h.
 const (
-	abiVersion        int32 = 1
-	nameCapacity            = 48
-	numSpecies              = int(yields.NumSpecies)
-	modeOwnFinder     int32 = 0
-	modeHostRows      int32 = 1
-	locateByIndex     int32 = 0
-	locateByID        int32 = 1
-	maxWorkers              = 4096
+	abiVersion       int32 = 1
+	nameCapacity           = 48
+	numSpecies             = int(yields.NumSpecies)
+	modeOwnFinder    int32 = 0
+	modeHostRows     int32 = 1
+	locateByIndex    int32 = 0
+	locateByID       int32 = 1
+	maxWorkers             = 4096
 	defaultNeighbors       = feedback.DefaultNeighbors
 )
 
@@ -61,7 +61,7 @@ type configABI struct {
 	CouplingRadius     float64
 	BoxSize            [3]float64
 	Seed               uint64
-	NeighborCount     int32
+	NeighborCount      int32
 	WorkerThreads      int32
 	IsotropyCorrection int32
 	Reserved           int32
@@ -110,20 +110,20 @@ type starABI struct {
 }
 
 type recordABI struct {
-	GasIndex        int64
-	GasID           int64
-	StarID          int64
-	Channel         int32
-	Flags           uint32
-	Mass            float64
-	SpeciesMass     [numSpecies]float64
-	Momentum        [3]float64
-	Energy          float64
-	Heat            float64
-	Radiated        float64
+	GasIndex         int64
+	GasID            int64
+	StarID           int64
+	Channel          int32
+	Flags            uint32
+	Mass             float64
+	SpeciesMass      [numSpecies]float64
+	Momentum         [3]float64
+	Energy           float64
+	Heat             float64
+	Radiated         float64
 	HoldCoolingUntil float64
-	Kick            float64
-	Heating         float64
+	Kick             float64
+	Heating          float64
 }
 
 type quantitiesABI struct {
@@ -159,13 +159,13 @@ type applyReportABI struct {
 }
 
 type touchedABI struct {
-	GasIndex        int64
-	GasID           int64
-	MaxKick         float64
-	MaxHeating      float64
+	GasIndex         int64
+	GasID            int64
+	MaxKick          float64
+	MaxHeating       float64
 	HoldCoolingUntil float64
-	Flags           uint32
-	Reserved        int32
+	Flags            uint32
+	Reserved         int32
 }
 
 // abiError is an error with the code the C caller receives.

@@ -21,8 +21,8 @@ import (
 // box of about one element per pc^3, benchStars supernovae, each coupled to
 // its benchNeighbors nearest elements, one worker.
 const (
-	benchGas        = 1_000_000
-	benchStars      = 10_000
+	benchGas       = 1_000_000
+	benchStars     = 10_000
 	benchNeighbors = 64
 )
 

@@ -25,8 +25,8 @@ const (
 
 type populationConfigABI struct {
 	IMF                  [nameCapacity]byte
-	LightestStarMass           float64
-	HeaviestStarMass           float64
+	LightestStarMass     float64
+	HeaviestStarMass     float64
 	MaxSupernovaePerStep float64
 	YieldsTable          *byte
 	Winds                int32

@@ -13,11 +13,11 @@ import (
 // the largest speed change and the largest heating per unit mass any single
 // record gave it, and the union of the records' flags.
 type Touched struct {
-	Index           int
-	ID              int64
-	MaxKick         float64
-	MaxHeating      float64
-	Flags           Flags
+	Index            int
+	ID               int64
+	MaxKick          float64
+	MaxHeating       float64
+	Flags            Flags
 	HoldCoolingUntil float64
 }
 

@@ -189,10 +189,10 @@ func DefaultConfig() Config {
 	ia[Magnesium] = 0.0086
 	ia[Neon] = 0.002
 	return Config{
-		IMF:        Kroupa,
+		IMF:              Kroupa,
 		LightestStarMass: DefaultLightestStarMass,
 		HeaviestStarMass: DefaultHeaviestStarMass,
-		Remnants:   RemnantConfig{NeutronStarMass: 1.4, BlackHoleMinMass: 25, BlackHoleMass: 10},
+		Remnants:         RemnantConfig{NeutronStarMass: 1.4, BlackHoleMinMass: 25, BlackHoleMass: 10},
 		CoreCollapse: CoreCollapseConfig{
 			MinMass: 8, MaxMass: 100, Energy: 1e51,
 			NewMetalsPerMsun: 0.2, NewMetalsMinMass: 10, NewMetalPattern: ccPattern,

@@ -21,7 +21,7 @@ type benchFlags struct {
 	suite, schemes, setups, out, gasDir string
 	lengthCm, massG, velocityCmPS       float64
 	boxSize                             float64
-	neighbors, workers                 int
+	neighbors, workers                  int
 	seed                                uint64
 	skipSpeed, quiet, list              bool
 }
