@@ -12,7 +12,7 @@ import (
 	"codeberg.org/sbinet/npyio"
 
 	"github.com/ejecta-dev/ejecta/feedback"
-	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
+	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
@@ -89,7 +89,7 @@ func ReadGasDir(dir string, u units.CodeUnits, box neighbor.Box) (*Case, error) 
 		return nil, err
 	}
 
-	g := &feedbacktest.GasArrays{}
+	g := &audit.GasArrays{}
 	for a := 0; a < 3; a++ {
 		g.Pos[a] = make([]float64, n)
 		g.Vel[a] = make([]float64, n)

@@ -8,7 +8,6 @@ import (
 	"time"
 
 	"github.com/ejecta-dev/ejecta/feedback"
-	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
 	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
@@ -402,22 +401,22 @@ func newCoupler(s SchemeSpec, c *Case, k, workers int) (*feedback.Coupler, error
 	return cp, nil
 }
 
+// EjectaMetalFraction is the metal mass fraction of the comparison's
+// supernova ejecta (1 Msun of metals in 10 Msun, an illustrative round
+// value: the comparison's momenta and energies do not depend on it; only
+// the total metals are tracked).
+const EjectaMetalFraction = 0.1
+
 // supernovae makes one supernova release per star of the case, in its
-// code units: SupernovaEnergyErg and EjectaMassMsun, with the ejecta
-// composition of feedbacktest.SupernovaRelease.
+// code units: SupernovaEnergyErg and EjectaMassMsun, EjectaMetalFraction of
+// it metals.
 func supernovae(c *Case) []feedback.Source {
 	out := make([]feedback.Source, len(c.Stars))
-	massScale := units.SolarMass / c.Units.MassG
+	mass := EjectaMassMsun * units.SolarMass / c.Units.MassG
 	for i, st := range c.Stars {
-		src := feedbacktest.SupernovaRelease(st)
-		// SupernovaRelease is in pc, Msun, km/s; restate it in the case's units.
-		scale := EjectaMassMsun / src.Mass * massScale
-		src.Mass *= scale
-		for sp := range src.Species {
-			src.Species[sp] *= scale
-		}
-		src.Energy = SupernovaEnergyErg / c.Units.EnergyErg()
-		src.Events = 1
+		src := feedback.Source{Star: st, Channel: yields.CoreCollapse, Mass: mass, Events: 1,
+			Energy: SupernovaEnergyErg / c.Units.EnergyErg()}
+		src.Species[yields.Metals] = EjectaMetalFraction * mass
 		out[i] = src
 	}
 	return out

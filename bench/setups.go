@@ -6,7 +6,7 @@ import (
 	"math/rand/v2"
 
 	"github.com/ejecta-dev/ejecta/feedback"
-	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
+	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
@@ -36,7 +36,7 @@ type Case struct {
 	// masses differ).
 	GasMassMsun float64
 	// Gas holds the gas in code units.
-	Gas *feedbacktest.GasArrays
+	Gas *audit.GasArrays
 	// Box is the periodic box; zero for an open box.
 	Box neighbor.Box
 	// Stars each release one supernova.
@@ -163,8 +163,8 @@ func codeDensity(nH float64) float64 {
 }
 
 // newArrays allocates n elements of gas tracking the total metals.
-func newArrays(n int) *feedbacktest.GasArrays {
-	g := &feedbacktest.GasArrays{Species: []yields.Species{yields.Metals}}
+func newArrays(n int) *audit.GasArrays {
+	g := &audit.GasArrays{Species: []yields.Species{yields.Metals}}
 	for a := 0; a < 3; a++ {
 		g.Pos[a] = make([]float64, n)
 		g.Vel[a] = make([]float64, n)
@@ -178,7 +178,7 @@ func newArrays(n int) *feedbacktest.GasArrays {
 }
 
 // setElement fills element i.
-func setElement(g *feedbacktest.GasArrays, i int, p [3]float64, m, rho, u float64) {
+func setElement(g *audit.GasArrays, i int, p [3]float64, m, rho, u float64) {
 	for a := 0; a < 3; a++ {
 		g.Pos[a][i] = p[a]
 	}
@@ -337,7 +337,7 @@ func buildClumpyCloud(spec CaseSpec) (*Case, error) {
 // estimateDensities sets each element's density to the mass of its k
 // nearest neighbors (itself included) over the volume of the sphere
 // reaching the k-th: a k-nearest estimate (common practice).
-func estimateDensities(g *feedbacktest.GasArrays, k int) error {
+func estimateDensities(g *audit.GasArrays, k int) error {
 	tree, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 	if err != nil {
 		return fmt.Errorf("density estimate: %w", err)

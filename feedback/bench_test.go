@@ -6,7 +6,7 @@ import (
 	"testing"
 
 	"github.com/ejecta-dev/ejecta/feedback"
-	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
+	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
@@ -17,7 +17,7 @@ import (
 // neighbors precomputed as host-supplied lists, so the benchmarks measure
 // coupling, not searching.
 type benchWorld struct {
-	gas   *feedbacktest.GasArrays
+	gas   *audit.GasArrays
 	lists *neighbor.HostLists
 	srcs  []feedback.Source
 }

@@ -8,6 +8,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
 	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
@@ -16,10 +17,10 @@ import (
 
 // latticeGas is a cubic lattice of side n, spacing dx (pc), at hydrogen
 // density nH, centred on the origin, at 100 K-like energy.
-func latticeGas(n int, dx, nH float64, u units.CodeUnits) *feedbacktest.GasArrays {
+func latticeGas(n int, dx, nH float64, u units.CodeUnits) *audit.GasArrays {
 	rho := nH * feedback.MassPerHydrogen * units.ProtonMass
 	m := rho * math.Pow(dx*units.Parsec, 3) / u.MassG
-	g := &feedbacktest.GasArrays{Species: []yields.Species{yields.Metals}, Fractions: make([][]float64, 1)}
+	g := &audit.GasArrays{Species: []yields.Species{yields.Metals}, Fractions: make([][]float64, 1)}
 	off := float64(n-1) / 2
 	id := int64(1)
 	for i := 0; i < n; i++ {
@@ -312,7 +313,7 @@ func TestStepperBitwiseForAnyWorkerCount(t *testing.T) {
 		stars = append(stars, feedback.StarParticle{Star: feedback.Star{ID: int64(500 + s), Mass: 3e4, Metallicity: 0.0134,
 			Pos: [3]float64{base.Pos[0][i], base.Pos[1][i] + 0.2, base.Pos[2][i]}, Age: float64(3+s%20) * myr}, FormedMass: 3e4})
 	}
-	var ref *feedbacktest.GasArrays
+	var ref *audit.GasArrays
 	for _, workers := range []int{1, 2, 3} {
 		for _, radius := range []float64{0, 12} {
 			g := base.Clone()

@@ -10,7 +10,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/ejecta-dev/ejecta/feedback"
-	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
+	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
@@ -19,12 +19,12 @@ import (
 // uniformGas fills a ball around the origin with n elements of mass mGas
 // (Msun) at hydrogen density nH (cm^-3), at rest, in code units u. The ball
 // radius follows from the density so the gas is physically consistent.
-func uniformGas(seed uint64, n int, mGas, nH float64, u units.CodeUnits) *feedbacktest.GasArrays {
+func uniformGas(seed uint64, n int, mGas, nH float64, u units.CodeUnits) *audit.GasArrays {
 	rng := rand.New(rand.NewPCG(seed, 3))
 	rho := nH * feedback.MassPerHydrogen * units.ProtonMass // g/cm^3
 	volume := float64(n) * mGas * units.SolarMass / rho     // cm^3
 	radius := math.Cbrt(3*volume/(4*math.Pi)) / u.LengthCm
-	g := &feedbacktest.GasArrays{Species: []yields.Species{yields.Metals, yields.Iron}}
+	g := &audit.GasArrays{Species: []yields.Species{yields.Metals, yields.Iron}}
 	g.Fractions = make([][]float64, 2)
 	for i := 0; i < n; i++ {
 		var p [3]float64
@@ -59,7 +59,7 @@ func supernova(id int64, u units.CodeUnits) feedback.Source {
 	return s
 }
 
-func coupleOnce(t *testing.T, g *feedbacktest.GasArrays, cfg feedback.Config, srcs []feedback.Source) (*feedback.Output, feedback.ApplyReport) {
+func coupleOnce(t *testing.T, g *audit.GasArrays, cfg feedback.Config, srcs []feedback.Source) (*feedback.Output, feedback.ApplyReport) {
 	t.Helper()
 	c, err := feedback.NewCoupler(cfg)
 	require.NoError(t, err)
@@ -166,7 +166,7 @@ func TestBitwiseIdenticalForWorkersAndStarOrder(t *testing.T) {
 		src.Star.Vel = [3]float64{10 * rng.NormFloat64(), 10 * rng.NormFloat64(), 0}
 		srcs = append(srcs, src)
 	}
-	var ref *feedbacktest.GasArrays
+	var ref *audit.GasArrays
 	for _, workers := range []int{1, 2, 8} {
 		for _, shuffle := range []bool{false, true} {
 			order := append([]feedback.Source(nil), srcs...)
@@ -275,21 +275,21 @@ func TestBadInputLosesNothing(t *testing.T) {
 	u := pcMsunKms()
 	cases := []struct {
 		name   string
-		mutate func(g *feedbacktest.GasArrays, s *feedback.Source)
+		mutate func(g *audit.GasArrays, s *feedback.Source)
 		skip   bool // the source is returned undeposited
 	}{
-		{"nan star position", func(g *feedbacktest.GasArrays, s *feedback.Source) { s.Star.Pos[0] = math.NaN() }, true},
-		{"negative ejecta", func(g *feedbacktest.GasArrays, s *feedback.Source) { s.Mass = -1 }, true},
-		{"species above mass", func(g *feedbacktest.GasArrays, s *feedback.Source) { s.Species[yields.Iron] = 2 * s.Mass }, true},
-		{"negative gas mass", func(g *feedbacktest.GasArrays, s *feedback.Source) { g.Mass[0] = -1 }, true},
-		{"zero gas mass", func(g *feedbacktest.GasArrays, s *feedback.Source) { g.Mass[0] = 0 }, true},
-		{"nan gas density", func(g *feedbacktest.GasArrays, s *feedback.Source) { g.Density[0] = math.NaN() }, true},
-		{"infinite gas velocity", func(g *feedbacktest.GasArrays, s *feedback.Source) { g.Vel[1][0] = math.Inf(1) }, true},
-		{"gas mass near the floating-point limit", func(g *feedbacktest.GasArrays, s *feedback.Source) { g.Mass[0] = 1e307 }, false},
-		{"star on a gas element", func(g *feedbacktest.GasArrays, s *feedback.Source) {
+		{"nan star position", func(g *audit.GasArrays, s *feedback.Source) { s.Star.Pos[0] = math.NaN() }, true},
+		{"negative ejecta", func(g *audit.GasArrays, s *feedback.Source) { s.Mass = -1 }, true},
+		{"species above mass", func(g *audit.GasArrays, s *feedback.Source) { s.Species[yields.Iron] = 2 * s.Mass }, true},
+		{"negative gas mass", func(g *audit.GasArrays, s *feedback.Source) { g.Mass[0] = -1 }, true},
+		{"zero gas mass", func(g *audit.GasArrays, s *feedback.Source) { g.Mass[0] = 0 }, true},
+		{"nan gas density", func(g *audit.GasArrays, s *feedback.Source) { g.Density[0] = math.NaN() }, true},
+		{"infinite gas velocity", func(g *audit.GasArrays, s *feedback.Source) { g.Vel[1][0] = math.Inf(1) }, true},
+		{"gas mass near the floating-point limit", func(g *audit.GasArrays, s *feedback.Source) { g.Mass[0] = 1e307 }, false},
+		{"star on a gas element", func(g *audit.GasArrays, s *feedback.Source) {
 			s.Star.Pos = [3]float64{g.Pos[0][0], g.Pos[1][0], g.Pos[2][0]}
 		}, false},
-		{"nothing released", func(g *feedbacktest.GasArrays, s *feedback.Source) {
+		{"nothing released", func(g *audit.GasArrays, s *feedback.Source) {
 			*s = feedback.Source{Star: s.Star}
 		}, false},
 	}

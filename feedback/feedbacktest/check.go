@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/neighbor"
 )
 
@@ -83,7 +84,7 @@ func Run(scheme feedback.Scheme, opts Options) []error {
 
 // result is one coupled-and-applied run.
 type result struct {
-	gas    *GasArrays
+	gas    *audit.GasArrays
 	out    feedback.Output
 	report feedback.ApplyReport
 }
@@ -291,7 +292,7 @@ func starFrameBalance(sc Scenario, recs []feedback.Record) []balance {
 	return out
 }
 
-func indexOf(g *GasArrays, id int64) int {
+func indexOf(g *audit.GasArrays, id int64) int {
 	for i, v := range g.ID {
 		if v == id {
 			return i
@@ -301,7 +302,7 @@ func indexOf(g *GasArrays, id int64) int {
 }
 
 // identical reports the first element whose state differs in any bit.
-func identical(a, b *GasArrays) error {
+func identical(a, b *audit.GasArrays) error {
 	eq := func(x, y []float64) int {
 		for i := range x {
 			if math.Float64bits(x[i]) != math.Float64bits(y[i]) {

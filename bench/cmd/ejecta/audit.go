@@ -12,7 +12,7 @@ import (
 	"strings"
 
 	"github.com/ejecta-dev/ejecta/bench"
-	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
+	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
 )
@@ -94,7 +94,7 @@ func runAudit(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ejecta audit: %v\n", err)
 		return 2
 	}
-	rep, err := feedbacktest.Audit(before, after, stars, feedbacktest.AuditOptions{Box: box, Tolerance: *tol, IsotropyTolerance: *isoTol})
+	rep, err := audit.Step(before, after, stars, audit.Options{Box: box, Tolerance: *tol, IsotropyTolerance: *isoTol})
 	if err != nil {
 		fmt.Fprintf(stderr, "ejecta audit: %v\n", err)
 		return 2
@@ -115,7 +115,7 @@ func runAudit(args []string, stdout, stderr io.Writer) int {
 	return 0
 }
 
-func printAudit(w io.Writer, rep *feedbacktest.AuditReport, nGas, nStars int) {
+func printAudit(w io.Writer, rep *audit.Report, nGas, nStars int) {
 	fmt.Fprintf(w, "audit of %d gas elements and %d stars\n\n", nGas, nStars)
 	fmt.Fprintf(w, "%-12s %15s %15s %13s %11s  %s\n", "quantity", "gas gained", "released", "imbalance", "relative", "")
 	for _, im := range rep.Imbalances {
@@ -143,7 +143,7 @@ func printAudit(w io.Writer, rep *feedbacktest.AuditReport, nGas, nStars int) {
 }
 
 // loadAudit reads the manifest and every array it names.
-func loadAudit(path string) (before, after *feedbacktest.GasArrays, stars []feedbacktest.AuditStar, box neighbor.Box, err error) {
+func loadAudit(path string) (before, after *audit.GasArrays, stars []audit.Star, box neighbor.Box, err error) {
 	raw, err := os.ReadFile(path)
 	if err != nil {
 		return nil, nil, nil, box, fmt.Errorf("manifest: %w", err)
@@ -172,8 +172,8 @@ func loadAudit(path string) (before, after *feedbacktest.GasArrays, stars []feed
 	return before, after, stars, box, err
 }
 
-func loadAuditGas(dir, key string, f auditGasFiles) (*feedbacktest.GasArrays, error) {
-	g := &feedbacktest.GasArrays{}
+func loadAuditGas(dir, key string, f auditGasFiles) (*audit.GasArrays, error) {
+	g := &audit.GasArrays{}
 	pos, n, err := readNPY(dir, key+".position", f.Position, 3, -1)
 	if err != nil {
 		return nil, err
@@ -221,7 +221,7 @@ func loadAuditGas(dir, key string, f auditGasFiles) (*feedbacktest.GasArrays, er
 	return g, nil
 }
 
-func loadAuditStars(dir string, f auditStarsFiles) ([]feedbacktest.AuditStar, error) {
+func loadAuditStars(dir string, f auditStarsFiles) ([]audit.Star, error) {
 	ids, n, err := readNPY(dir, "stars.id", f.ID, 1, -1)
 	if err != nil {
 		return nil, err
@@ -250,7 +250,7 @@ func loadAuditStars(dir string, f auditStarsFiles) ([]feedbacktest.AuditStar, er
 	if err != nil {
 		return nil, err
 	}
-	stars := make([]feedbacktest.AuditStar, n)
+	stars := make([]audit.Star, n)
 	for i := range stars {
 		s := &stars[i]
 		s.ID = int64(ids[i])

@@ -12,12 +12,13 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
 )
 
 // writeDump writes a step as .npy arrays plus a manifest and returns the
 // manifest's path.
-func writeDump(t *testing.T, before, after *feedbacktest.GasArrays, stars []feedbacktest.AuditStar) string {
+func writeDump(t *testing.T, before, after *audit.GasArrays, stars []audit.Star) string {
 	t.Helper()
 	dir := t.TempDir()
 	write := func(name string, v any) string {
@@ -27,7 +28,7 @@ func writeDump(t *testing.T, before, after *feedbacktest.GasArrays, stars []feed
 		require.NoError(t, f.Close())
 		return name
 	}
-	gas := func(prefix string, g *feedbacktest.GasArrays) auditGasFiles {
+	gas := func(prefix string, g *audit.GasArrays) auditGasFiles {
 		n := g.Len()
 		pos, vel := make([]float64, 0, 3*n), make([]float64, 0, 3*n)
 		for i := 0; i < n; i++ {
@@ -84,19 +85,19 @@ func reshape(flat []float64, n int) any {
 func TestAuditCommand(t *testing.T) {
 	cases := []struct {
 		name  string
-		plant func(a *feedbacktest.GasArrays, s []feedbacktest.AuditStar)
+		plant func(a *audit.GasArrays, s []audit.Star)
 		code  int
 		want  string
 	}{
-		{"exact ejecta dump", func(*feedbacktest.GasArrays, []feedbacktest.AuditStar) {}, 0, "passed"},
-		{"lost mass", func(a *feedbacktest.GasArrays, s []feedbacktest.AuditStar) { a.Mass[nearestTo(a, s[0])] *= 0.999 }, 1, "mass imbalance"},
-		{"wrong frame", func(a *feedbacktest.GasArrays, s []feedbacktest.AuditStar) {
+		{"exact ejecta dump", func(*audit.GasArrays, []audit.Star) {}, 0, "passed"},
+		{"lost mass", func(a *audit.GasArrays, s []audit.Star) { a.Mass[nearestTo(a, s[0])] *= 0.999 }, 1, "mass imbalance"},
+		{"wrong frame", func(a *audit.GasArrays, s []audit.Star) {
 			i := nearestTo(a, s[0])
 			for k := 0; k < 3; k++ {
 				a.Vel[k][i] -= s[0].Mass * s[0].Vel[k] / a.Mass[i]
 			}
 		}, 1, "momentum x imbalance"},
-		{"one-sided momentum", func(a *feedbacktest.GasArrays, s []feedbacktest.AuditStar) {
+		{"one-sided momentum", func(a *audit.GasArrays, s []audit.Star) {
 			a.Vel[1][nearestTo(a, s[0])] += 3
 		}, 1, "one-sided"},
 	}
@@ -126,7 +127,7 @@ func TestAuditCommandBadInput(t *testing.T) {
 	assert.Contains(t, errOut.String(), "unknown")
 }
 
-func nearestTo(g *feedbacktest.GasArrays, s feedbacktest.AuditStar) int {
+func nearestTo(g *audit.GasArrays, s audit.Star) int {
 	best, bd := 0, 1e300
 	for i := range g.Mass {
 		d := 0.0

@@ -1,4 +1,4 @@
-package feedbacktest
+package audit
 
 import (
 	"errors"
@@ -11,11 +11,11 @@ import (
 	"github.com/ejecta-dev/ejecta/yields"
 )
 
-// AuditStar is one star of a host's feedback step as the audit sees it:
+// Star is one star of a host's feedback step as the audit sees it:
 // where it was, how it moved, how far its feedback may reach, and what it
 // released (star frame: the ejecta move with the star) and booked as
 // radiated. Amounts in the host's code units.
-type AuditStar struct {
+type Star struct {
 	ID       int64
 	Pos, Vel [3]float64
 	// Radius is the coupling radius: gas farther away must not change.
@@ -28,8 +28,8 @@ type AuditStar struct {
 	Radiated float64
 }
 
-// AuditOptions set the audit's tolerances.
-type AuditOptions struct {
+// Options set the audit's tolerances.
+type Options struct {
 	// Box is the periodic box (zero for none).
 	Box neighbor.Box
 	// Tolerance is the largest relative imbalance accepted for each
@@ -64,8 +64,8 @@ type StarIsotropy struct {
 	Elements   int
 }
 
-// AuditReport is what Audit found.
-type AuditReport struct {
+// Report is what Step found.
+type Report struct {
 	Imbalances []Imbalance
 	Isotropy   []StarIsotropy
 	// NegativeMass and NegativeEnergy list elements (by ID) whose mass or
@@ -79,9 +79,9 @@ type AuditReport struct {
 }
 
 // Failed reports whether any check failed.
-func (r *AuditReport) Failed() bool { return len(r.Problems) > 0 }
+func (r *Report) Failed() bool { return len(r.Problems) > 0 }
 
-// Audit checks one feedback step done by any code: the gas before and
+// Step checks one feedback step done by any code: the gas before and
 // after (matched by ID; the order may differ) and the stars with what they
 // released. It checks that mass, every species, momentum and energy gained
 // by the gas equal the releases (ejecta moving with their star; energy
@@ -91,7 +91,7 @@ func (r *AuditReport) Failed() bool { return len(r.Problems) > 0 }
 // out of every star's range changed. Ejecta mass moves with its star, so
 // the net star-frame momentum of a star (or of a group of stars sharing
 // gas) is the gas's momentum gain less the ejecta's momentum.
-func Audit(before, after *GasArrays, stars []AuditStar, opts AuditOptions) (*AuditReport, error) {
+func Step(before, after *GasArrays, stars []Star, opts Options) (*Report, error) {
 	if opts.Tolerance == 0 {
 		opts.Tolerance = 1e-10
 	}
@@ -127,7 +127,7 @@ func Audit(before, after *GasArrays, stars []AuditStar, opts AuditOptions) (*Aud
 			return nil, fmt.Errorf("audit: star %d: radius %g must be finite and non-negative", s.ID, s.Radius)
 		}
 	}
-	rep := &AuditReport{}
+	rep := &Report{}
 
 	// Global balances.
 	b, a := before.Totals(), after.Totals()
@@ -188,7 +188,7 @@ func Audit(before, after *GasArrays, stars []AuditStar, opts AuditOptions) (*Aud
 	check("energy", a.Energy-b.Energy, want.Energy, 0, math.Abs(b.Energy)+math.Abs(a.Energy))
 
 	// Per-element checks and attribution.
-	inRange := func(s *AuditStar, i int) bool {
+	inRange := func(s *Star, i int) bool {
 		d := [3]float64{before.Pos[0][i] - s.Pos[0], before.Pos[1][i] - s.Pos[1], before.Pos[2][i] - s.Pos[2]}
 		d = opts.Box.MinImage(d)
 		return d[0]*d[0]+d[1]*d[1]+d[2]*d[2] <= s.Radius*s.Radius
@@ -312,7 +312,7 @@ func Audit(before, after *GasArrays, stars []AuditStar, opts AuditOptions) (*Aud
 
 // meanStarVel is the frame the momentum scale is measured in: the mean
 // star velocity (the scale only needs the right magnitude).
-func meanStarVel(stars []AuditStar) [3]float64 {
+func meanStarVel(stars []Star) [3]float64 {
 	var v [3]float64
 	for _, s := range stars {
 		for k := 0; k < 3; k++ {
@@ -339,53 +339,4 @@ func changed(b, a *GasArrays, i, j int) bool {
 		}
 	}
 	return false
-}
-
-// Dump runs scheme on a standard scenario (see Scenarios) and returns the
-// gas before and after one applied step, with each star's release and
-// radiated energy as an audit reads them: a dump made by ejecta itself,
-// for testing audits and as an example of the format's content. A star's
-// radius is the distance of the farthest element it touched.
-func Dump(scheme feedback.Scheme, scenario string, seed uint64) (before, after *GasArrays, stars []AuditStar, err error) {
-	var sc *Scenario
-	all := Scenarios(seed)
-	for i := range all {
-		if all[i].Name == scenario {
-			sc = &all[i]
-		}
-	}
-	if sc == nil {
-		return nil, nil, nil, fmt.Errorf("dump: no scenario %q", scenario)
-	}
-	r, err := couple(scheme, *sc, Options{}.withDefaults(), 1, sc.Sources)
-	if err != nil {
-		return nil, nil, nil, fmt.Errorf("dump: %w", err)
-	}
-	if len(r.out.Problems) > 0 {
-		return nil, nil, nil, fmt.Errorf("dump: star %d: %w", r.out.Problems[0].StarID, r.out.Problems[0].Err)
-	}
-	radiated := 0.0
-	for _, s := range sc.Sources {
-		st := AuditStar{ID: s.Star.ID, Pos: s.Star.Pos, Vel: s.Star.Vel, Mass: s.Mass, Species: s.Species, Energy: s.Energy}
-		for _, rec := range r.out.Records {
-			if rec.StarID != s.Star.ID {
-				continue
-			}
-			st.Radiated += rec.Radiated
-			i := indexOf(sc.Gas, rec.GasID)
-			d := [3]float64{sc.Gas.Pos[0][i] - s.Star.Pos[0], sc.Gas.Pos[1][i] - s.Star.Pos[1], sc.Gas.Pos[2][i] - s.Star.Pos[2]}
-			d = sc.Box.MinImage(d)
-			st.Radius = math.Max(st.Radius, math.Sqrt(d[0]*d[0]+d[1]*d[1]+d[2]*d[2])*(1+1e-12))
-		}
-		radiated += st.Radiated
-		stars = append(stars, st)
-	}
-	// Radiated energy Apply took back for coherent kicks is shared among
-	// the stars in proportion to what they radiated.
-	if radiated > 0 && r.report.Reclaimed > 0 {
-		for i := range stars {
-			stars[i].Radiated -= r.report.Reclaimed * stars[i].Radiated / radiated
-		}
-	}
-	return sc.Gas.Clone(), r.gas, stars, nil
 }

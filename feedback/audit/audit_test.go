@@ -1,4 +1,4 @@
-package feedbacktest_test
+package audit_test
 
 import (
 	"strings"
@@ -8,12 +8,13 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
 )
 
 // MakeDump runs ejecta's own scheme on the moving scenario and returns the
 // gas before and after and the audit's view of the stars.
-func makeDump(t *testing.T) (*feedbacktest.GasArrays, *feedbacktest.GasArrays, []feedbacktest.AuditStar) {
+func makeDump(t *testing.T) (*audit.GasArrays, *audit.GasArrays, []audit.Star) {
 	t.Helper()
 	before, after, stars, err := feedbacktest.Dump(feedback.TerminalMomentum{}, "overlapping-stars", 1)
 	require.NoError(t, err)
@@ -22,7 +23,7 @@ func makeDump(t *testing.T) (*feedbacktest.GasArrays, *feedbacktest.GasArrays, [
 
 func TestAuditPassesAnExactDump(t *testing.T) {
 	before, after, stars := makeDump(t)
-	rep, err := feedbacktest.Audit(before, after, stars, feedbacktest.AuditOptions{})
+	rep, err := audit.Step(before, after, stars, audit.Options{})
 	require.NoError(t, err)
 	assert.False(t, rep.Failed(), "%v", rep.Problems)
 }
@@ -30,15 +31,15 @@ func TestAuditPassesAnExactDump(t *testing.T) {
 func TestAuditCatchesPlantedErrors(t *testing.T) {
 	cases := []struct {
 		name  string
-		plant func(after *feedbacktest.GasArrays, stars []feedbacktest.AuditStar)
+		plant func(after *audit.GasArrays, stars []audit.Star)
 		want  string
 	}{
-		{"lost mass", func(a *feedbacktest.GasArrays, s []feedbacktest.AuditStar) {
+		{"lost mass", func(a *audit.GasArrays, s []audit.Star) {
 			// One touched element loses a tenth of what it received.
 			i := touchedIndex(a, s)
 			a.Mass[i] -= 0.1
 		}, "mass imbalance"},
-		{"wrong frame", func(a *feedbacktest.GasArrays, s []feedbacktest.AuditStar) {
+		{"wrong frame", func(a *audit.GasArrays, s []audit.Star) {
 			// The host forgot that ejecta move with their star: remove
 			// M v_star from the element nearest each star.
 			for _, st := range s {
@@ -48,14 +49,14 @@ func TestAuditCatchesPlantedErrors(t *testing.T) {
 				}
 			}
 		}, "momentum"},
-		{"one-sided momentum", func(a *feedbacktest.GasArrays, s []feedbacktest.AuditStar) {
+		{"one-sided momentum", func(a *audit.GasArrays, s []audit.Star) {
 			// Every touched element gets an extra push along +x.
 			for _, st := range s {
 				i := nearest(a, st)
 				a.Vel[0][i] += 5
 			}
 		}, "one-sided"},
-		{"untouched element changed", func(a *feedbacktest.GasArrays, s []feedbacktest.AuditStar) {
+		{"untouched element changed", func(a *audit.GasArrays, s []audit.Star) {
 			for i := range a.Mass {
 				if !anyInRange(a, s, i) {
 					a.Energy[i] *= 1.5
@@ -63,7 +64,7 @@ func TestAuditCatchesPlantedErrors(t *testing.T) {
 				}
 			}
 		}, "no star in range"},
-		{"negative energy", func(a *feedbacktest.GasArrays, s []feedbacktest.AuditStar) {
+		{"negative energy", func(a *audit.GasArrays, s []audit.Star) {
 			i := touchedIndex(a, s)
 			a.Energy[i] = -1
 		}, "negative internal energy"},
@@ -72,7 +73,7 @@ func TestAuditCatchesPlantedErrors(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			before, after, stars := makeDump(t)
 			c.plant(after, stars)
-			rep, err := feedbacktest.Audit(before, after, stars, feedbacktest.AuditOptions{})
+			rep, err := audit.Step(before, after, stars, audit.Options{})
 			require.NoError(t, err)
 			require.True(t, rep.Failed())
 			assert.True(t, strings.Contains(strings.Join(rep.Problems, "\n"), c.want), "want %q in %v", c.want, rep.Problems)
@@ -85,15 +86,15 @@ func TestAuditRejectsMismatchedDumps(t *testing.T) {
 	short := after.Clone()
 	short.Mass = short.Mass[:1]
 	short.ID = short.ID[:1]
-	_, err := feedbacktest.Audit(before, short, stars, feedbacktest.AuditOptions{})
+	_, err := audit.Step(before, short, stars, audit.Options{})
 	assert.Error(t, err)
 	renamed := after.Clone()
 	renamed.ID[0] = -99
-	_, err = feedbacktest.Audit(before, renamed, stars, feedbacktest.AuditOptions{})
+	_, err = audit.Step(before, renamed, stars, audit.Options{})
 	assert.Error(t, err)
 }
 
-func nearest(g *feedbacktest.GasArrays, s feedbacktest.AuditStar) int {
+func nearest(g *audit.GasArrays, s audit.Star) int {
 	best, bd := 0, 1e300
 	for i := range g.Mass {
 		d := 0.0
@@ -107,9 +108,9 @@ func nearest(g *feedbacktest.GasArrays, s feedbacktest.AuditStar) int {
 	return best
 }
 
-func touchedIndex(g *feedbacktest.GasArrays, s []feedbacktest.AuditStar) int { return nearest(g, s[0]) }
+func touchedIndex(g *audit.GasArrays, s []audit.Star) int { return nearest(g, s[0]) }
 
-func anyInRange(g *feedbacktest.GasArrays, s []feedbacktest.AuditStar, i int) bool {
+func anyInRange(g *audit.GasArrays, s []audit.Star, i int) bool {
 	for _, st := range s {
 		d := 0.0
 		for k := 0; k < 3; k++ {

@@ -1,0 +1,12 @@
+// Package audit checks one feedback step done by any code, ejecta or a
+// host's own injection, from a before/after dump: the gas before and after
+// the step (matched by ID) and each star's release and radiated energy.
+// Step checks that mass, every species, momentum and energy gained by the
+// gas equal the releases, that each star's kicks sum to zero in its own
+// frame, that no mass or internal energy went negative and that no element
+// out of every star's range changed, and names the elements behind every
+// failure.
+//
+// GasArrays holds gas in plain Go slices; View binds a feedback.Gas to it.
+// The ejecta command's audit reads a dump of .npy arrays into it.
+package audit

@@ -1,0 +1,58 @@
+package feedbacktest
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/feedback/audit"
+)
+
+// Dump runs scheme on a standard scenario (see Scenarios) and returns the
+// gas before and after one applied step, with each star's release and
+// radiated energy as an audit reads them: a dump made by ejecta itself,
+// for testing audits and as an example of the format's content. A star's
+// radius is the distance of the farthest element it touched.
+func Dump(scheme feedback.Scheme, scenario string, seed uint64) (before, after *audit.GasArrays, stars []audit.Star, err error) {
+	var sc *Scenario
+	all := Scenarios(seed)
+	for i := range all {
+		if all[i].Name == scenario {
+			sc = &all[i]
+		}
+	}
+	if sc == nil {
+		return nil, nil, nil, fmt.Errorf("dump: no scenario %q", scenario)
+	}
+	r, err := couple(scheme, *sc, Options{}.withDefaults(), 1, sc.Sources)
+	if err != nil {
+		return nil, nil, nil, fmt.Errorf("dump: %w", err)
+	}
+	if len(r.out.Problems) > 0 {
+		return nil, nil, nil, fmt.Errorf("dump: star %d: %w", r.out.Problems[0].StarID, r.out.Problems[0].Err)
+	}
+	radiated := 0.0
+	for _, s := range sc.Sources {
+		st := audit.Star{ID: s.Star.ID, Pos: s.Star.Pos, Vel: s.Star.Vel, Mass: s.Mass, Species: s.Species, Energy: s.Energy}
+		for _, rec := range r.out.Records {
+			if rec.StarID != s.Star.ID {
+				continue
+			}
+			st.Radiated += rec.Radiated
+			i := indexOf(sc.Gas, rec.GasID)
+			d := [3]float64{sc.Gas.Pos[0][i] - s.Star.Pos[0], sc.Gas.Pos[1][i] - s.Star.Pos[1], sc.Gas.Pos[2][i] - s.Star.Pos[2]}
+			d = sc.Box.MinImage(d)
+			st.Radius = math.Max(st.Radius, math.Sqrt(d[0]*d[0]+d[1]*d[1]+d[2]*d[2])*(1+1e-12))
+		}
+		radiated += st.Radiated
+		stars = append(stars, st)
+	}
+	// Radiated energy Apply took back for coherent kicks is shared among
+	// the stars in proportion to what they radiated.
+	if radiated > 0 && r.report.Reclaimed > 0 {
+		for i := range stars {
+			stars[i].Radiated -= r.report.Reclaimed * stars[i].Radiated / radiated
+		}
+	}
+	return sc.Gas.Clone(), r.gas, stars, nil
+}
