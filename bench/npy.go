@@ -32,6 +32,11 @@ import (
 //	metallicity.npy      (n,)    metal mass fractions (optional; none tracked if absent)
 //	stars.npy            (s, 3)  star positions (optional)      [length]
 //
+// On a periodic axis of the box every gas and star position must lie in
+// [0, L) (ErrOutsideBox); on an open axis every star must lie within the
+// extent of the gas (ErrStarOutsideGas), since a star outside it has all
+// its gas on one side and no coupling can be isotropic there.
+//
 // Without stars.npy one star is placed at the densest element. Each star
 // releases one supernova (SupernovaEnergyErg, EjectaMassMsun) at rest in
 // the code frame, with the metallicity of the gas nearest to it (solar when
@@ -45,6 +50,14 @@ const (
 	GasIDsFile            = "id.npy"
 	GasMetallicityFile    = "metallicity.npy"
 	StarPositionsFile     = "stars.npy"
+)
+
+// Errors of ReadGasDir, for errors.Is.
+var (
+	// ErrOutsideBox marks a gas or star position outside the periodic box.
+	ErrOutsideBox = errors.New("position outside the periodic box")
+	// ErrStarOutsideGas marks a star outside the extent of the gas.
+	ErrStarOutsideGas = errors.New("star outside the gas")
 )
 
 // ReadGasDir reads a user's gas from the .npy arrays in dir (see
@@ -143,6 +156,9 @@ func ReadGasDir(dir string, u units.CodeUnits, box neighbor.Box) (*Case, error) 
 	if ns == 0 {
 		return nil, fmt.Errorf("read gas %s: %s holds no stars", dir, StarPositionsFile)
 	}
+	if err := checkInside(pos, starPos, box); err != nil {
+		return nil, fmt.Errorf("read gas %s: %w", dir, err)
+	}
 	tree, err := neighbor.NewTree(g.Packed(), g.ID, box)
 	if err != nil {
 		return nil, fmt.Errorf("read gas %s: %w", dir, err)
@@ -170,6 +186,44 @@ func ReadGasDir(dir string, u units.CodeUnits, box neighbor.Box) (*Case, error) 
 	}
 	c.GasMassMsun = total / float64(n) * u.MassG / units.SolarMass
 	return c, nil
+}
+
+// checkInside checks the gas and star positions (row-major, 3 per row)
+// against the box: on a periodic axis all of them lie in [0, L); on an open
+// axis the stars lie within the gas's extent.
+func checkInside(gas, stars []float64, box neighbor.Box) error {
+	axes := [3]string{"x", "y", "z"}
+	var lo, hi [3]float64
+	for a := 0; a < 3; a++ {
+		lo[a], hi[a] = math.Inf(1), math.Inf(-1)
+	}
+	for i := 0; i < len(gas)/3; i++ {
+		for a := 0; a < 3; a++ {
+			x := gas[3*i+a]
+			if L := box.Size[a]; L > 0 && !(x >= 0 && x < L) {
+				return fmt.Errorf("%s: element %d has %s = %g, outside [0, %g) (-box-size): %w",
+					GasPositionsFile, i, axes[a], x, L, ErrOutsideBox)
+			}
+			lo[a], hi[a] = math.Min(lo[a], x), math.Max(hi[a], x)
+		}
+	}
+	for s := 0; s < len(stars)/3; s++ {
+		for a := 0; a < 3; a++ {
+			x := stars[3*s+a]
+			if L := box.Size[a]; L > 0 {
+				if !(x >= 0 && x < L) {
+					return fmt.Errorf("%s: star %d has %s = %g, outside [0, %g) (-box-size): %w",
+						StarPositionsFile, s, axes[a], x, L, ErrOutsideBox)
+				}
+				continue
+			}
+			if x < lo[a] || x > hi[a] {
+				return fmt.Errorf("%s: star %d has %s = %g, outside the gas's extent [%g, %g] on that axis: all its gas would lie on one side: %w",
+					StarPositionsFile, s, axes[a], x, lo[a], hi[a], ErrStarOutsideGas)
+			}
+		}
+	}
+	return nil
 }
 
 // readArray reads dir/name as float64s with the given number of columns

@@ -11,6 +11,7 @@ import (
 	"github.com/stretchr/testify/require"
 	"gonum.org/v1/gonum/mat"
 
+	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
@@ -161,4 +162,55 @@ func TestReadGasDirRejectsBadInput(t *testing.T) {
 	}
 	_, err := ReadGasDir(t.TempDir(), units.CodeUnits{}, neighbor.Box{})
 	assert.Error(t, err, "zero units")
+}
+
+// Positions outside a stated periodic box are refused, not wrapped; a star
+// outside the gas's extent on an open axis is refused (its gas would all
+// lie on one side); one on the edge of the extent is accepted.
+func TestReadGasDirChecksPositions(t *testing.T) {
+	c := build(t, "uniform-lattice", CaseSpec{DensityCm3: 1, GasMassMsun: 10, Elements: 512, Seed: 1})
+	require.True(t, c.Box.Periodic())
+	L := c.Box.Size[0]
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, x := range c.Gas.Pos[1] {
+		lo, hi = math.Min(lo, x), math.Max(hi, x)
+	}
+	tests := []struct {
+		name  string
+		box   neighbor.Box
+		gas   func(g *[3][]float64)
+		star  [3]float64
+		want  error
+		where string
+	}{
+		{"inside the box", c.Box, nil, [3]float64{0, 0.5 * L, 0.999 * L}, nil, ""},
+		{"gas at L", c.Box, func(g *[3][]float64) { g[2][7] = L }, [3]float64{1, 1, 1}, ErrOutsideBox, "element 7 has z"},
+		{"gas below 0", c.Box, func(g *[3][]float64) { g[0][3] = -1e-9 * L }, [3]float64{1, 1, 1}, ErrOutsideBox, "element 3 has x"},
+		{"star outside the box", c.Box, nil, [3]float64{1, 1.5 * L, 1}, ErrOutsideBox, "star 0 has y"},
+		{"open box, star on the gas's edge", neighbor.Box{}, nil, [3]float64{0.5 * L, lo, 0.5 * L}, nil, ""},
+		{"open box, star beyond the gas", neighbor.Box{}, nil, [3]float64{0.5 * L, hi + 1e-6*L, 0.5 * L}, ErrStarOutsideGas, "star 0 has y"},
+		{"open box, gas anywhere", neighbor.Box{}, func(g *[3][]float64) { g[0][0] = -10 * L }, [3]float64{0.5 * L, 0.5 * L, 0.5 * L}, nil, ""},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			cc := *c
+			g := c.Gas.Clone()
+			cc.Gas = g
+			if tc.gas != nil {
+				tc.gas(&g.Pos)
+			}
+			cc.Stars = []feedback.Star{{ID: 1, Pos: tc.star}}
+			dir := t.TempDir()
+			writeGasDir(t, dir, &cc, Units(), true)
+			got, err := ReadGasDir(dir, Units(), tc.box)
+			if tc.want == nil {
+				require.NoError(t, err)
+				assert.Equal(t, tc.star, got.Stars[0].Pos)
+				return
+			}
+			require.ErrorIs(t, err, tc.want)
+			assert.Contains(t, err.Error(), tc.where)
+			assert.Nil(t, got)
+		})
+	}
 }

@@ -3,7 +3,9 @@ package bench
 import (
 	"encoding/csv"
 	"encoding/json"
+	"errors"
 	"fmt"
+	"io/fs"
 	"math"
 	"os"
 	"path/filepath"
@@ -18,10 +20,20 @@ const (
 	IsotropyFile    = "isotropy.csv"
 	EnergyFile      = "energy.csv"
 	SpeedFile       = "speed.csv"
+	// SpeedFigureFile is the speed plot, written when speed was measured.
+	SpeedFigureFile = "speed.png"
 )
 
+// csvDigits is the number of significant digits of the CSV tables: enough
+// for any comparison the tables serve, without float64 round-off noise
+// (1.0000000000000004). results.json carries the full values.
+const csvDigits = 6
+
 // WriteResults writes results.json, one CSV per table and the plots into
-// dir (created if missing) and returns the paths written, in order.
+// dir (created if missing) and returns the paths written, in order. A table
+// with no rows (the speed table when the measurement was skipped) is not
+// written, and neither is its plot; a file of that name left by an earlier
+// run in dir is removed, so the folder never mixes two runs.
 func WriteResults(dir string, res *Result) ([]string, error) {
 	if res == nil {
 		return nil, fmt.Errorf("write results: nil result")
@@ -48,6 +60,12 @@ func WriteResults(dir string, res *Result) ([]string, error) {
 	}
 	for _, t := range tables {
 		p := filepath.Join(dir, t.name)
+		if reflect.ValueOf(t.rows).Len() == 0 {
+			if err := removeStale(p); err != nil {
+				return written, fmt.Errorf("write results: %w", err)
+			}
+			continue
+		}
 		if err := writeCSV(p, t.rows); err != nil {
 			return written, fmt.Errorf("write results: %w", err)
 		}
@@ -57,6 +75,11 @@ func WriteResults(dir string, res *Result) ([]string, error) {
 	if err != nil {
 		return written, fmt.Errorf("write results: %w", err)
 	}
+	if len(res.Speed) == 0 {
+		if err := removeStale(filepath.Join(dir, SpeedFigureFile)); err != nil {
+			return written, fmt.Errorf("write results: %w", err)
+		}
+	}
 	for _, f := range figs {
 		p := filepath.Join(dir, f.File)
 		if err := f.SavePNG(p); err != nil {
@@ -65,6 +88,14 @@ func WriteResults(dir string, res *Result) ([]string, error) {
 		written = append(written, p)
 	}
 	return written, nil
+}
+
+// removeStale removes a file an earlier run left, if any.
+func removeStale(path string) error {
+	if err := os.Remove(path); err != nil && !errors.Is(err, fs.ErrNotExist) {
+		return fmt.Errorf("remove stale %s: %w", path, err)
+	}
+	return nil
 }
 
 // writeCSV writes a slice of flat structs as CSV, one column per field,
@@ -128,7 +159,7 @@ func formatCell(v reflect.Value) string {
 		if math.IsNaN(x) || math.IsInf(x, 0) {
 			return ""
 		}
-		return strconv.FormatFloat(x, 'g', -1, 64)
+		return strconv.FormatFloat(x, 'g', csvDigits, 64)
 	case reflect.Int, reflect.Int64:
 		return strconv.FormatInt(v.Int(), 10)
 	case reflect.String:

@@ -13,6 +13,9 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/neighbor"
 )
 
 // smallResult runs two set-ups at two densities and three resolutions,
@@ -156,4 +159,53 @@ func TestWriteResultsErrors(t *testing.T) {
 	require.NoError(t, os.WriteFile(blocker, nil, 0o644))
 	_, err = WriteResults(filepath.Join(blocker, "out"), &Result{})
 	assert.Error(t, err)
+}
+
+// A run without a speed measurement writes no speed table or plot and
+// removes those of an earlier run; a single gas mass (a user's own gas)
+// still plots on log axes; a set-up with one-sided stars says so under
+// its isotropy bars.
+func TestWriteResultsSingleCaseWithoutSpeed(t *testing.T) {
+	c := build(t, "uniform-lattice", CaseSpec{DensityCm3: 1, GasMassMsun: 10, Elements: 512, Seed: 1})
+	schemes, err := SelectSchemes([]string{"terminal-momentum", "thermal-dump"})
+	require.NoError(t, err)
+	dir := t.TempDir()
+	withSpeed, err := RunCase(c, 16, SpeedSpec{Stars: 1, MinRounds: 1}, Options{Schemes: schemes})
+	require.NoError(t, err)
+	require.NotEmpty(t, withSpeed.Speed)
+	_, err = WriteResults(dir, withSpeed)
+	require.NoError(t, err)
+	require.FileExists(t, filepath.Join(dir, SpeedFile))
+	require.FileExists(t, filepath.Join(dir, SpeedFigureFile))
+
+	// The same star moved to a corner of the lattice, outside its first
+	// element: all its gas on one side.
+	corner := *c
+	corner.Stars = []feedback.Star{c.Stars[0]}
+	corner.Stars[0].Pos = [3]float64{}
+	corner.Box = neighbor.Box{}
+	res, err := RunCase(&corner, 16, SpeedSpec{}, Options{Schemes: schemes})
+	require.NoError(t, err)
+	require.Empty(t, res.Speed)
+	for _, r := range res.Isotropy {
+		assert.Equal(t, 1, r.OneSidedStars)
+	}
+	files, err := WriteResults(dir, res)
+	require.NoError(t, err)
+	assert.NoFileExists(t, filepath.Join(dir, SpeedFile))
+	assert.NoFileExists(t, filepath.Join(dir, SpeedFigureFile))
+	for _, f := range files {
+		assert.NotContains(t, f, "speed")
+	}
+	assert.FileExists(t, filepath.Join(dir, "momentum_uniform-lattice.png"))
+	figs, err := Figures(res)
+	require.NoError(t, err)
+	for _, f := range figs {
+		if f.File == "isotropy.png" {
+			x := f.Panels[0][0].X
+			ticks := x.Tick.Marker.Ticks(x.Min, x.Max)
+			require.NotEmpty(t, ticks)
+			assert.Contains(t, ticks[0].Label, "1 one-sided")
+		}
+	}
 }

@@ -224,6 +224,11 @@ func momentumFigure(res *Result, setup string) (*Figure, error) {
 			p.Add(l)
 			add(ref.name, l)
 		}
+		// A single gas mass (a user's own gas) or equal momenta give an
+		// empty log range, which the plot would widen linearly past zero:
+		// widen it by a factor instead.
+		widenLogRange(&p.X.Min, &p.X.Max)
+		widenLogRange(&p.Y.Min, &p.Y.Max)
 		p.Legend.Top, p.Legend.Left = true, true
 		p.Legend.TextStyle.Font.Size = vg.Points(7)
 		if di == 0 {
@@ -232,6 +237,14 @@ func momentumFigure(res *Result, setup string) (*Figure, error) {
 		fig.Panels[di/cols][di%cols] = p
 	}
 	return fig, nil
+}
+
+// widenLogRange spreads an empty positive axis range to a factor of 3 on
+// each side.
+func widenLogRange(lo, hi *float64) {
+	if *lo == *hi && *lo > 0 {
+		*lo, *hi = *lo/3, *hi*3
+	}
 }
 
 // logBar maps a residual onto a bar height: decades above 1e-16.
@@ -280,7 +293,19 @@ func isotropyFigure(res *Result) (*Figure, error) {
 	// Head room above a residual of one keeps the legend clear of the bars.
 	p.Y.Min, p.Y.Max = 0, residualFloorDecades+6
 	p.Y.Tick.Marker = residualTicks{}
-	nominalBars(p, setups)
+	// A set-up with stars whose gas is all on one side says so under its
+	// bars: no correction can balance those stars.
+	labels := make([]string, len(setups))
+	for i, s := range setups {
+		labels[i] = s
+		for _, r := range res.Isotropy {
+			if r.Setup == s && r.OneSidedStars > 0 {
+				labels[i] = fmt.Sprintf("%s (%d one-sided, uncorrectable)", s, r.OneSidedStars)
+				break
+			}
+		}
+	}
+	nominalBars(p, labels)
 	fig := &Figure{File: "isotropy.png", Width: 9 * vg.Inch, Height: 5 * vg.Inch}
 	w := vg.Points(math.Min(18, 360/float64(len(setups)*max(len(schemes), 1))))
 	for si, name := range schemes {
@@ -404,7 +429,7 @@ func speedFigure(res *Result) (*Figure, error) {
 	p1.X.Label.Text = "scheme"
 	p1.Y.Label.Text = "stars per second [1/s]"
 	nominalBars(p1, names)
-	fig := &Figure{File: "speed.png", Width: 10 * vg.Inch, Height: 4.5 * vg.Inch}
+	fig := &Figure{File: SpeedFigureFile, Width: 10 * vg.Inch, Height: 4.5 * vg.Inch}
 	for i, v := range []struct {
 		vals plotter.Values
 		name string

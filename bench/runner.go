@@ -150,10 +150,12 @@ type Result struct {
 	Speed              []Speed        `json:"speed"`
 }
 
-// SchemeInfo names and describes a compared variant.
+// SchemeInfo names and describes a compared variant; IsotropyCorrected
+// says whether its weights went through the isotropy correction.
 type SchemeInfo struct {
-	Name        string `json:"name"`
-	Description string `json:"description"`
+	Name              string `json:"name"`
+	Description       string `json:"description"`
+	IsotropyCorrected bool   `json:"isotropy_corrected"`
 }
 
 // SetupInfo names and describes a set-up.
@@ -195,12 +197,18 @@ type Convergence struct {
 // radial momenta before the net vector was removed (the coupler always
 // removes it to conserve momentum). Zero for schemes that hand out no
 // radial momentum.
+//
+// OneSidedStars counts, over the set-up's cases, the stars whose coupled
+// gas lies entirely in one closed half-space through them (see OneSided):
+// no positive weights balance those, so a corrected scheme's residual
+// there is what the correction could not remove, not a corrected figure.
 type Isotropy struct {
-	Scheme       string  `json:"scheme"`
-	Setup        string  `json:"setup"`
-	Residual     float64 `json:"residual"`
-	MeanResidual float64 `json:"mean_residual"`
-	Stars        int     `json:"stars"`
+	Scheme        string  `json:"scheme"`
+	Setup         string  `json:"setup"`
+	Residual      float64 `json:"residual"`
+	MeanResidual  float64 `json:"mean_residual"`
+	Stars         int     `json:"stars"`
+	OneSidedStars int     `json:"one_sided_stars"`
 }
 
 // EnergyBudget is where one scheme put the energy in one case, as
@@ -321,7 +329,8 @@ func run(cases []caseSource, speedCase *Case, neighbors int, speed SpeedSpec, op
 	res := &Result{Units: "pc, Msun, km/s (momenta in Msun km/s)", Neighbors: neighbors,
 		SupernovaEnergyErg: SupernovaEnergyErg, EjectaMassMsun: EjectaMassMsun, TerminalFit: TerminalFit.String()}
 	for _, s := range schemes {
-		res.Schemes = append(res.Schemes, SchemeInfo{Name: s.Name, Description: s.Description})
+		res.Schemes = append(res.Schemes, SchemeInfo{Name: s.Name, Description: s.Description,
+			IsotropyCorrected: !s.SkipIsotropyCorrection})
 	}
 	total := len(cases) * len(schemes)
 	if speedCase != nil {
@@ -350,6 +359,10 @@ func run(cases []caseSource, speedCase *Case, neighbors int, speed SpeedSpec, op
 		sources := supernovae(c)
 		gas := c.Gas.View()
 		k := min(neighbors, c.Gas.Len())
+		oneSided, err := countOneSided(c, tree, k)
+		if err != nil {
+			return nil, fmt.Errorf("run: set-up %s: %w", c.Setup, err)
+		}
 		for _, s := range schemes {
 			cp, err := newCoupler(s, c, k, opts.Workers)
 			if err != nil {
@@ -372,6 +385,7 @@ func run(cases []caseSource, speedCase *Case, neighbors int, speed SpeedSpec, op
 			r.Residual = math.Max(r.Residual, out.Ledger.MaxIsotropyResidual)
 			r.MeanResidual += out.Ledger.SumIsotropyResidual
 			r.Stars += coupled
+			r.OneSidedStars += oneSided
 			step()
 		}
 	}

@@ -3,7 +3,6 @@ package main
 import (
 	"encoding/json"
 	"errors"
-	"flag"
 	"fmt"
 	"io"
 	"os"
@@ -74,19 +73,27 @@ type auditStarsFiles struct {
 	EjectaSpecies map[string]string `json:"ejecta_species"`
 }
 
+var auditCommand = subcommand{
+	name:     "audit",
+	synopsis: "-manifest FILE [flags]",
+	description: "Checks one feedback step of any code, ejecta's or your own, from its before/after dump: " +
+		"the gas columns before and after and each star's release, as NumPy .npy arrays named by a JSON manifest " +
+		"(format in \"go doc ./bench/cmd/ejecta\"). It checks that mass, every species, momentum and energy " +
+		"balance, that each star's momentum nets to zero in its own frame, and that no element gained " +
+		"out of range or went negative; the exit status is 1 when a check fails.",
+}
+
 func runAudit(args []string, stdout, stderr io.Writer) int {
-	fs := flag.NewFlagSet("audit", flag.ContinueOnError)
-	fs.SetOutput(stderr)
+	fs := auditCommand.newFlagSet()
 	manifest := fs.String("manifest", "", "JSON manifest naming the .npy arrays of the step (required)")
 	tol := fs.Float64("tol", 1e-10, "largest relative imbalance accepted for each conserved quantity")
 	isoTol := fs.Float64("isotropy-tol", 1e-6, "largest net star-frame momentum accepted, as a fraction of the momentum handed out")
 	asJSON := fs.Bool("json", false, "print the report as JSON")
-	if err := fs.Parse(args); err != nil {
-		return 2
+	if code, ok := auditCommand.parseFlags(fs, args, stdout, stderr); !ok {
+		return code
 	}
 	if *manifest == "" {
-		fmt.Fprintln(stderr, "ejecta audit: -manifest is required")
-		fs.Usage()
+		fmt.Fprintln(stderr, "ejecta audit: -manifest is required; run \"ejecta audit -h\" for the flags")
 		return 2
 	}
 	before, after, stars, box, err := loadAudit(*manifest)

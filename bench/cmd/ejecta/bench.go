@@ -1,7 +1,6 @@
 package main
 
 import (
-	"flag"
 	"fmt"
 	"io"
 	"math"
@@ -26,36 +25,38 @@ type benchFlags struct {
 	skipSpeed, quiet, list              bool
 }
 
+var benchCommand = subcommand{
+	name:     "bench",
+	synopsis: "[flags]",
+	description: "Compares the coupling schemes on the same gas: the built-in set-ups " +
+		"(uniform lattice, glass, a star at the edge of a dense slab, and the clumpy-cloud demo) " +
+		"at several densities and gas element masses, or your own gas read from .npy arrays with -gas. " +
+		"For each scheme it reports the radial momentum handed out per supernova against the " +
+		"energy-conserving and terminal-momentum references, the isotropy residual, where the " +
+		"energy went, and the speed against a touch-only floor; it writes results.json, one CSV " +
+		"per table and PNG plots to -out and prints a summary.",
+}
+
 func runBench(args []string, stdout, stderr io.Writer) int {
-	fs := flag.NewFlagSet("bench", flag.ContinueOnError)
-	fs.SetOutput(stderr)
+	fs := benchCommand.newFlagSet()
 	var f benchFlags
 	fs.StringVar(&f.suite, "suite", "quick", "suite to run: quick (seconds) or full (more resolutions, longer timing)")
 	fs.StringVar(&f.schemes, "schemes", "", "comma-separated schemes to compare (default all; see -list)")
 	fs.StringVar(&f.setups, "setups", "", "comma-separated built-in set-ups to run (default all; see -list)")
 	fs.StringVar(&f.out, "out", "ejecta-out", "directory receiving results.json, the CSV tables and the PNG plots")
-	fs.StringVar(&f.gasDir, "gas", "", "directory of .npy arrays holding your own gas (pos, vel, mass, density, internal_energy; optional id, metallicity, stars); replaces the built-in set-ups")
-	fs.Float64Var(&f.lengthCm, "length-unit-cm", units.Parsec, "with -gas: cm per code length unit (default 1 pc)")
-	fs.Float64Var(&f.massG, "mass-unit-g", units.SolarMass, "with -gas: g per code mass unit (default 1 Msun)")
-	fs.Float64Var(&f.velocityCmPS, "velocity-unit-cms", units.Kilometre, "with -gas: cm/s per code velocity unit (default 1 km/s)")
-	fs.Float64Var(&f.boxSize, "box-size", 0, "with -gas: side of the periodic cubic box in code length units (0: open box)")
+	fs.StringVar(&f.gasDir, "gas", "", "directory of .npy arrays holding your own gas (pos, vel, mass, density, internal_energy; optional id, metallicity, stars); replaces the built-in set-ups. Every position must lie in the box of -box-size; a star outside the region the gas fills is refused")
+	fs.Float64Var(&f.lengthCm, "length-unit-cm", units.Parsec, "with -gas: cm per code length unit (default 3.0857e18, 1 pc)")
+	fs.Float64Var(&f.massG, "mass-unit-g", units.SolarMass, "with -gas: g per code mass unit (default 1.9884e33, 1 Msun)")
+	fs.Float64Var(&f.velocityCmPS, "velocity-unit-cms", units.Kilometre, "with -gas: cm/s per code velocity unit (default 1e5, 1 km/s)")
+	fs.Float64Var(&f.boxSize, "box-size", 0, "with -gas: side of the periodic cubic box [0, L) in code length units (0: open box)")
 	fs.IntVar(&f.neighbors, "neighbors", 0, "gas elements each star couples to (0: the suite's, 64)")
 	fs.IntVar(&f.workers, "workers", 1, "goroutines per coupler (results other than speed do not depend on it)")
 	fs.Uint64Var(&f.seed, "seed", 0, "seed of the built-in set-ups (0: the suite's)")
-	fs.BoolVar(&f.skipSpeed, "skip-speed", false, "skip the speed measurement")
+	fs.BoolVar(&f.skipSpeed, "skip-speed", false, "skip the speed measurement (no speed table or plot is written)")
 	fs.BoolVar(&f.quiet, "quiet", false, "no progress bar")
 	fs.BoolVar(&f.list, "list", false, "list the schemes and set-ups and exit")
-	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: ejecta bench [flags]")
-		fmt.Fprintln(stderr, "Compares coupling schemes on standard gas set-ups (or your own gas with -gas):")
-		fmt.Fprintln(stderr, "radial momentum against resolution, isotropy, energy budget and speed.")
-		fs.PrintDefaults()
-	}
-	if err := fs.Parse(args); err != nil {
-		if err == flag.ErrHelp {
-			return 0
-		}
-		return 2
+	if code, ok := benchCommand.parseFlags(fs, args, stdout, stderr); !ok {
+		return code
 	}
 	if fs.NArg() > 0 {
 		fmt.Fprintf(stderr, "ejecta bench: unexpected arguments %q\n", fs.Args())
@@ -191,31 +192,47 @@ func (p *progress) finish() {
 }
 
 // summarise prints the headline figures: speed, worst isotropy residual
-// per set-up, and the momentum at the reference density on each set-up.
+// per set-up, and the momentum at the reference density on each set-up,
+// each table followed by what its columns mean.
 func summarise(w io.Writer, res *bench.Result) {
-	fmt.Fprintf(w, "ejecta bench: suite %s, %d schemes, %d set-ups, %d neighbors, one %.0e erg SN with %g Msun ejecta per star\n",
+	fmt.Fprintf(w, "ejecta bench: suite %s, %d schemes, %d set-ups, %d neighbors, one %.3g erg SN with %g Msun ejecta per star\n",
 		res.Suite, len(res.Schemes), len(res.Setups), res.Neighbors, res.SupernovaEnergyErg, res.EjectaMassMsun)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	if len(res.Speed) > 0 {
-		fmt.Fprintf(w, "\nspeed on %s (%d stars, %d neighbors):\n", res.Speed[0].Setup, res.Speed[0].Stars, res.Speed[0].Neighbors)
+		fmt.Fprintf(w, "\nspeed on %s (%d stars, %d neighbors each):\n", res.Speed[0].Setup, res.Speed[0].Stars, res.Speed[0].Neighbors)
 		fmt.Fprintln(tw, "scheme\tstars/s\telements/s\ttouch ratio\t")
 		for _, r := range res.Speed {
-			fmt.Fprintf(tw, "%s\t%.4g\t%.4g\t%.3g\t\n", r.Scheme, r.StarsPerS, r.TouchedPerS, r.TouchRatio)
+			fmt.Fprintf(tw, "%s\t%.3g\t%.3g\t%.2f\t\n", r.Scheme, r.StarsPerS, r.TouchedPerS, r.TouchRatio)
 		}
 		tw.Flush()
+		printLegend(w,
+			"stars/s: stars whose release is coupled (Couple) and applied (Apply) per second, fastest pass",
+			"elements/s: gas elements written per second in those passes",
+			"touch ratio: the scheme's time over the touch-only floor's (the same neighbor search, reads and "+
+				"writes of the same gas fields, no physics), timed alternately in the same run; 1 would be the memory floor")
 	}
-	fmt.Fprintln(w, "\nworst isotropy residual |sum p|/sum |p| before the net is removed:")
+
+	fmt.Fprintln(w, "\nworst isotropy residual per set-up (worst star over its cases):")
+	oneSided := map[string]int{}
+	for _, r := range res.Isotropy {
+		oneSided[r.Setup] = max(oneSided[r.Setup], r.OneSidedStars)
+	}
 	header := "scheme\t"
 	for _, s := range res.Setups {
 		header += s.Name + "\t"
 	}
 	fmt.Fprintln(tw, header)
+	marked := false
 	for _, sc := range res.Schemes {
 		line := sc.Name + "\t"
 		for _, s := range res.Setups {
 			for _, r := range res.Isotropy {
 				if r.Scheme == sc.Name && r.Setup == s.Name {
-					line += fmt.Sprintf("%.2g", r.Residual)
+					line += formatResidual(r.Residual)
+					if sc.IsotropyCorrected && r.OneSidedStars > 0 {
+						line += "*"
+						marked = true
+					}
 				}
 			}
 			line += "\t"
@@ -223,9 +240,27 @@ func summarise(w io.Writer, res *bench.Result) {
 		fmt.Fprintln(tw, line)
 	}
 	tw.Flush()
+	printLegend(w,
+		"residual: |sum p_j| / sum |p_j| of the radial momenta handed to the neighbors, before the coupler "+
+			"removes their net vector to conserve momentum; 0 is a perfectly balanced star, 1 all gas on one side. "+
+			"Schemes whose name ends in -uncorrected share by kernel-volume weights alone; the others after the isotropy "+
+			"correction. Values below 1e-9 are round-off of a balanced correction")
+	for _, s := range res.Setups {
+		if n := oneSided[s.Name]; n > 0 {
+			mark := ""
+			if marked {
+				mark = "* "
+			}
+			printLegend(w, fmt.Sprintf("%s%s: %d stars have all their coupled gas on one side (in one closed half-space); "+
+				"no strictly positive weights balance them, so the correction either leaves a residual or reaches balance "+
+				"only by giving the gas off their boundary plane vanishing weights: the residual there is not the figure "+
+				"of a corrected, isotropic coupling", mark, s.Name, n))
+		}
+	}
+
 	for _, s := range res.Setups {
 		n := referenceDensity(res, s.Name)
-		fmt.Fprintf(w, "\nradial momentum per SN [Msun km/s] on %s at n = %g cm^-3:\n", s.Name, n)
+		fmt.Fprintf(w, "\nradial momentum per SN [Msun km/s] on %s at n = %g cm^-3, by gas element mass:\n", s.Name, n)
 		header := "gas mass [Msun]\t"
 		for _, sc := range res.Schemes {
 			header += sc.Name + "\t"
@@ -239,7 +274,7 @@ func summarise(w io.Writer, res *bench.Result) {
 			}
 		}
 		for _, m := range masses {
-			line := fmt.Sprintf("%g\t", m)
+			line := fmt.Sprintf("%.4g\t", m)
 			var ec, pt float64
 			for _, sc := range res.Schemes {
 				for _, r := range res.Convergence {
@@ -255,6 +290,38 @@ func summarise(w io.Writer, res *bench.Result) {
 			fmt.Fprintln(tw, line)
 		}
 		tw.Flush()
+	}
+	if len(res.Setups) > 0 {
+		printLegend(w,
+			"gas mass: mass of one gas element; each star couples to its nearest neighbors, so the coupled mass grows with it",
+			"scheme columns: radial momentum the scheme handed out, sum_j dp_j . n_j in the star's frame, per supernova",
+			"energy-conserving: sqrt(2 E (M_ej + 0.28 M_sw)), the momentum of the ejecta and the coupled gas M_sw swept up "+
+				"without radiating (0.28: Sedov-Taylor kinetic fraction, Chevalier 1974)",
+			"terminal: the terminal momentum of a radiative remnant ("+res.TerminalFit+" fit) at each neighbor's density and "+
+				"metallicity, shared as the scheme shared the ejecta; a scheme should approach it once the coupled mass exceeds "+
+				"the shell-formation mass",
+			"every table at all densities is in convergence.csv; results.json has the same rows")
+	}
+}
+
+// formatResidual prints an isotropy residual to two digits, and those
+// below 1e-9 (round-off of a balanced correction) as such.
+func formatResidual(r float64) string {
+	if r == 0 {
+		return "0"
+	}
+	if r < 1e-9 {
+		return "<1e-9"
+	}
+	return fmt.Sprintf("%.2g", r)
+}
+
+// printLegend prints what a table's columns mean after a blank line, one
+// wrapped item each.
+func printLegend(w io.Writer, items ...string) {
+	fmt.Fprintln(w)
+	for _, it := range items {
+		fmt.Fprintln(w, indentText(wrapText(it, 76), "  "))
 	}
 }
 

@@ -7,7 +7,9 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strconv"
+	"strings"
 	"testing"
 
 	"codeberg.org/sbinet/npyio"
@@ -87,39 +89,70 @@ func writeNpy(t *testing.T, dir, name string, v any) {
 	require.NoError(t, f.Close())
 }
 
+// writeLatticeGas writes a side^3 cube of 1 Msun elements at n = 1 cm^-3,
+// as .npy arrays in cgs units, with stars at the given positions in units
+// of the lattice spacing (none: no stars.npy), and returns the spacing in
+// cm. Element (i, j, k) sits at ((i, j, k) + 0.5) spacings.
+func writeLatticeGas(t *testing.T, dir string, side int, stars [][3]float64) float64 {
+	t.Helper()
+	return writeLatticeGasKeep(t, dir, side, stars, nil)
+}
+
+// writeLatticeGasKeep is writeLatticeGas keeping only the lattice layers
+// k for which keepLayer(k) is true (nil keeps all).
+func writeLatticeGasKeep(t *testing.T, dir string, side int, stars [][3]float64, keepLayer func(k int) bool) float64 {
+	t.Helper()
+	msun := units.SolarMass
+	rho := feedback.MassPerHydrogen * units.ProtonMass // n_H = 1 cm^-3
+	d := math.Cbrt(msun / rho)
+	var xyz, v []float64
+	var mass, dens []float64
+	var eint []float32
+	var ids []int32
+	for i := 0; i < side*side*side; i++ {
+		k := i / (side * side)
+		if keepLayer != nil && !keepLayer(k) {
+			continue
+		}
+		xyz = append(xyz, (float64(i%side)+0.5)*d, (float64(i/side%side)+0.5)*d, (float64(k)+0.5)*d)
+		v = append(v, 1e5, 0, 0)
+		mass, dens, eint = append(mass, msun), append(dens, rho), append(eint, 1e12)
+		ids = append(ids, int32(1000+i))
+	}
+	n := len(mass)
+	pos := mat.NewDense(n, 3, xyz)
+	vel := mat.NewDense(n, 3, v)
+	writeNpy(t, dir, "pos.npy", pos)
+	writeNpy(t, dir, "vel.npy", vel)
+	writeNpy(t, dir, "mass.npy", mass)
+	writeNpy(t, dir, "density.npy", dens)
+	writeNpy(t, dir, "internal_energy.npy", eint)
+	writeNpy(t, dir, "id.npy", ids)
+	if len(stars) > 0 {
+		st := mat.NewDense(len(stars), 3, nil)
+		for s, p := range stars {
+			for a := 0; a < 3; a++ {
+				st.Set(s, a, p[a]*d)
+			}
+		}
+		writeNpy(t, dir, "stars.npy", st)
+	}
+	return d
+}
+
+// cgsFlags state cgs code units for a -gas run.
+var cgsFlags = []string{"-length-unit-cm", "1", "-mass-unit-g", "1", "-velocity-unit-cms", "1"}
+
 // A user's own gas, as .npy arrays in cgs units: a 10^3 cube of 1 Msun
 // elements at n = 1 cm^-3 with two stars in it.
 func TestBenchCommandUserGas(t *testing.T) {
 	gasDir, outDir := t.TempDir(), t.TempDir()
 	const side = 10
-	n := side * side * side
-	msun := units.SolarMass
-	rho := feedback.MassPerHydrogen * units.ProtonMass // n_H = 1 cm^-3
-	d := math.Cbrt(msun / rho)
-	pos := mat.NewDense(n, 3, nil)
-	vel := mat.NewDense(n, 3, nil)
-	mass, dens, eint := make([]float64, n), make([]float64, n), make([]float32, n)
-	ids := make([]int32, n)
-	for i := 0; i < n; i++ {
-		pos.Set(i, 0, (float64(i%side)+0.5)*d)
-		pos.Set(i, 1, (float64(i/side%side)+0.5)*d)
-		pos.Set(i, 2, (float64(i/(side*side))+0.5)*d)
-		vel.Set(i, 0, 1e5)
-		mass[i], dens[i], eint[i] = msun, rho, 1e12
-		ids[i] = int32(1000 + i)
-	}
-	stars := mat.NewDense(2, 3, []float64{5 * d, 5 * d, 5 * d, 3 * d, 3 * d, 7 * d})
-	writeNpy(t, gasDir, "pos.npy", pos)
-	writeNpy(t, gasDir, "vel.npy", vel)
-	writeNpy(t, gasDir, "mass.npy", mass)
-	writeNpy(t, gasDir, "density.npy", dens)
-	writeNpy(t, gasDir, "internal_energy.npy", eint)
-	writeNpy(t, gasDir, "id.npy", ids)
-	writeNpy(t, gasDir, "stars.npy", stars)
+	d := writeLatticeGas(t, gasDir, side, [][3]float64{{5, 5, 5}, {3, 3, 7}})
 
-	code, stdout, stderr := runCLI("bench", "-gas", gasDir, "-out", outDir, "-quiet",
-		"-length-unit-cm", "1", "-mass-unit-g", "1", "-velocity-unit-cms", "1",
-		"-box-size", formatFloat(side*d), "-neighbors", "32", "-schemes", "thermal-dump,terminal-momentum")
+	args := append([]string{"bench", "-gas", gasDir, "-out", outDir, "-quiet",
+		"-box-size", formatFloat(side * d), "-neighbors", "32", "-schemes", "thermal-dump,terminal-momentum"}, cgsFlags...)
+	code, stdout, stderr := runCLI(args...)
 	require.Equal(t, 0, code, stderr)
 	assert.Contains(t, stdout, "user-gas")
 	res := readResult(t, outDir)
@@ -185,3 +218,151 @@ func TestBenchCommandList(t *testing.T) {
 }
 
 func formatFloat(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+
+// -gas refuses gas or stars outside the stated periodic box and stars
+// outside the gas's extent in an open box, naming the file, the element and
+// the coordinate.
+func TestBenchCommandUserGasPositions(t *testing.T) {
+	const side = 6
+	tests := []struct {
+		name  string
+		stars [][3]float64
+		box   float64 // in lattice spacings; 0 = open
+		want  string
+	}{
+		{"gas outside the box", [][3]float64{{2, 2, 2}}, 5, "pos.npy: element 5 has x ="},
+		{"star outside the box", [][3]float64{{2, 2, 2}, {2, -0.1, 2}}, side, "stars.npy: star 1 has y = "},
+		{"star outside the gas", [][3]float64{{2, 2, 6.2}}, 0, "stars.npy: star 0 has z = "},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			gasDir := t.TempDir()
+			d := writeLatticeGas(t, gasDir, side, tc.stars)
+			args := append([]string{"bench", "-gas", gasDir, "-out", t.TempDir(), "-quiet", "-skip-speed",
+				"-box-size", formatFloat(tc.box * d)}, cgsFlags...)
+			code, stdout, stderr := runCLI(args...)
+			assert.Equal(t, 1, code)
+			assert.Empty(t, stdout)
+			assert.Contains(t, stderr, tc.want)
+		})
+	}
+}
+
+// Stars whose coupled gas is all on one side (accepted: they are within
+// the gas's extent) are not passed off as corrected: the table marks the
+// corrected schemes' residuals there and says why, and the CSV counts the
+// stars. Two cases: a star in the gap between two slabs, next to one of
+// them (strictly one-sided: a residual the correction cannot remove), and
+// a star on a face of the gas (balanced only by starving the gas off the
+// face: a tiny residual that is still not an isotropic coupling).
+func TestBenchCommandOneSidedStar(t *testing.T) {
+	tests := []struct {
+		name                       string
+		star                       [3]float64
+		keep                       func(k int) bool
+		correctedAbove, uncorAbove float64
+		correctedBelow             float64
+	}{
+		// Layers k <= 2 and k >= 7 only: the star 0.5 spacings above the
+		// lower slab's top layer (k = 2, z = 2.5) has its 32 nearest there.
+		{"gap between slabs", [3]float64{4, 4, 3}, func(k int) bool { return k <= 2 || k >= 7 }, 0.1, 0.1, 1},
+		// The lattice's lowest layer is at z = 0.5 spacings.
+		{"on a face", [3]float64{4, 4, 0.5}, nil, 0, 0.1, 1e-6},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			gasDir, outDir := t.TempDir(), t.TempDir()
+			writeLatticeGasKeep(t, gasDir, 8, [][3]float64{tc.star}, tc.keep)
+			args := append([]string{"bench", "-gas", gasDir, "-out", outDir, "-quiet", "-skip-speed", "-neighbors", "32",
+				"-schemes", "terminal-momentum,terminal-momentum-uncorrected"}, cgsFlags...)
+			code, stdout, stderr := runCLI(args...)
+			require.Equal(t, 0, code, stderr)
+			res := readResult(t, outDir)
+			require.Len(t, res.Isotropy, 2)
+			assert.True(t, res.Schemes[0].IsotropyCorrected)
+			assert.False(t, res.Schemes[1].IsotropyCorrected)
+			for _, r := range res.Isotropy {
+				assert.Equal(t, 1, r.OneSidedStars, r.Scheme)
+			}
+			assert.Greater(t, res.Isotropy[0].Residual, tc.correctedAbove)
+			assert.Less(t, res.Isotropy[0].Residual, tc.correctedBelow)
+			assert.Greater(t, res.Isotropy[1].Residual, tc.uncorAbove)
+			assert.Regexp(t, `\n +terminal-momentum +[<0-9.e-]+\*\n`, stdout)
+			assert.Regexp(t, `\n +terminal-momentum-uncorrected +[0-9.]+\n`, stdout, "uncorrected figures need no mark")
+			prose := strings.Join(strings.Fields(stdout), " ")
+			assert.Contains(t, prose, "* user-gas: 1 stars have all their coupled gas on one side")
+			assert.Contains(t, prose, "not the figure of a corrected, isotropic coupling")
+		})
+	}
+}
+
+// A lattice star in the middle of its gas is not one-sided, and nothing is
+// marked.
+func TestBenchCommandBalancedStarUnmarked(t *testing.T) {
+	gasDir, outDir := t.TempDir(), t.TempDir()
+	writeLatticeGas(t, gasDir, 8, [][3]float64{{4.1, 3.9, 4.2}})
+	args := append([]string{"bench", "-gas", gasDir, "-out", outDir, "-quiet", "-skip-speed", "-neighbors", "32",
+		"-schemes", "terminal-momentum"}, cgsFlags...)
+	code, stdout, stderr := runCLI(args...)
+	require.Equal(t, 0, code, stderr)
+	res := readResult(t, outDir)
+	require.Len(t, res.Isotropy, 1)
+	assert.Zero(t, res.Isotropy[0].OneSidedStars)
+	assert.Less(t, res.Isotropy[0].Residual, 1e-6)
+	assert.NotContains(t, stdout, "one side;")
+	assert.NotContains(t, stdout, "*")
+}
+
+// -skip-speed writes no speed table, no speed plot and no speed section,
+// and removes those an earlier run left in the same folder.
+func TestBenchCommandSkipSpeed(t *testing.T) {
+	gasDir, outDir := t.TempDir(), t.TempDir()
+	writeLatticeGas(t, gasDir, 6, [][3]float64{{3, 3, 3}})
+	base := append([]string{"bench", "-gas", gasDir, "-out", outDir, "-quiet", "-neighbors", "16",
+		"-schemes", "thermal-dump"}, cgsFlags...)
+	code, stdout, stderr := runCLI(base...)
+	require.Equal(t, 0, code, stderr)
+	require.FileExists(t, filepath.Join(outDir, bench.SpeedFile))
+	require.FileExists(t, filepath.Join(outDir, bench.SpeedFigureFile))
+	assert.Contains(t, stdout, "touch ratio:")
+
+	code, stdout, stderr = runCLI(append(base, "-skip-speed")...)
+	require.Equal(t, 0, code, stderr)
+	assert.NoFileExists(t, filepath.Join(outDir, bench.SpeedFile))
+	assert.NoFileExists(t, filepath.Join(outDir, bench.SpeedFigureFile))
+	assert.NotContains(t, stdout, "speed")
+	assert.FileExists(t, filepath.Join(outDir, bench.ConvergenceFile))
+	assert.Empty(t, readResult(t, outDir).Speed)
+}
+
+// The printed tables say what every column means, and round their
+// numbers.
+func TestBenchCommandTablesExplained(t *testing.T) {
+	gasDir, outDir := t.TempDir(), t.TempDir()
+	writeLatticeGas(t, gasDir, 6, [][3]float64{{3, 3, 3}})
+	args := append([]string{"bench", "-gas", gasDir, "-out", outDir, "-quiet", "-neighbors", "16",
+		"-schemes", "thermal-dump,kinetic"}, cgsFlags...)
+	code, stdout, stderr := runCLI(args...)
+	require.Equal(t, 0, code, stderr)
+	for _, want := range []string{
+		"stars/s: ", "elements/s: ", "touch ratio: ", "touch-only floor", "memory floor",
+		"residual: |sum p_j| / sum |p_j|", "-uncorrected",
+		"gas mass: ", "scheme columns: ", "energy-conserving: sqrt(2 E (M_ej + 0.28 M_sw))", "Chevalier 1974",
+		"terminal: the terminal momentum", "kim-ostriker-2015",
+		"[Msun km/s]", "[Msun]",
+	} {
+		assert.Contains(t, stdout, want)
+	}
+	// No number in the tables carries more than four significant digits.
+	for _, m := range regexp.MustCompile(`\d+\.\d+(e[+-]\d+)?`).FindAllString(stdout, -1) {
+		mant := strings.TrimLeft(strings.Split(strings.ReplaceAll(m, ".", ""), "e")[0], "0")
+		assert.LessOrEqual(t, len(mant), 4, m)
+	}
+	// The CSV tables hold six significant digits at most.
+	b, err := os.ReadFile(filepath.Join(outDir, bench.EnergyFile))
+	require.NoError(t, err)
+	for _, m := range regexp.MustCompile(`\d+\.\d+(e[+-]\d+)?`).FindAllString(string(b), -1) {
+		mant := strings.TrimLeft(strings.Split(strings.ReplaceAll(m, ".", ""), "e")[0], "0")
+		assert.LessOrEqual(t, len(mant), 6, m)
+	}
+}

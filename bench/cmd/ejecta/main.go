@@ -38,9 +38,12 @@
 package main
 
 import (
+	"errors"
+	"flag"
 	"fmt"
 	"io"
 	"os"
+	"strings"
 )
 
 // command is one subcommand of the CLI.
@@ -72,7 +75,15 @@ func run(args []string, stdout, stderr io.Writer) int {
 		usage(stderr)
 		return 2
 	}
-	if args[0] == "help" || args[0] == "-h" || args[0] == "--help" {
+	if args[0] == "help" || args[0] == "-h" || args[0] == "-help" || args[0] == "--help" {
+		if len(args) == 2 && args[0] == "help" {
+			// "ejecta help CMD" is "ejecta CMD -h".
+			return run([]string{args[1], "-h"}, stdout, stderr)
+		}
+		if len(args) > 1 {
+			fmt.Fprintf(stderr, "ejecta: help takes at most one command, got %q\n", args[1:])
+			return 2
+		}
 		usage(stdout)
 		return 0
 	}
@@ -84,6 +95,108 @@ func run(args []string, stdout, stderr io.Writer) int {
 	fmt.Fprintf(stderr, "ejecta: unknown command %q\n", args[0])
 	usage(stderr)
 	return 2
+}
+
+// subcommand describes one subcommand's flags for its help text.
+type subcommand struct {
+	// name is the subcommand ("bench").
+	name string
+	// synopsis follows "usage: ejecta NAME" ("[flags]").
+	synopsis string
+	// description is one paragraph saying what the command does, printed
+	// wrapped before the flags.
+	description string
+}
+
+// newFlagSet makes the flag set of a subcommand. Parse it with parseFlags:
+// the flag package's own messages are silenced so that help goes to
+// stdout and errors to stderr, each once.
+func (c subcommand) newFlagSet() *flag.FlagSet {
+	fs := flag.NewFlagSet(c.name, flag.ContinueOnError)
+	fs.SetOutput(io.Discard)
+	fs.Usage = func() {}
+	return fs
+}
+
+// parseFlags parses args into fs. It returns ok = false and the exit
+// status when the command must stop: 0 after printing the help asked for
+// with -h, -help or --help, 2 after a bad flag or value (reported on
+// stderr with a pointer to the help).
+func (c subcommand) parseFlags(fs *flag.FlagSet, args []string, stdout, stderr io.Writer) (code int, ok bool) {
+	err := fs.Parse(args)
+	switch {
+	case err == nil:
+		return 0, true
+	case errors.Is(err, flag.ErrHelp):
+		c.printHelp(stdout, fs)
+		return 0, false
+	}
+	fmt.Fprintf(stderr, "ejecta %s: %v\nrun \"ejecta %s -h\" for the flags\n", c.name, err, c.name)
+	return 2, false
+}
+
+// printHelp writes the usage line, the description paragraph and the
+// flags, each with its default stated once.
+func (c subcommand) printHelp(w io.Writer, fs *flag.FlagSet) {
+	fmt.Fprintln(w, strings.TrimSpace("usage: ejecta "+c.name+" "+c.synopsis))
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, wrapText(c.description, 78))
+	n := 0
+	fs.VisitAll(func(*flag.Flag) { n++ })
+	if n == 0 {
+		return
+	}
+	fmt.Fprintln(w, "\nflags:")
+	fs.VisitAll(func(f *flag.Flag) {
+		kind, text := flag.UnquoteUsage(f)
+		line := "  -" + f.Name
+		if kind != "" {
+			line += " " + kind
+		}
+		if d := defaultNote(f); d != "" && !strings.Contains(text, "(default") {
+			text += " (default " + d + ")"
+		}
+		fmt.Fprintln(w, line)
+		fmt.Fprintln(w, indentText(wrapText(text, 72), "      "))
+	})
+}
+
+// defaultNote is a flag's default as help shows it: empty for the zero
+// value of its type (false, 0, ""), strings quoted.
+func defaultNote(f *flag.Flag) string {
+	switch f.DefValue {
+	case "", "0", "false":
+		return ""
+	}
+	if kind, _ := flag.UnquoteUsage(f); kind == "string" {
+		return fmt.Sprintf("%q", f.DefValue)
+	}
+	return f.DefValue
+}
+
+// wrapText fills words into lines of at most width columns.
+func wrapText(s string, width int) string {
+	var b strings.Builder
+	col := 0
+	for _, word := range strings.Fields(s) {
+		switch {
+		case col == 0:
+		case col+1+len(word) > width:
+			b.WriteByte('\n')
+			col = 0
+		default:
+			b.WriteByte(' ')
+			col++
+		}
+		b.WriteString(word)
+		col += len(word)
+	}
+	return b.String()
+}
+
+// indentText prefixes every line of s.
+func indentText(s, prefix string) string {
+	return prefix + strings.ReplaceAll(s, "\n", "\n"+prefix)
 }
 
 func main() { os.Exit(run(os.Args[1:], os.Stdout, os.Stderr)) }

@@ -2,7 +2,6 @@ package main
 
 import (
 	"encoding/json"
-	"flag"
 	"fmt"
 	"io"
 	"math"
@@ -46,24 +45,25 @@ type ratesReport struct {
 // al. 2009 (yields.SolarMetals).
 const defaultRatesZ = yields.SolarMetals
 
+var ratesCommand = subcommand{
+	name:     "rates",
+	synopsis: "[flags]",
+	description: "Prints what one Msun of stars formed in a single burst releases, by age: " +
+		"core-collapse and Type Ia supernovae, ejected mass and metals, energy (explosions and " +
+		"wind kinetic energy), and the luminosity and ionizing photon rate at each bin's start, " +
+		"from the built-in population (-imf) or a rates table in the CSV format of package yields (-table). " +
+		"The first bin runs from age 0 to 0.1 Myr; the rest are log-spaced up to 13.8 Gyr.",
+}
+
 func runRates(args []string, stdout, stderr io.Writer) int {
-	fs := flag.NewFlagSet("rates", flag.ContinueOnError)
-	fs.SetOutput(stderr)
-	imfName := fs.String("imf", "kroupa", "initial mass function of the built-in population: salpeter, kroupa or chabrier")
-	z := fs.Float64("z", defaultRatesZ, "metal mass fraction (default: solar, Asplund et al. 2009)")
+	fs := ratesCommand.newFlagSet()
+	imfName := fs.String("imf", "kroupa", "initial mass function of the built-in population: salpeter, kroupa or chabrier (not with -table)")
+	z := fs.Float64("z", defaultRatesZ, "metal mass fraction (default 0.0134, solar: Asplund et al. 2009)")
 	tablePath := fs.String("table", "", "read the population from this CSV rates table instead of the built-in model")
 	perDecade := fs.Int("per-decade", 4, "age bins per decade between 0.1 Myr and 13.8 Gyr")
 	asJSON := fs.Bool("json", false, "print one JSON object instead of a text table")
-	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: ejecta rates [flags]")
-		fmt.Fprintln(stderr, "Prints what one Msun of stars formed in a single burst releases, by age:")
-		fmt.Fprintln(stderr, "supernovae, ejected mass and metals, energy (explosions and wind kinetic energy),")
-		fmt.Fprintln(stderr, "and the luminosity and ionizing photon rate at each bin's start. The first bin")
-		fmt.Fprintln(stderr, "runs from age 0 to 0.1 Myr; the rest are log-spaced up to 13.8 Gyr.")
-		fs.PrintDefaults()
-	}
-	if err := fs.Parse(args); err != nil {
-		return 2
+	if code, ok := ratesCommand.parseFlags(fs, args, stdout, stderr); !ok {
+		return code
 	}
 	if fs.NArg() > 0 {
 		fmt.Fprintf(stderr, "ejecta rates: unexpected argument %q\n", fs.Arg(0))

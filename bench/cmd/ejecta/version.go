@@ -1,17 +1,25 @@
 package main
 
 import (
-	"flag"
 	"fmt"
 	"io"
 
 	"github.com/ejecta-dev/ejecta/feedback"
 )
 
+var versionCommand = subcommand{
+	name:        "version",
+	synopsis:    "",
+	description: "Prints the version of the ejecta library this command was built from. It takes no flags and no arguments.",
+}
+
 func runVersion(args []string, stdout, stderr io.Writer) int {
-	fs := flag.NewFlagSet("version", flag.ContinueOnError)
-	fs.SetOutput(stderr)
-	if err := fs.Parse(args); err != nil {
+	fs := versionCommand.newFlagSet()
+	if code, ok := versionCommand.parseFlags(fs, args, stdout, stderr); !ok {
+		return code
+	}
+	if fs.NArg() > 0 {
+		fmt.Fprintf(stderr, "ejecta version: takes no arguments, got %q\n", fs.Args())
 		return 2
 	}
 	fmt.Fprintf(stdout, "ejecta %s\n", feedback.Version)
