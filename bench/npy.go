@@ -7,9 +7,6 @@ import (
 	"math"
 	"os"
 	"path/filepath"
-	"strings"
-
-	"codeberg.org/sbinet/npyio"
 
 	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/feedback/audit"
@@ -70,34 +67,34 @@ func ReadGasDir(dir string, u units.CodeUnits, box neighbor.Box) (*Case, error) 
 	if err := box.Validate(); err != nil {
 		return nil, fmt.Errorf("read gas %s: %w", dir, err)
 	}
-	pos, n, err := readArray(dir, GasPositionsFile, 3, -1, true)
+	pos, n, err := readGasArray(dir, GasPositionsFile, 3, -1, true)
 	if err != nil {
 		return nil, err
 	}
 	if n == 0 {
 		return nil, fmt.Errorf("read gas %s: %s holds no elements", dir, GasPositionsFile)
 	}
-	vel, _, err := readArray(dir, GasVelocitiesFile, 3, n, true)
+	vel, _, err := readGasArray(dir, GasVelocitiesFile, 3, n, true)
 	if err != nil {
 		return nil, err
 	}
 	cols := map[string][]float64{}
 	for _, name := range []string{GasMassesFile, GasDensitiesFile, GasInternalEnergyFile} {
-		v, _, err := readArray(dir, name, 1, n, true)
+		v, _, err := readGasArray(dir, name, 1, n, true)
 		if err != nil {
 			return nil, err
 		}
 		cols[name] = v
 	}
-	ids, _, err := readArray(dir, GasIDsFile, 1, n, false)
+	ids, _, err := readGasArray(dir, GasIDsFile, 1, n, false)
 	if err != nil {
 		return nil, err
 	}
-	metals, _, err := readArray(dir, GasMetallicityFile, 1, n, false)
+	metals, _, err := readGasArray(dir, GasMetallicityFile, 1, n, false)
 	if err != nil {
 		return nil, err
 	}
-	starPos, ns, err := readArray(dir, StarPositionsFile, 3, -1, false)
+	starPos, ns, err := readGasArray(dir, StarPositionsFile, 3, -1, false)
 	if err != nil {
 		return nil, err
 	}
@@ -226,95 +223,19 @@ func checkInside(gas, stars []float64, box neighbor.Box) error {
 	return nil
 }
 
-// readArray reads dir/name as float64s with the given number of columns
-// (1: shape (n,) or (n, 1); 3: shape (n, 3)), returned row-major, and the
-// row count. want >= 0 requires that many rows. A missing optional file
-// gives nil.
-func readArray(dir, name string, ncol, want int, required bool) ([]float64, int, error) {
+// readGasArray reads dir/name (see ReadArray) for ReadGasDir: want >= 0
+// requires that many rows, and a missing optional file gives nil.
+func readGasArray(dir, name string, ncol, want int, required bool) ([]float64, int, error) {
 	path := filepath.Join(dir, name)
-	f, err := os.Open(path)
-	if errors.Is(err, fs.ErrNotExist) && !required {
+	if _, err := os.Stat(path); errors.Is(err, fs.ErrNotExist) && !required {
 		return nil, 0, nil
 	}
+	data, rows, err := ReadArray(path, ncol)
 	if err != nil {
 		return nil, 0, fmt.Errorf("read gas: %w", err)
 	}
-	defer f.Close()
-	r, err := npyio.NewReader(f)
-	if err != nil {
-		return nil, 0, fmt.Errorf("read gas %s: %w", path, err)
-	}
-	shape := r.Header.Descr.Shape
-	var rows int
-	switch {
-	case ncol == 1 && len(shape) == 1:
-		rows = shape[0]
-	case len(shape) == 2 && shape[1] == ncol:
-		rows = shape[0]
-	default:
-		want := "(n, 3)"
-		if ncol == 1 {
-			want = "(n,)"
-		}
-		return nil, 0, fmt.Errorf("read gas %s: shape %v, want %s", path, shape, want)
-	}
 	if want >= 0 && rows != want {
 		return nil, 0, fmt.Errorf("read gas %s: %d rows, want %d (as in %s)", path, rows, want, GasPositionsFile)
-	}
-	var data []float64
-	// The byte order is npyio's business; the kind and size are ours.
-	kind := strings.Trim(r.Header.Descr.Type, "'\" ")
-	kind = strings.TrimLeft(kind, "<>=|")
-	switch kind {
-	case "f8":
-		err = r.Read(&data)
-	case "f4":
-		var v []float32
-		if err = r.Read(&v); err == nil {
-			data = make([]float64, len(v))
-			for i, x := range v {
-				data[i] = float64(x)
-			}
-		}
-	case "i8":
-		var v []int64
-		if err = r.Read(&v); err == nil {
-			data = make([]float64, len(v))
-			for i, x := range v {
-				data[i] = float64(x)
-			}
-		}
-	case "i4":
-		var v []int32
-		if err = r.Read(&v); err == nil {
-			data = make([]float64, len(v))
-			for i, x := range v {
-				data[i] = float64(x)
-			}
-		}
-	default:
-		return nil, 0, fmt.Errorf("read gas %s: element type %q not supported (float32, float64, int32, int64)", path, r.Header.Descr.Type)
-	}
-	if err != nil {
-		return nil, 0, fmt.Errorf("read gas %s: %w", path, err)
-	}
-	if len(data) != rows*ncol {
-		return nil, 0, fmt.Errorf("read gas %s: %d values for %d rows of %d", path, len(data), rows, ncol)
-	}
-	if r.Header.Descr.Fortran && ncol > 1 {
-		// Column-major on disk: transpose to row-major.
-		t := make([]float64, len(data))
-		for i := 0; i < rows; i++ {
-			for a := 0; a < ncol; a++ {
-				t[ncol*i+a] = data[a*rows+i]
-			}
-		}
-		data = t
-	}
-	for i, v := range data {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return nil, 0, fmt.Errorf("read gas %s: value %d (row %d) is %g", path, i, i/ncol, v)
-		}
 	}
 	return data, rows, nil
 }

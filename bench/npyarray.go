@@ -1,11 +1,153 @@
 package bench
 
-import "path/filepath"
+import (
+	"encoding/binary"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"strings"
 
-// ReadArray reads one NumPy .npy file as float64s (float32, float64 and
-// integer arrays, either byte order, C or Fortran order) with ncol columns
-// (1: shape (n,) or (n, 1); otherwise (n, ncol)), row-major, and returns
-// the row count. want >= 0 requires that many rows.
-func ReadArray(path string, ncol, want int) ([]float64, int, error) {
-	return readArray(filepath.Dir(path), filepath.Base(path), ncol, want, true)
+	"codeberg.org/sbinet/npyio"
+)
+
+// ReadArray reads one NumPy .npy file as float64s (float32, float64, int32
+// and int64 arrays, either byte order, C or Fortran order) with ncol
+// columns (1: shape (n,) or (n, 1); otherwise (n, ncol)), row-major, and
+// returns the row count. Non-finite values are refused. Errors name the
+// file; a file shorter than its header promises says how many bytes it
+// holds and how many the header's shape needs.
+func ReadArray(path string, ncol int) ([]float64, int, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, 0, err
+	}
+	defer f.Close()
+	info, err := f.Stat()
+	if err != nil {
+		return nil, 0, err
+	}
+	if err := checkPreamble(f, info.Size()); err != nil {
+		return nil, 0, fmt.Errorf("%s: %w", path, err)
+	}
+	r, err := npyio.NewReader(f)
+	if err != nil {
+		return nil, 0, fmt.Errorf("%s: %w", path, err)
+	}
+	shape := r.Header.Descr.Shape
+	var rows int
+	switch {
+	case ncol == 1 && len(shape) == 1:
+		rows = shape[0]
+	case len(shape) == 2 && shape[1] == ncol:
+		rows = shape[0]
+	default:
+		want := fmt.Sprintf("(n, %d)", ncol)
+		if ncol == 1 {
+			want = "(n,)"
+		}
+		return nil, 0, fmt.Errorf("%s: shape %v, want %s", path, shape, want)
+	}
+	// The byte order is npyio's business; the kind and size are ours.
+	kind := strings.Trim(r.Header.Descr.Type, "'\" ")
+	kind = strings.TrimLeft(kind, "<>=|")
+	size := map[string]int64{"f8": 8, "f4": 4, "i8": 8, "i4": 4}[kind]
+	if size == 0 {
+		return nil, 0, fmt.Errorf("%s: element type %q not supported (float32, float64, int32, int64)", path, r.Header.Descr.Type)
+	}
+	header, err := f.Seek(0, io.SeekCurrent)
+	if err != nil {
+		return nil, 0, fmt.Errorf("%s: %w", path, err)
+	}
+	if need := header + int64(rows)*int64(ncol)*size; info.Size() < need {
+		return nil, 0, fmt.Errorf("%s: truncated: %d bytes, but a header of %d bytes and shape %v of %d-byte values need %d",
+			path, info.Size(), header, shape, size, need)
+	}
+	var data []float64
+	switch kind {
+	case "f8":
+		err = r.Read(&data)
+	case "f4":
+		data, err = readConverted[float32](r)
+	case "i8":
+		data, err = readConverted[int64](r)
+	case "i4":
+		data, err = readConverted[int32](r)
+	}
+	if err != nil {
+		return nil, 0, fmt.Errorf("%s: %w", path, err)
+	}
+	if len(data) != rows*ncol {
+		return nil, 0, fmt.Errorf("%s: %d values for %d rows of %d", path, len(data), rows, ncol)
+	}
+	if r.Header.Descr.Fortran && ncol > 1 {
+		// Column-major on disk: transpose to row-major.
+		t := make([]float64, len(data))
+		for i := 0; i < rows; i++ {
+			for a := 0; a < ncol; a++ {
+				t[ncol*i+a] = data[a*rows+i]
+			}
+		}
+		data = t
+	}
+	for i, v := range data {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, 0, fmt.Errorf("%s: value %d (row %d) is %g", path, i, i/ncol, v)
+		}
+	}
+	return data, rows, nil
+}
+
+// checkPreamble checks that the file holds the whole .npy header its
+// preamble announces, ending in a newline (a short or malformed header
+// would otherwise surface as a bare EOF or worse), and rewinds the file.
+func checkPreamble(f io.ReadSeeker, size int64) error {
+	var pre [12]byte
+	n, err := io.ReadFull(f, pre[:])
+	if err != nil && !errors.Is(err, io.ErrUnexpectedEOF) && !errors.Is(err, io.EOF) {
+		return err
+	}
+	if n < 6 || string(pre[:6]) != "\x93NUMPY" {
+		return fmt.Errorf("not a NumPy .npy file (%d bytes, no .npy magic string)", size)
+	}
+	var end int64
+	switch {
+	case n >= 10 && pre[6] == 1:
+		end = 10 + int64(binary.LittleEndian.Uint16(pre[8:10]))
+	case n >= 12 && (pre[6] == 2 || pre[6] == 3):
+		end = 12 + int64(binary.LittleEndian.Uint32(pre[8:12]))
+	case n < 12:
+		return fmt.Errorf("truncated: %d bytes end inside the .npy preamble", size)
+	default:
+		return fmt.Errorf(".npy format version %d.%d not supported", pre[6], pre[7])
+	}
+	if size < end {
+		return fmt.Errorf("truncated: %d bytes end inside the .npy header, which needs %d", size, end)
+	}
+	last := make([]byte, 1)
+	if _, err := f.Seek(end-1, io.SeekStart); err != nil {
+		return err
+	}
+	if _, err := io.ReadFull(f, last); err != nil {
+		return err
+	}
+	if last[0] != '\n' {
+		return errors.New("malformed .npy header: it does not end in a newline")
+	}
+	_, err = f.Seek(0, io.SeekStart)
+	return err
+}
+
+// readConverted reads the array as T and converts it to float64.
+func readConverted[T float32 | int32 | int64](r *npyio.Reader) ([]float64, error) {
+	var v []T
+	if err := r.Read(&v); err != nil {
+		return nil, err
+	}
+	data := make([]float64, len(v))
+	for i, x := range v {
+		data[i] = float64(x)
+	}
+	return data, nil
 }

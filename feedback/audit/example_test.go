@@ -15,13 +15,13 @@ func ExampleStep() {
 	if err != nil {
 		panic(err)
 	}
-	rep, err := audit.Step(before, after, stars, audit.Options{})
+	rep, err := audit.Step(before, after, stars, audit.DefaultOptions())
 	if err != nil {
 		panic(err)
 	}
 	fmt.Println("exact dump fails:", rep.Failed())
 	after.Mass[0] *= 0.5
-	rep, _ = audit.Step(before, after, stars, audit.Options{})
+	rep, _ = audit.Step(before, after, stars, audit.DefaultOptions())
 	fmt.Println("spoiled dump fails:", rep.Failed())
 	// Output:
 	// exact dump fails: false

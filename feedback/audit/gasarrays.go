@@ -1,6 +1,10 @@
 package audit
 
 import (
+	"fmt"
+	"maps"
+	"slices"
+
 	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/yields"
 )
@@ -60,21 +64,69 @@ func (g *GasArrays) Packed() []float64 {
 	return p
 }
 
-// Totals sums every conserved quantity over the gas: mass, species mass,
-// momentum and total energy (kinetic plus thermal).
-func (g *GasArrays) Totals() feedback.Quantities {
-	var q feedback.Quantities
-	for i, m := range g.Mass {
-		q.Mass += m
-		v2 := 0.0
-		for a := 0; a < 3; a++ {
-			q.Momentum[a] += m * g.Vel[a][i]
-			v2 += g.Vel[a][i] * g.Vel[a][i]
-		}
-		q.Energy += 0.5*m*v2 + m*g.Energy[i]
-		for c, s := range g.Species {
-			q.Species[s] += m * g.Fractions[c][i]
-		}
+// Element is what element i holds of every conserved quantity: mass,
+// species mass, momentum and total energy (kinetic plus thermal).
+func (g *GasArrays) Element(i int) feedback.Quantities {
+	m := g.Mass[i]
+	q := feedback.Quantities{Mass: m}
+	v2 := 0.0
+	for a := 0; a < 3; a++ {
+		q.Momentum[a] = m * g.Vel[a][i]
+		v2 += g.Vel[a][i] * g.Vel[a][i]
+	}
+	q.Energy = 0.5*m*v2 + m*g.Energy[i]
+	for c, s := range g.Species {
+		q.Species[s] = m * g.Fractions[c][i]
 	}
 	return q
+}
+
+// Totals sums every conserved quantity over the gas (see Element).
+func (g *GasArrays) Totals() feedback.Quantities {
+	var q feedback.Quantities
+	for i := range g.Mass {
+		e := g.Element(i)
+		q.Add(&e)
+	}
+	return q
+}
+
+// check reports columns whose lengths differ from the mass column's, and
+// species listed twice.
+func (g *GasArrays) check(name string) error {
+	n := g.Len()
+	lengths := map[string]int{"internal energy": len(g.Energy), "ID": len(g.ID)}
+	if len(g.Density) > 0 { // density is not audited and may be left out
+		lengths["density"] = len(g.Density)
+	}
+	for a, axis := range []string{"x", "y", "z"} {
+		lengths["position "+axis], lengths["velocity "+axis] = len(g.Pos[a]), len(g.Vel[a])
+	}
+	for _, what := range slices.Sorted(maps.Keys(lengths)) {
+		if lengths[what] != n {
+			return fmt.Errorf("gas %s: %d values of %s for %d masses", name, lengths[what], what, n)
+		}
+	}
+	if len(g.Fractions) != len(g.Species) {
+		return fmt.Errorf("gas %s: %d mass-fraction columns for %d species", name, len(g.Fractions), len(g.Species))
+	}
+	for c, sp := range g.Species {
+		if len(g.Fractions[c]) != n {
+			return fmt.Errorf("gas %s: %d mass fractions of %s for %d masses", name, len(g.Fractions[c]), sp.Symbol(), n)
+		}
+		if g.column(sp) != c {
+			return fmt.Errorf("gas %s: species %s listed twice", name, sp.Symbol())
+		}
+	}
+	return nil
+}
+
+// column is the index of species sp in g.Species, or -1.
+func (g *GasArrays) column(sp yields.Species) int {
+	for c, s := range g.Species {
+		if s == sp {
+			return c
+		}
+	}
+	return -1
 }

@@ -47,11 +47,18 @@ func Dump(scheme feedback.Scheme, scenario string, seed uint64) (before, after *
 		radiated += st.Radiated
 		stars = append(stars, st)
 	}
-	// Radiated energy Apply took back for coherent kicks is shared among
-	// the stars in proportion to what they radiated.
-	if radiated > 0 && r.report.Reclaimed > 0 {
+	// Radiated energy Apply took back for coherent kicks, and energy it
+	// added where overlapping kicks would have left an element's internal
+	// energy negative (feedback.ApplyReport), are shared among the stars in
+	// proportion to what they radiated (a step whose stars overlap is one
+	// group to the audit).
+	if back := r.report.Reclaimed + r.report.Shortfall; back > 0 {
 		for i := range stars {
-			stars[i].Radiated -= r.report.Reclaimed * stars[i].Radiated / radiated
+			share := 1 / float64(len(stars))
+			if radiated > 0 {
+				share = stars[i].Radiated / radiated
+			}
+			stars[i].Radiated -= back * share
 		}
 	}
 	return sc.Gas.Clone(), r.gas, stars, nil

@@ -1,12 +1,15 @@
 package main
 
 import (
+	"bytes"
 	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
+	"reflect"
 	"sort"
 	"strings"
 
@@ -86,8 +89,8 @@ var auditCommand = subcommand{
 func runAudit(args []string, stdout, stderr io.Writer) int {
 	fs := auditCommand.newFlagSet()
 	manifest := fs.String("manifest", "", "JSON manifest naming the .npy arrays of the step (required)")
-	tol := fs.Float64("tol", 1e-10, "largest relative imbalance accepted for each conserved quantity")
-	isoTol := fs.Float64("isotropy-tol", 1e-6, "largest net star-frame momentum accepted, as a fraction of the momentum handed out")
+	tol := fs.Float64("tol", audit.DefaultTolerance, "largest relative imbalance accepted for each conserved quantity (finite, non-negative)")
+	isoTol := fs.Float64("isotropy-tol", audit.DefaultIsotropyTolerance, "largest net star-frame momentum accepted, as a fraction of the momentum handed out (finite, non-negative)")
 	asJSON := fs.Bool("json", false, "print the report as JSON")
 	if code, ok := auditCommand.parseFlags(fs, args, stdout, stderr); !ok {
 		return code
@@ -96,12 +99,18 @@ func runAudit(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "ejecta audit: -manifest is required; run \"ejecta audit -h\" for the flags")
 		return 2
 	}
+	opts := audit.Options{Tolerance: *tol, IsotropyTolerance: *isoTol}
+	if err := opts.Validate(); err != nil {
+		fmt.Fprintf(stderr, "ejecta audit: %v (-tol and -isotropy-tol)\n", err)
+		return 2
+	}
 	before, after, stars, box, err := loadAudit(*manifest)
 	if err != nil {
 		fmt.Fprintf(stderr, "ejecta audit: %v\n", err)
 		return 2
 	}
-	rep, err := audit.Step(before, after, stars, audit.Options{Box: box, Tolerance: *tol, IsotropyTolerance: *isoTol})
+	opts.Box = box
+	rep, err := audit.Step(before, after, stars, opts)
 	if err != nil {
 		fmt.Fprintf(stderr, "ejecta audit: %v\n", err)
 		return 2
@@ -109,7 +118,8 @@ func runAudit(args []string, stdout, stderr io.Writer) int {
 	if *asJSON {
 		enc := json.NewEncoder(stdout)
 		enc.SetIndent("", "  ")
-		if err := enc.Encode(rep); err != nil {
+		doc := auditJSON{GasElements: before.Len(), Stars: len(stars), Passed: !rep.Failed(), Report: rep}
+		if err := enc.Encode(doc); err != nil {
 			fmt.Fprintf(stderr, "ejecta audit: %v\n", err)
 			return 2
 		}
@@ -120,6 +130,15 @@ func runAudit(args []string, stdout, stderr io.Writer) int {
 		return 1
 	}
 	return 0
+}
+
+// auditJSON is the -json output: the counts, the verdict and the report,
+// in snake_case keys like the rest of the command, lists never null.
+type auditJSON struct {
+	GasElements int  `json:"gas_elements"`
+	Stars       int  `json:"stars"`
+	Passed      bool `json:"passed"`
+	*audit.Report
 }
 
 func printAudit(w io.Writer, rep *audit.Report, nGas, nStars int) {
@@ -156,9 +175,7 @@ func loadAudit(path string) (before, after *audit.GasArrays, stars []audit.Star,
 		return nil, nil, nil, box, fmt.Errorf("manifest: %w", err)
 	}
 	var m auditManifest
-	dec := json.NewDecoder(strings.NewReader(string(raw)))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&m); err != nil {
+	if err := decodeManifest(raw, &m); err != nil {
 		return nil, nil, nil, box, fmt.Errorf("manifest %s: %w", path, err)
 	}
 	dir := filepath.Dir(path)
@@ -172,53 +189,49 @@ func loadAudit(path string) (before, after *audit.GasArrays, stars []audit.Star,
 	if after, err = loadAuditGas(dir, "gas_after", m.GasAfter); err != nil {
 		return nil, nil, nil, box, err
 	}
-	if len(before.Species) != len(after.Species) {
-		return nil, nil, nil, box, errors.New("manifest: gas_before and gas_after must list the same mass fractions")
+	if !sameKeys(m.GasBefore.MassFractions, m.GasAfter.MassFractions) {
+		return nil, nil, nil, box, fmt.Errorf("manifest %s: gas_before and gas_after must list the same mass fractions", path)
 	}
 	stars, err = loadAuditStars(dir, m.Stars)
 	return before, after, stars, box, err
 }
 
 func loadAuditGas(dir, key string, f auditGasFiles) (*audit.GasArrays, error) {
+	r := arrayReader{dir: dir}
 	g := &audit.GasArrays{}
-	pos, n, err := readNPY(dir, key+".position", f.Position, 3, -1)
+	pos, n, err := r.read(key+".position", f.Position, 3, nil)
 	if err != nil {
 		return nil, err
 	}
-	vel, _, err := readNPY(dir, key+".velocity", f.Velocity, 3, n)
+	vel, _, err := r.read(key+".velocity", f.Velocity, 3, &n)
 	if err != nil {
 		return nil, err
 	}
 	for k := 0; k < 3; k++ {
-		g.Pos[k], g.Vel[k] = make([]float64, n), make([]float64, n)
-		for i := 0; i < n; i++ {
+		g.Pos[k], g.Vel[k] = make([]float64, n.n), make([]float64, n.n)
+		for i := 0; i < n.n; i++ {
 			g.Pos[k][i], g.Vel[k][i] = pos[3*i+k], vel[3*i+k]
 		}
 	}
-	if g.Mass, _, err = readNPY(dir, key+".mass", f.Mass, 1, n); err != nil {
+	if g.Mass, _, err = r.read(key+".mass", f.Mass, 1, &n); err != nil {
 		return nil, err
 	}
-	if g.Energy, _, err = readNPY(dir, key+".internal_energy", f.InternalEnergy, 1, n); err != nil {
+	if g.Energy, _, err = r.read(key+".internal_energy", f.InternalEnergy, 1, &n); err != nil {
 		return nil, err
 	}
-	ids, _, err := readNPY(dir, key+".id", f.ID, 1, n)
+	ids, _, err := r.read(key+".id", f.ID, 1, &n)
 	if err != nil {
 		return nil, err
 	}
-	g.ID = make([]int64, n)
-	for i, v := range ids {
-		g.ID[i] = int64(v)
-		if float64(g.ID[i]) != v {
-			return nil, fmt.Errorf("%s.id: element %d holds %g, not an integer", key, i, v)
-		}
+	if g.ID, err = integers(key+".id", f.ID, ids); err != nil {
+		return nil, err
 	}
-	g.Density = make([]float64, n) // not audited
 	species, err := sortedSpecies(key+".mass_fractions", f.MassFractions)
 	if err != nil {
 		return nil, err
 	}
 	for _, sp := range species {
-		col, _, err := readNPY(dir, key+".mass_fractions."+sp.Symbol(), f.MassFractions[sp.Symbol()], 1, n)
+		col, _, err := r.read(key+".mass_fractions."+sp.Symbol(), f.MassFractions[sp.Symbol()], 1, &n)
 		if err != nil {
 			return nil, err
 		}
@@ -229,27 +242,38 @@ func loadAuditGas(dir, key string, f auditGasFiles) (*audit.GasArrays, error) {
 }
 
 func loadAuditStars(dir string, f auditStarsFiles) ([]audit.Star, error) {
-	ids, n, err := readNPY(dir, "stars.id", f.ID, 1, -1)
+	r := arrayReader{dir: dir}
+	ids, n, err := r.read("stars.id", f.ID, 1, nil)
 	if err != nil {
 		return nil, err
 	}
-	pos, _, err := readNPY(dir, "stars.position", f.Position, 3, n)
+	starIDs, err := integers("stars.id", f.ID, ids)
 	if err != nil {
 		return nil, err
 	}
-	vel, _, err := readNPY(dir, "stars.velocity", f.Velocity, 3, n)
+	pos, _, err := r.read("stars.position", f.Position, 3, &n)
 	if err != nil {
 		return nil, err
 	}
-	cols := map[string][]float64{}
-	for name, file := range map[string]string{"radius": f.Radius, "ejecta_mass": f.EjectaMass, "energy": f.Energy} {
-		if cols[name], _, err = readNPY(dir, "stars."+name, file, 1, n); err != nil {
-			return nil, err
-		}
+	vel, _, err := r.read("stars.velocity", f.Velocity, 3, &n)
+	if err != nil {
+		return nil, err
 	}
-	var radiated []float64
+	radius, _, err := r.read("stars.radius", f.Radius, 1, &n)
+	if err != nil {
+		return nil, err
+	}
+	mass, _, err := r.read("stars.ejecta_mass", f.EjectaMass, 1, &n)
+	if err != nil {
+		return nil, err
+	}
+	energy, _, err := r.read("stars.energy", f.Energy, 1, &n)
+	if err != nil {
+		return nil, err
+	}
+	radiated := make([]float64, n.n)
 	if f.Radiated != "" {
-		if radiated, _, err = readNPY(dir, "stars.radiated", f.Radiated, 1, n); err != nil {
+		if radiated, _, err = r.read("stars.radiated", f.Radiated, 1, &n); err != nil {
 			return nil, err
 		}
 	}
@@ -257,20 +281,17 @@ func loadAuditStars(dir string, f auditStarsFiles) ([]audit.Star, error) {
 	if err != nil {
 		return nil, err
 	}
-	stars := make([]audit.Star, n)
+	stars := make([]audit.Star, n.n)
 	for i := range stars {
 		s := &stars[i]
-		s.ID = int64(ids[i])
+		s.ID = starIDs[i]
 		for k := 0; k < 3; k++ {
 			s.Pos[k], s.Vel[k] = pos[3*i+k], vel[3*i+k]
 		}
-		s.Radius, s.Mass, s.Energy = cols["radius"][i], cols["ejecta_mass"][i], cols["energy"][i]
-		if radiated != nil {
-			s.Radiated = radiated[i]
-		}
+		s.Radius, s.Mass, s.Energy, s.Radiated = radius[i], mass[i], energy[i], radiated[i]
 	}
 	for _, sp := range species {
-		col, _, err := readNPY(dir, "stars.ejecta_species."+sp.Symbol(), f.EjectaSpecies[sp.Symbol()], 1, n)
+		col, _, err := r.read("stars.ejecta_species."+sp.Symbol(), f.EjectaSpecies[sp.Symbol()], 1, &n)
 		if err != nil {
 			return nil, err
 		}
@@ -279,6 +300,18 @@ func loadAuditStars(dir string, f auditStarsFiles) ([]audit.Star, error) {
 		}
 	}
 	return stars, nil
+}
+
+// integers converts an ID column read as floats, refusing non-integers.
+func integers(key, file string, v []float64) ([]int64, error) {
+	out := make([]int64, len(v))
+	for i, x := range v {
+		if x != math.Trunc(x) || math.Abs(x) > 1<<53 {
+			return nil, fmt.Errorf("%s (%s): element %d holds %g, not an integer ID", key, file, i, x)
+		}
+		out[i] = int64(x)
+	}
+	return out, nil
 }
 
 // sortedSpecies parses species symbols, in species order.
@@ -300,20 +333,103 @@ func sortedSpecies(key string, m map[string]string) ([]yields.Species, error) {
 	return out, nil
 }
 
-// readNPY reads one array named by the manifest key (a path relative to
-// the manifest's folder), checking its shape: (n,) for ncol 1, (n, ncol)
-// otherwise, with n == want unless want < 0.
-func readNPY(dir, key, name string, ncol, want int) ([]float64, int, error) {
+// arrayReader reads the arrays a manifest names, paths relative to the
+// manifest's folder.
+type arrayReader struct{ dir string }
+
+// rowCount is the row count of an array already read, which the other
+// arrays of its block must match, with where it was read from.
+type rowCount struct {
+	n         int
+	key, file string
+}
+
+// read reads the array the manifest names under key, checking its shape:
+// (n,) for ncol 1, (n, ncol) otherwise, with as many rows as like (unless
+// like is nil).
+func (r arrayReader) read(key, name string, ncol int, like *rowCount) ([]float64, rowCount, error) {
 	if name == "" {
-		return nil, 0, fmt.Errorf("manifest: %s names no file", key)
+		return nil, rowCount{}, fmt.Errorf("manifest: %s names no file", key)
 	}
 	path := name
 	if !filepath.IsAbs(path) {
-		path = filepath.Join(dir, name)
+		path = filepath.Join(r.dir, name)
 	}
-	data, n, err := bench.ReadArray(path, ncol, want)
+	data, n, err := bench.ReadArray(path, ncol)
 	if err != nil {
-		return nil, 0, fmt.Errorf("%s: %w", key, err)
+		return nil, rowCount{}, fmt.Errorf("%s: %w", key, err)
 	}
-	return data, n, nil
+	if like != nil && n != like.n {
+		return nil, rowCount{}, fmt.Errorf("%s (%s) has %d rows, but %s (%s) has %d", key, name, n, like.key, like.file, like.n)
+	}
+	return data, rowCount{n: n, key: key, file: name}, nil
+}
+
+// sameKeys reports whether two maps have the same keys.
+func sameKeys(a, b map[string]string) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for k := range a {
+		if _, ok := b[k]; !ok {
+			return false
+		}
+	}
+	return true
+}
+
+// decodeManifest reads the manifest's JSON, reporting mistakes in the
+// manifest's own terms: the key and what it should hold, the line and
+// column of a syntax error, unknown keys.
+func decodeManifest(raw []byte, m *auditManifest) error {
+	dec := json.NewDecoder(bytes.NewReader(raw))
+	dec.DisallowUnknownFields()
+	err := dec.Decode(m)
+	if err == nil && dec.More() {
+		return errors.New("text after the closing brace of the manifest")
+	}
+	var syntax *json.SyntaxError
+	var typ *json.UnmarshalTypeError
+	switch {
+	case err == nil:
+		return nil
+	case errors.As(err, &syntax):
+		line, col := position(raw, syntax.Offset)
+		return fmt.Errorf("line %d, column %d: %s", line, col, strings.TrimPrefix(syntax.Error(), "json: "))
+	case errors.Is(err, io.EOF), errors.Is(err, io.ErrUnexpectedEOF):
+		return errors.New("the JSON ends before the manifest's closing brace")
+	case errors.As(err, &typ):
+		line, col := position(raw, typ.Offset)
+		return fmt.Errorf("line %d, column %d: %s holds a JSON %s, want %s", line, col, typ.Field, typ.Value, manifestKind(typ.Type.Kind()))
+	}
+	if msg, ok := strings.CutPrefix(err.Error(), "json: unknown field "); ok {
+		return fmt.Errorf("unknown key %s (known: box, gas_before, gas_after, stars and the keys listed in the manifest format)", msg)
+	}
+	return errors.New(strings.TrimPrefix(err.Error(), "json: "))
+}
+
+// manifestKind says in JSON terms what a manifest value of kind k is.
+func manifestKind(k reflect.Kind) string {
+	switch k {
+	case reflect.String:
+		return "a string (a file name)"
+	case reflect.Map:
+		return "an object of species symbol to file name"
+	case reflect.Array:
+		return "an array of three numbers"
+	case reflect.Float64:
+		return "a number"
+	case reflect.Struct:
+		return "an object"
+	}
+	return "another kind of value"
+}
+
+// position turns a byte offset into a 1-based line and column.
+func position(raw []byte, offset int64) (line, col int) {
+	offset = min(max(offset, 0), int64(len(raw)))
+	before := raw[:offset]
+	line = 1 + bytes.Count(before, []byte("\n"))
+	col = int(offset) - (bytes.LastIndexByte(before, '\n') + 1) + 1
+	return line, col
 }
