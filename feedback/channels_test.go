@@ -44,10 +44,11 @@ func latticeGas(n int, dx, nH float64, u units.CodeUnits) *audit.GasArrays {
 }
 
 func TestStromgrenBudget(t *testing.T) {
-	// A source of Q ionizing photons per second in uniform gas of density
-	// n keeps ionized the Strömgren volume (4 pi/3) R_S^3 = Q / (alpha_B n^2)
-	// (Strömgren 1939, ApJ 89, 526; alpha_B = 2.6e-13 cm^3/s, Osterbrock &
-	// Ferland 2006, from memory).
+	// A source of Q ionizing photons per second in uniform gas of hydrogen
+	// density n keeps ionized the Strömgren volume (4 pi/3) R_S^3 =
+	// Q / (alpha_B n_e n) (Strömgren 1939, ApJ 89, 526; alpha_B = 2.6e-13
+	// cm^3/s, Osterbrock & Ferland 2006, from memory), with n_e counting
+	// the electrons of singly ionized helium (electronsPerHydrogen).
 	u := pcMsunKms()
 	const nH, dx = 10.0, 1.0
 	g := latticeGas(21, dx, nH, u)
@@ -57,7 +58,7 @@ func TestStromgrenBudget(t *testing.T) {
 		Photons: q * units.Megayear, Duration: dt, Energy: 1e60 / u.EnergyErg()}
 	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.Photoionization{}, Neighbors: 9000}, []feedback.Source{src})
 	n := nH
-	rs := math.Cbrt(3 * q / (4 * math.Pi * feedback.CaseBRecombination * n * n)) // cm
+	rs := math.Cbrt(3 * q / (4 * math.Pi * feedback.CaseBRecombination * electronsPerHydrogen() * n * n)) // cm
 	vs := 4 * math.Pi / 3 * rs * rs * rs
 	cell := math.Pow(dx*units.Parsec, 3)
 	ionized := 0.0
@@ -74,13 +75,17 @@ func TestStromgrenBudget(t *testing.T) {
 	// Whole ionized cells fill the Strömgren volume to within one cell.
 	assert.InDelta(t, vs/cell, ionized, 1.0)
 	assert.InDelta(t, rs/units.Parsec, far, 1.5*dx, "farthest ionized cell sits at the Strömgren radius")
+	// Heated to 1e4 K: u = (3/2) k T / (0.59 m_p); only the last cell, which
+	// the budget covers in part, may fall short of it.
+	want := 1.5 * units.Boltzmann * 1e4 / (0.59 * units.ProtonMass) / u.SpecificEnergy()
+	short := 0
 	for _, r := range out.Records {
-		if r.Flags&feedback.FlagIonized != 0 {
-			// Heated to 1e4 K: u = (3/2) k T / (0.59 m_p).
-			want := 1.5 * units.Boltzmann * 1e4 / (0.59 * units.ProtonMass) / u.SpecificEnergy()
-			assert.InEpsilon(t, want, g.Energy[r.GasIndex], 1e-9)
+		if r.Flags&feedback.FlagIonized != 0 && math.Abs(g.Energy[r.GasIndex]/want-1) > 1e-9 {
+			short++
+			assert.Less(t, g.Energy[r.GasIndex], want)
 		}
 	}
+	assert.LessOrEqual(t, short, 1)
 }
 
 func TestRadiationPressureMomentum(t *testing.T) {

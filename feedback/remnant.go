@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 
+	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
@@ -27,9 +28,12 @@ const PostCoolingThermalExponent = -6.5
 const SolarMetallicity = 0.0134
 
 // MassPerHydrogen is the gas mass per hydrogen atom in units of the proton
-// mass for a primordial-like mixture, 1.4 (common practice: the convention
-// behind n_H in the shell-formation fits).
-const MassPerHydrogen = 1.4
+// mass, 1/X with X = yields.SolarHydrogen the hydrogen mass fraction the
+// library uses everywhere else (Asplund, Grevesse, Sauval & Scott 2009,
+// ARA&A 47, 481; from memory): about 1.355. It converts gas densities to
+// the hydrogen number densities n_H the remnant fits and the
+// photoionization balance are written in.
+const MassPerHydrogen = 1 / yields.SolarHydrogen
 
 // Remnant describes a supernova remnant at the end of its energy-conserving
 // phase: the momentum it ends with once radiative (terminal momentum) and

@@ -68,9 +68,10 @@ type StepConfig struct {
 	// supernovae than this suggests a smaller step; 0 means 10.
 	MaxSupernovaePerStep float64
 	// PhotoheatingPerPhoton is the heat one ionizing photon can deposit,
-	// in erg; 0 means 3 eV (from memory: the mean photoelectron energy of
-	// a young cluster's spectrum, Osterbrock & Ferland 2006 order of
-	// magnitude).
+	// in erg, paid out of the star's radiant energy (radiation pressure
+	// couples the rest of the light); 0 means 3 eV (from memory: the mean
+	// photoelectron energy of a young cluster's spectrum, Osterbrock &
+	// Ferland 2006 order of magnitude).
 	PhotoheatingPerPhoton float64
 }
 
@@ -244,18 +245,21 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 		}
 		maxExpected = math.Max(maxExpected, expected)
 
-		rad := base
-		rad.Channel = RadiationChannel
-		if !s.cfg.SkipRadiation {
-			rad.Energy = rel.RadiantEnergy * formed * erg
-		}
-		s.sources[RadiationChannel] = append(s.sources[RadiationChannel], rad)
+		// The photoheating is part of the emitted light: it is paid out of
+		// the radiant energy, and radiation pressure gets the rest.
+		light := rel.RadiantEnergy * formed * erg
 		ion := base
 		ion.Channel = PhotoionizationChannel
 		if !s.cfg.SkipPhotoionization {
 			ion.Photons = rel.IonizingPhotons * formed
-			ion.Energy = ion.Photons * s.cfg.PhotoheatingPerPhoton * erg
+			ion.Energy = math.Min(ion.Photons*s.cfg.PhotoheatingPerPhoton*erg, light)
 		}
+		rad := base
+		rad.Channel = RadiationChannel
+		if !s.cfg.SkipRadiation {
+			rad.Energy = math.Max(light-ion.Energy, 0)
+		}
+		s.sources[RadiationChannel] = append(s.sources[RadiationChannel], rad)
 		s.sources[PhotoionizationChannel] = append(s.sources[PhotoionizationChannel], ion)
 	}
 	if maxExpected > s.cfg.MaxSupernovaePerStep {

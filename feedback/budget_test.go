@@ -1,0 +1,125 @@
+package feedback_test
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/neighbor"
+	"github.com/ejecta-dev/ejecta/yields"
+	"github.com/ejecta-dev/ejecta/yields/units"
+)
+
+// electronsPerHydrogen is n_e / n_H for fully ionized hydrogen and singly
+// ionized helium, from the solar mass fractions X = 0.7381, Y = 0.2485
+// (Asplund, Grevesse, Sauval & Scott 2009, ARA&A 47, 481; from memory)
+// and the standard atomic weights 1.008 and 4.0026 (IUPAC): each helium
+// atom gives one electron, n_He / n_H = (Y / 4.0026) / (X / 1.008).
+func electronsPerHydrogen() float64 { return 1 + (0.2485/4.0026)/(0.7381/1.008) }
+
+func TestHydrogenAndElectronCounts(t *testing.T) {
+	// The gas mass per hydrogen atom is 1/X proton masses with the solar
+	// hydrogen mass fraction X = 0.7381 (Asplund et al. 2009, from memory),
+	// the one the yields use, not a separate 1.4.
+	assert.InEpsilon(t, 1/0.7381, feedback.MassPerHydrogen, 1e-12)
+	assert.InEpsilon(t, 1/yields.SolarHydrogen, feedback.MassPerHydrogen, 1e-15)
+	// An H II region has about 1.1 electrons per hydrogen atom once helium
+	// is singly ionized (derivation in electronsPerHydrogen).
+	assert.InEpsilon(t, electronsPerHydrogen(), feedback.ElectronsPerHydrogen, 1e-3)
+	assert.InDelta(t, 1.085, feedback.ElectronsPerHydrogen, 0.005)
+}
+
+func TestInfraredBoostIsBounded(t *testing.T) {
+	// A 100 g/cm^2 column at solar metallicity has tau_IR = 500 with the
+	// default 5 cm^2/g; radiation-hydrodynamic studies find the delivered
+	// momentum is at most a few L/c however large tau_IR is (Krumholz &
+	// Thompson 2012, ApJ 760, 155; Skinner & Ostriker 2015, ApJ 809, 187;
+	// from memory), so the default bound holds it at 3 L/c.
+	u := pcMsunKms()
+	e := 1e6 * units.SolarLuminosity * units.Megayear / u.EnergyErg()
+	lc := e / (units.SpeedOfLight / u.VelocityCmPS)
+	cases := []struct {
+		name  string
+		rp    feedback.RadiationPressure
+		sigma float64
+		want  float64 // in units of L dt / c
+	}{
+		{"default bound", feedback.RadiationPressure{}, 100, 3},
+		{"configured bound", feedback.RadiationPressure{MaxInfraredBoost: 1.5}, 100, 1.5},
+		{"unbounded on request", feedback.RadiationPressure{MaxInfraredBoost: math.Inf(1)}, 100, 501},
+		{"below the bound", feedback.RadiationPressure{}, 0.2, 2},
+	}
+	for _, c := range cases {
+		assert.InEpsilon(t, c.want, c.rp.Momentum(e, c.sigma, 1, u)/lc, 1e-9, c.name)
+	}
+	// Through the coupler: a dense cloud whose column is far above
+	// tau_IR = 1 gets 3 L/c, not (1 + tau_IR) L/c.
+	g := uniformGas(12, 400, 1e4, 1e4, u)
+	src := feedback.Source{Star: feedback.Star{ID: 2}, Channel: feedback.RadiationChannel, Energy: e}
+	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.RadiationPressure{}, Neighbors: 64}, []feedback.Source{src})
+	assert.InEpsilon(t, 3*lc, out.Ledger.RadialMomentum, 1e-6)
+	// A bound below 1 is refused.
+	c, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: feedback.RadiationPressure{MaxInfraredBoost: 0.5}})
+	require.NoError(t, err)
+	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
+	require.NoError(t, err)
+	var o feedback.Output
+	require.NoError(t, c.Couple(g.View(), f, []feedback.Source{src}, &o))
+	require.Len(t, o.Problems, 1)
+	assert.ErrorContains(t, o.Problems[0].Err, "at least 1")
+}
+
+func TestPhotoheatingIsPaidFromTheLight(t *testing.T) {
+	// The heat photoionization deposits is part of the light the stars
+	// emit: radiation pressure and photoionization together take in the
+	// population's radiant energy, not more (energy conservation). A
+	// 1e4 Msun population from 0.5 to 1.5 Myr.
+	u := pcMsunKms()
+	pop, err := yields.NewPopulation(yields.DefaultConfig())
+	require.NoError(t, err)
+	g := uniformGas(3, 400, 100, 1, u)
+	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
+	require.NoError(t, err)
+	myr := units.Megayear / u.TimeS()
+	rel, err := pop.Release(0.5, 1.5, 0.0134)
+	require.NoError(t, err)
+	light := rel.RadiantEnergy * 1e4 / u.EnergyErg() // erg per Msun formed
+	star := feedback.StarParticle{Star: feedback.Star{ID: 1, Mass: 1e4, Metallicity: 0.0134, Age: 0.5 * myr}, FormedMass: 1e4}
+	for _, c := range []struct {
+		name      string
+		cfg       feedback.StepConfig
+		rad, heat bool
+	}{
+		{"both", feedback.StepConfig{}, true, true},
+		{"no photoionization", feedback.StepConfig{SkipPhotoionization: true}, true, false},
+		{"no radiation pressure", feedback.StepConfig{SkipRadiation: true}, false, true},
+	} {
+		cfg := c.cfg
+		cfg.Coupling = feedback.Config{Units: u}
+		cfg.Model = pop
+		cfg.Seed = 1
+		st, err := feedback.NewStepper(cfg)
+		require.NoError(t, err)
+		var out feedback.StepOutput
+		require.NoError(t, st.Step(g.View(), f, []feedback.StarParticle{star}, 0, myr, &out))
+		rad := out.Channels[feedback.RadiationChannel].In.Energy
+		ion := out.Channels[feedback.PhotoionizationChannel].In.Energy
+		photons := rel.IonizingPhotons * 1e4
+		heat := photons * 3 * 1.602176634e-12 / u.EnergyErg() // 3 eV per photon, the default
+		if c.heat {
+			assert.InEpsilon(t, heat, ion, 1e-9, c.name)
+		}
+		if c.rad && c.heat {
+			assert.InEpsilon(t, light, rad+ion, 1e-12, c.name)
+		}
+		if c.rad && !c.heat {
+			assert.InEpsilon(t, light, rad, 1e-12, c.name)
+		}
+		if !c.rad {
+			assert.Zero(t, rad, c.name)
+		}
+	}
+}
