@@ -2,13 +2,32 @@
 // -buildmode=c-archive it becomes libejecta, whose interface is declared and
 // documented in ejecta.h (see README.md in this directory for build, link
 // and usage). The exported functions are thin conversions of C arguments;
-// the work is done by the entry functions of abi.go, which take Go mirrors
-// of the C structs so that tests and fuzzing can call them directly.
+// the work is done by entry functions (entryStep for ejecta_step, ...) that
+// take Go mirrors of the C structs, so that tests and fuzzing call them
+// directly.
 //
 // All state lives in sessions reached through runtime/cgo handles (the
 // opaque ejecta_context); nothing is shared between contexts, no Go pointer
 // is handed to C, and every entry recovers from panics, returning an error
 // code instead.
+//
+// # Files by concern
+//
+//	exports.go     the //export wrappers, one per function of ejecta.h
+//	errors.go      error codes, the mapping of failure kinds to codes (codeForFailure), panic guard
+//	session.go     the context: session, its phases (one state machine), create/destroy/last_error
+//	config.go      ejecta_config: its Go mirror, parsing, defaults, ejecta_version
+//	gas.go         ejecta_field/ejecta_gas: element types, columns, binding and what derives from it
+//	step.go        ejecta_step and the batch path both kinds of step share (checks, finder, results)
+//	results.go     what a step leaves to read: records, undeposited releases, ledger; the copy rule
+//	apply.go       ejecta_apply_step_records, ejecta_apply_records, ejecta_copy_touched
+//	population.go  population steps: config, star particles, per-star results, channel ledgers
+//	layout.go      abiMismatches: every struct offset and constant checked against ejecta.h
+//
+// A new function goes into the file of its concern with its entry, gets
+// its wrapper in exports.go, its prototype and documentation in ejecta.h,
+// its interface in fortran/ejecta_mod.f90, and its struct offsets and
+// constants in layout.go.
 package main
 
 // main is required by -buildmode=c-shared and c-archive and never runs.

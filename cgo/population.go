@@ -7,14 +7,13 @@ import (
 	"unsafe"
 
 	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
 )
 
-// Codes and sizes of the population calls of ejecta.h (checked against the
-// header by abiMismatches).
+// Sizes of the population calls of ejecta.h (checked against the header
+// by abiMismatches).
 const (
-	codeNoPopulation int32 = 14
-	codeYieldsTable  int32 = 15
 	// pathCapacity bounds the length of a yields table path, NUL included.
 	pathCapacity      = 4096
 	numStepChannels   = feedback.NumStepChannels
@@ -65,9 +64,8 @@ type population struct {
 	stars []feedback.StarParticle
 	out   feedback.StepOutput
 	// counts holds each star's supernovae of the last step (core collapse,
-	// Ia); valid says the results belong to the last step of the context.
+	// Ia).
 	counts [][2]int64
-	valid  bool
 }
 
 // defaultPopulationConfig is what ejecta_population_defaults writes.
@@ -227,62 +225,40 @@ func starParticle(p *starParticleABI) (feedback.StarParticle, error) {
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 // stepPopulation is behind ejecta_step_population.
-func (s *session) stepPopulation(stars *starParticleABI, n int64, dt float64, step int64, mode int32, offsets, indices *int64) error {
-	if stars == nil {
-		return fail(codeNullPointer, "stars is NULL")
-	}
-	if n <= 0 || n > math.MaxInt32 {
-		return fail(codeInvalidArgument, "n_stars %d must be positive", n)
+func (s *session) stepPopulation(stars *starParticleABI, dt float64, a batchArgs) error {
+	if err := a.check(stars == nil); err != nil {
+		return err
 	}
 	if !finite(dt) || dt < 0 {
 		return fail(codeBadValue, "dt %g must be finite and >= 0", dt)
-	}
-	if step < 0 {
-		return fail(codeInvalidArgument, "step_index %d must be >= 0", step)
-	}
-	if mode != modeOwnFinder && mode != modeHostRows {
-		return fail(codeInvalidArgument, "neighbor_mode %d: want %d (own finder) or %d (host rows)", mode, modeOwnFinder, modeHostRows)
 	}
 	p := s.pop
 	if p == nil {
 		return fail(codeNoPopulation, "no population: call ejecta_enable_population first")
 	}
-	if !s.bound {
-		return fail(codeNoGas, "no gas bound: call ejecta_bind_gas first")
+	if err := s.requireGas(); err != nil {
+		return err
 	}
-	cs := unsafe.Slice(stars, n)
-	p.stars = p.stars[:0]
-	s.starIDs = s.starIDs[:0]
-	for i := range cs {
-		sp, err := starParticle(&cs[i])
-		if err != nil {
-			return fmt.Errorf("star %d of %d: %w", i, n, err)
-		}
-		p.stars = append(p.stars, sp)
-		s.starIDs = append(s.starIDs, sp.ID)
-	}
-	finder, err := s.batchFinder(int(n), mode, offsets, indices)
+	var err error
+	p.stars, err = convertStars(&s.batch, stars, a.n, p.stars, func(c *starParticleABI) (feedback.StarParticle, int64, error) {
+		sp, err := starParticle(c)
+		return sp, c.ID, err
+	})
 	if err != nil {
 		return err
 	}
-	s.stepped, s.applied, p.valid = false, false, false
-	if err := p.stepper.Step(&s.gas, finder, p.stars, uint64(step), dt, &p.out); err != nil {
-		s.out.Records, s.out.Problems, s.out.Ledger = s.out.Records[:0], s.out.Problems[:0], feedback.Ledger{}
-		return fail(codeInvalidArgument, "population step: %w", err)
-	}
-	// The step's records and ledger become the context's, as after
-	// ejecta_step; the buffers are swapped, not copied.
-	s.out.Records, p.out.Records = p.out.Records, s.out.Records
-	s.out.Problems, p.out.Problems = p.out.Problems, s.out.Problems
-	s.out.Ledger = p.out.Ledger
-	s.stepped = true
-	p.countSupernovae()
-	p.valid = true
-	if pr := s.out.Problems; len(pr) > 0 {
-		return fail(codeUndeposited, "%d star-channel releases of %d stars returned undeposited; first: star %d (index %d): %v",
-			len(pr), n, pr[0].StarID, pr[0].Index, pr[0].Err)
-	}
-	return nil
+	return s.runBatch(populationStep, &a, func(f neighbor.Finder) error {
+		if err := p.stepper.Step(&s.gas.gas, f, p.stars, uint64(a.step), dt, &p.out); err != nil {
+			return failWith(codeInvalidArgument, err, "population step")
+		}
+		// The step's records and ledger become the context's, as after
+		// ejecta_step; the buffers are swapped, not copied.
+		s.out.Records, p.out.Records = p.out.Records, s.out.Records
+		s.out.Problems, p.out.Problems = p.out.Problems, s.out.Problems
+		s.out.Ledger = p.out.Ledger
+		p.countSupernovae()
+		return nil
+	})
 }
 
 // countSupernovae copies each star's supernovae of the step from the
@@ -295,43 +271,39 @@ func (p *population) countSupernovae() {
 	}
 }
 
-// invalidatePopulation drops the results of the last population step
-// (another step ran, or the gas was rebound).
-func (s *session) invalidatePopulation() {
-	if s.pop != nil {
-		s.pop.valid = false
-	}
-}
-
-// popResults returns the population of the context if its results are
-// those of the last step.
+// popResults returns the population of the context if the context holds
+// the results of a population step.
 func (s *session) popResults() *population {
-	if s.pop == nil || !s.pop.valid {
+	if s.pop == nil || !s.stepped() || s.kind != populationStep {
 		return nil
 	}
 	return s.pop
 }
 
+// entryPopulationDefaults is behind ejecta_population_defaults.
 func entryPopulationDefaults(c *populationConfigABI) int32 {
-	return codeOf(guard(func() error {
+	return run(func() error {
 		if c == nil {
 			return fail(codeNullPointer, "population config is NULL")
 		}
 		*c = defaultPopulationConfig()
 		return nil
-	}))
+	})
 }
 
+// entryEnablePopulation is behind ejecta_enable_population.
 func entryEnablePopulation(h uint64, c *populationConfigABI) int32 {
 	return withSession(h, func(s *session) error { return s.enablePopulation(c) })
 }
 
+// entryStepPopulation is behind ejecta_step_population.
 func entryStepPopulation(h uint64, stars *starParticleABI, n int64, dt float64, step int64, mode int32, offsets, indices *int64) int32 {
 	return withSession(h, func(s *session) error {
-		return s.stepPopulation(stars, n, dt, step, mode, offsets, indices)
+		return s.stepPopulation(stars, dt, batchArgs{n: n, step: step, mode: mode, offsets: offsets, indices: indices})
 	})
 }
 
+// entryCopyStarResults is behind ejecta_copy_star_results.
 func entryCopyStarResults(h uint64, dst *starResultABI, capacity int64, written *int64) int32 {
 	return withSession(h, func(s *session) error {
 		p := s.popResults()
@@ -348,6 +320,7 @@ func entryCopyStarResults(h uint64, dst *starResultABI, capacity int64, written 
 	})
 }
 
+// entrySuggestedStep is behind ejecta_suggested_step.
 func entrySuggestedStep(h uint64, dt *float64) int32 {
 	return withSession(h, func(s *session) error {
 		if dt == nil {
@@ -361,6 +334,7 @@ func entrySuggestedStep(h uint64, dt *float64) int32 {
 	})
 }
 
+// entryGetChannelLedger is behind ejecta_get_channel_ledger.
 func entryGetChannelLedger(h uint64, channel int32, dst *ledgerABI) int32 {
 	return withSession(h, func(s *session) error {
 		if dst == nil {

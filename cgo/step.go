@@ -1,0 +1,217 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"unsafe"
+
+	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/neighbor"
+	"github.com/ejecta-dev/ejecta/yields"
+)
+
+// Neighbor modes of a step (EJECTA_NEIGHBORS_*).
+const (
+	modeOwnFinder int32 = 0
+	modeHostRows  int32 = 1
+)
+
+// starABI mirrors ejecta_star.
+type starABI struct {
+	ID          int64
+	Position    [3]float64
+	Velocity    [3]float64
+	Mass        float64
+	Metallicity float64
+	Age         float64
+	Channel     int32
+	Reserved    int32
+	EjectedMass float64
+	SpeciesMass [numSpecies]float64
+	Energy      float64
+	Events      float64
+	Photons     float64
+	Duration    float64
+}
+
+// batch is the scratch in which both kinds of step prepare their stars:
+// the release sources of ejecta_step, the star IDs of either kind, and
+// the host's neighbor rows.
+type batch struct {
+	sources []feedback.Source
+	starIDs []int64
+	offsets []int
+	indices []int
+	rows    neighbor.HostLists
+}
+
+// batchArgs are the arguments both kinds of step share.
+type batchArgs struct {
+	n       int64
+	step    int64
+	mode    int32
+	offsets *int64
+	indices *int64
+}
+
+// check refuses arguments out of range; starsNil says the star array is
+// NULL.
+func (a *batchArgs) check(starsNil bool) error {
+	if starsNil {
+		return fail(codeNullPointer, "stars is NULL")
+	}
+	if a.n <= 0 || a.n > math.MaxInt32 {
+		return fail(codeInvalidArgument, "n_stars %d must be positive", a.n)
+	}
+	if a.step < 0 {
+		return fail(codeInvalidArgument, "step_index %d must be >= 0", a.step)
+	}
+	if a.mode != modeOwnFinder && a.mode != modeHostRows {
+		return fail(codeInvalidArgument, "neighbor_mode %d: want %d (own finder) or %d (host rows)", a.mode, modeOwnFinder, modeHostRows)
+	}
+	return nil
+}
+
+// convertStars converts and checks the n C stars into dst (reset first)
+// and records their IDs in the batch; convert returns a star's Go form and
+// its ID.
+func convertStars[C, G any](b *batch, stars *C, n int64, dst []G, convert func(*C) (G, int64, error)) ([]G, error) {
+	dst = dst[:0]
+	b.starIDs = b.starIDs[:0]
+	for i, c := range unsafe.Slice(stars, n) {
+		g, id, err := convert(&c)
+		if err != nil {
+			return dst, fmt.Errorf("star %d of %d: %w", i, n, err)
+		}
+		dst = append(dst, g)
+		b.starIDs = append(b.starIDs, id)
+	}
+	return dst, nil
+}
+
+// runBatch is the path both kinds of step share after their stars are
+// converted: it checks that the star IDs are unique, prepares the finder
+// of the neighbor mode, runs couple, and keeps its results (records,
+// ledger, problems in s.out) as the context's, or drops them when coupling
+// failed or the gas it would deposit into is refused.
+func (s *session) runBatch(kind stepKind, a *batchArgs, couple func(neighbor.Finder) error) error {
+	slices.Sort(s.batch.starIDs)
+	for i := 1; i < len(s.batch.starIDs); i++ {
+		if s.batch.starIDs[i] == s.batch.starIDs[i-1] {
+			return fail(codeInvalidArgument, "star ID %d appears twice in the batch", s.batch.starIDs[i])
+		}
+	}
+	finder, err := s.finder(a)
+	if err != nil {
+		return err
+	}
+	s.dropResults()
+	if err := couple(finder); err != nil {
+		s.dropResults()
+		return err
+	}
+	s.phase, s.kind = phaseStepped, kind
+	if p := s.out.Problems; len(p) > 0 {
+		return fail(codeUndeposited, "releases returned undeposited: %d (of %d stars); first: star %d (index %d, channel %s): %v",
+			len(p), a.n, p[0].StarID, p[0].Index, feedback.ChannelName(p[0].Channel), p[0].Err)
+	}
+	return nil
+}
+
+// finder returns the finder of the step's neighbor mode.
+func (s *session) finder(a *batchArgs) (neighbor.Finder, error) {
+	if a.mode == modeOwnFinder {
+		return s.gas.ownTree(s.cfg.Box)
+	}
+	return s.rowFinder(int(a.n), a.offsets, a.indices)
+}
+
+// rowFinder wraps the host's compressed rows.
+func (s *session) rowFinder(n int, offsets, indices *int64) (neighbor.Finder, error) {
+	if offsets == nil {
+		return nil, fail(codeNullPointer, "row_offsets is NULL in host-rows mode")
+	}
+	gas, b := &s.gas, &s.batch
+	offs := unsafe.Slice(offsets, n+1)
+	total := offs[n]
+	if offs[0] != 0 || total < 0 || total > math.MaxInt32*64 {
+		return nil, fail(codeNeighbors, "row_offsets[0] = %d and row_offsets[%d] = %d: want 0 and a non-negative total", offs[0], n, total)
+	}
+	if total > 0 && indices == nil {
+		return nil, fail(codeNullPointer, "row_indices is NULL with %d entries", total)
+	}
+	b.offsets = b.offsets[:0]
+	for _, o := range offs {
+		b.offsets = append(b.offsets, int(o))
+	}
+	b.indices = b.indices[:0]
+	if total > 0 {
+		for _, i := range unsafe.Slice(indices, total) {
+			if i < 0 || i >= int64(gas.gas.N) {
+				return nil, fail(codeNeighbors, "row_indices names gas index %d, want [0, %d)", i, gas.gas.N)
+			}
+			b.indices = append(b.indices, int(i))
+		}
+	}
+	gas.packed = gas.gas.PackedPositions(gas.packed)
+	gas.ids = gas.gas.IDs(gas.ids)
+	// The host's rows are handed over every step: reuse the lists' scratch.
+	if err := b.rows.Reset(gas.packed, gas.ids, s.cfg.Box, b.offsets, b.indices); err != nil {
+		return nil, failWith(codeNeighbors, err, "host rows")
+	}
+	return &b.rows, nil
+}
+
+// starSource converts one C star into a source, checking it.
+func starSource(st *starABI) (feedback.Source, error) {
+	src := feedback.Source{
+		Star: feedback.Star{ID: st.ID, Pos: st.Position, Vel: st.Velocity, Mass: st.Mass,
+			Metallicity: st.Metallicity, Age: st.Age},
+		Channel: yields.Channel(st.Channel), Mass: st.EjectedMass, Species: st.SpeciesMass,
+		Energy: st.Energy, Events: st.Events, Photons: st.Photons, Duration: st.Duration,
+	}
+	if st.Channel < 0 || yields.Channel(st.Channel) >= yields.NumChannels {
+		return src, fail(codeInvalidArgument, "star %d: channel %d is not a channel code", st.ID, st.Channel)
+	}
+	if err := src.Validate(); err != nil {
+		return src, failWith(codeBadValue, err, "star %d", st.ID)
+	}
+	if !(st.Mass >= 0) || !(st.Age >= 0) || !(st.Metallicity >= 0) {
+		return src, fail(codeBadValue, "star %d: mass %g, age %g and metallicity %g must be >= 0", st.ID, st.Mass, st.Age, st.Metallicity)
+	}
+	return src, nil
+}
+
+// step is behind ejecta_step.
+func (s *session) step(stars *starABI, a batchArgs) error {
+	if err := a.check(stars == nil); err != nil {
+		return err
+	}
+	if err := s.requireGas(); err != nil {
+		return err
+	}
+	var err error
+	s.batch.sources, err = convertStars(&s.batch, stars, a.n, s.batch.sources, func(st *starABI) (feedback.Source, int64, error) {
+		src, err := starSource(st)
+		src.Step = s.steps
+		return src, st.ID, err
+	})
+	if err != nil {
+		return err
+	}
+	return s.runBatch(releaseStep, &a, func(f neighbor.Finder) error {
+		if err := s.coupler.Couple(&s.gas.gas, f, s.batch.sources, &s.out); err != nil {
+			return failWith(codeInvalidArgument, err, "step")
+		}
+		s.steps++
+		return nil
+	})
+}
+
+// entryStep is behind ejecta_step.
+func entryStep(h uint64, stars *starABI, n int64, mode int32, offsets, indices *int64) int32 {
+	return withSession(h, func(s *session) error {
+		return s.step(stars, batchArgs{n: n, mode: mode, offsets: offsets, indices: indices})
+	})
+}
