@@ -6,7 +6,6 @@ import (
 	"math"
 	"slices"
 	"sync"
-	"sync/atomic"
 
 	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
@@ -91,6 +90,7 @@ type Coupler struct {
 	order   []int
 	mu      sync.Mutex
 	call    callState
+	pool    workerPool
 }
 
 // callState is what the workers of one Couple call share; it lives in the
@@ -103,8 +103,6 @@ type callState struct {
 	fixed     bool
 	metals    Column
 	hasMetals bool
-	next      atomic.Int64
-	wg        sync.WaitGroup
 }
 
 type slot struct {
@@ -175,7 +173,7 @@ var errNoNeighbors = errors.New("no gas neighbors")
 // out.Problems; Couple's error is for problems with the call itself.
 func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out *Output) error {
 	if !c.mu.TryLock() {
-		return errors.New("couple: coupler already in use by another call")
+		return fmt.Errorf("couple: coupler %w", ErrBusy)
 	}
 	defer c.mu.Unlock()
 	if out == nil {
@@ -216,17 +214,13 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 	cs := &c.call
 	cs.gas, cs.finder, cs.sources, cs.out, cs.fixed = gas, finder, sources, out, fixed
 	cs.metals, cs.hasMetals = metals, hasMetals
-	cs.next.Store(0)
-	if len(c.workers) == 1 || n <= couplerChunk {
-		c.work(0)
-	} else {
-		for w := range c.workers {
-			cs.wg.Add(1)
-			go c.workAndSignal(w)
-		}
-		cs.wg.Wait()
-	}
+	err := c.pool.run(c, len(c.workers), n)
 	cs.gas, cs.finder, cs.sources, cs.out, cs.metals = nil, nil, nil, nil, Column{}
+	if err != nil {
+		// A worker panicked: nothing of the call is deposited.
+		out.Records = out.Records[:0]
+		return fmt.Errorf("couple: %w", err)
+	}
 
 	kept := 0
 	for i := range c.slots {
@@ -271,45 +265,27 @@ func cmpInt64(a, b int64) int {
 	return 0
 }
 
-// couplerChunk is how many consecutive stars a worker takes at a time.
-const couplerChunk = 16
-
-func (c *Coupler) workAndSignal(w int) {
-	defer c.call.wg.Done()
-	c.work(w)
-}
-
-// work couples stars, chunk by chunk, until none are left.
-func (c *Coupler) work(w int) {
+// runItem couples source i on worker w's scratch, writing its slot.
+func (c *Coupler) runItem(w, i int) {
 	cs := &c.call
 	ws := &c.workers[w]
-	n := len(cs.sources)
 	k := c.cfg.Neighbors
-	for {
-		lo := int(cs.next.Add(couplerChunk)) - couplerChunk
-		if lo >= n {
-			return
-		}
-		hi := min(lo+couplerChunk, n)
-		for i := lo; i < hi; i++ {
-			sl := &c.slots[i]
-			sl.worker = w
-			var dst []Record
-			if cs.fixed {
-				sl.start = i * k
-				dst = cs.out.Records[i*k : i*k : i*k+k]
-			} else {
-				sl.start = len(ws.records)
-				dst = ws.records
-			}
-			dst, sl.ledger, sl.err = c.coupleOne(ws, cs.gas, cs.finder, &cs.sources[i], i, cs.metals, cs.hasMetals, dst)
-			if cs.fixed {
-				sl.count = len(dst)
-			} else {
-				sl.count = len(dst) - sl.start
-				ws.records = dst
-			}
-		}
+	sl := &c.slots[i]
+	sl.worker = w
+	var dst []Record
+	if cs.fixed {
+		sl.start = i * k
+		dst = cs.out.Records[i*k : i*k : i*k+k]
+	} else {
+		sl.start = len(ws.records)
+		dst = ws.records
+	}
+	dst, sl.ledger, sl.err = c.coupleOne(ws, cs.gas, cs.finder, &cs.sources[i], i, cs.metals, cs.hasMetals, dst)
+	if cs.fixed {
+		sl.count = len(dst)
+	} else {
+		sl.count = len(dst) - sl.start
+		ws.records = dst
 	}
 }
 

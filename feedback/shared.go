@@ -3,8 +3,6 @@ package feedback
 import (
 	"fmt"
 	"math"
-	"sync"
-	"sync/atomic"
 
 	"github.com/ejecta-dev/ejecta/neighbor"
 )
@@ -16,13 +14,18 @@ import (
 type sharedSearch struct {
 	rows [][]neighbor.Neighbor
 	errs []error
-	next atomic.Int64
-	wg   sync.WaitGroup
+	pool workerPool
+	// finder, stars and cfg are those of the running fill.
+	finder neighbor.Finder
+	stars  []StarParticle
+	cfg    Config
 }
 
 // fill runs the search for every star with the coupling configuration's
-// neighbor count or radius, on workers goroutines.
-func (s *sharedSearch) fill(f neighbor.Finder, stars []StarParticle, cfg Config) {
+// neighbor count or radius, on cfg.Workers goroutines. Its error is a
+// recovered panic of the finder (ErrInternal); a failed search is kept as
+// the star's row error.
+func (s *sharedSearch) fill(f neighbor.Finder, stars []StarParticle, cfg Config) error {
 	n := len(stars)
 	if cap(s.rows) < n {
 		rows := make([][]neighbor.Neighbor, n)
@@ -31,37 +34,20 @@ func (s *sharedSearch) fill(f neighbor.Finder, stars []StarParticle, cfg Config)
 		s.errs = make([]error, n)
 	}
 	s.rows, s.errs = s.rows[:n], s.errs[:n]
-	search := func(i int) {
-		q := neighbor.Query{Pos: stars[i].Pos, Star: i}
-		if cfg.Radius > 0 {
-			s.rows[i], s.errs[i] = f.Within(q, cfg.Radius, s.rows[i])
-		} else {
-			s.rows[i], s.errs[i] = f.Nearest(q, cfg.Neighbors, s.rows[i])
-		}
+	s.finder, s.stars, s.cfg = f, stars, cfg
+	err := s.pool.run(s, cfg.Workers, n)
+	s.finder, s.stars = nil, nil
+	return err
+}
+
+// runItem searches star i's neighbors.
+func (s *sharedSearch) runItem(_, i int) {
+	q := neighbor.Query{Pos: s.stars[i].Pos, Star: i}
+	if s.cfg.Radius > 0 {
+		s.rows[i], s.errs[i] = s.finder.Within(q, s.cfg.Radius, s.rows[i])
+	} else {
+		s.rows[i], s.errs[i] = s.finder.Nearest(q, s.cfg.Neighbors, s.rows[i])
 	}
-	if cfg.Workers <= 1 || n <= couplerChunk {
-		for i := range stars {
-			search(i)
-		}
-		return
-	}
-	s.next.Store(0)
-	for w := 0; w < cfg.Workers; w++ {
-		s.wg.Add(1)
-		go func() {
-			defer s.wg.Done()
-			for {
-				lo := int(s.next.Add(couplerChunk)) - couplerChunk
-				if lo >= n {
-					return
-				}
-				for i := lo; i < min(lo+couplerChunk, n); i++ {
-					search(i)
-				}
-			}
-		}()
-	}
-	s.wg.Wait()
 }
 
 func (s *sharedSearch) row(q neighbor.Query) ([]neighbor.Neighbor, error) {

@@ -269,10 +269,16 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 	if finder == nil {
 		return errors.New("step: nil neighbor finder")
 	}
-	s.search.fill(finder, stars, s.couplers[0].Config())
+	if err := s.search.fill(finder, stars, s.couplers[0].Config()); err != nil {
+		return fmt.Errorf("step: neighbor search: %w", err)
+	}
 	for c := range s.couplers {
 		o := &s.outs[c]
 		if err := s.couplers[c].Couple(gas, &s.search, s.sources[c], o); err != nil {
+			// Nothing of a failed step is deposited, not even the
+			// channels already coupled.
+			out.Records, out.Problems = out.Records[:0], out.Problems[:0]
+			out.Ledger, out.Channels = Ledger{}, [NumStepChannels]Ledger{}
 			return fmt.Errorf("step: channel %s: %w", ChannelName(yields.Channel(c)), err)
 		}
 		if s.cfg.DelayedCooling && yields.Channel(c).Discrete() {
