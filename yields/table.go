@@ -489,3 +489,18 @@ func WriteTable(w io.Writer, m Model, layout TableLayout) error {
 	}
 	return nil
 }
+
+// Carries reports whether the table has columns for species s (summed
+// over the channels that have any); total metals, hydrogen and helium are
+// always carried. A species it lacks is released as zero.
+func (t *Table) Carries(s Species) bool {
+	if s < 0 || s >= NumSpecies {
+		return false
+	}
+	for ch := 0; ch < int(NumChannels); ch++ {
+		if t.present[colChannels+ch*colsPerChannel+chSpecies+int(s)] {
+			return true
+		}
+	}
+	return false
+}

@@ -13,7 +13,9 @@
 //	         tables and PNG plots to -out (default ./ejecta-out); -gas DIR
 //	         compares them on a user's own .npy snapshot
 //	rates    print what one Msun of a single burst releases, by age
-//	         (-imf, -z, -table FILE in the CSV format of package yields, -json)
+//	         (-imf or -table FILE in the CSV format of package yields, -z,
+//	         -elements O,Fe for per-element masses, -json); says where the
+//	         model is asked about ages or metallicities it does not cover
 //	audit    check a host's own before/after feedback dump for conservation,
 //	         star-frame balance and out-of-range changes (-manifest FILE,
 //	         -tol, -isotropy-tol, -json); exit status 1 when a check fails
@@ -34,7 +36,8 @@
 //	}
 //
 // Vectors are (n, 3) arrays, the rest (n,); "box" and "radiated" are
-// optional. Run "ejecta help" for the list of commands.
+// optional. Run "ejecta help" for the list of commands and "ejecta CMD -h"
+// for a command's description and flags.
 package main
 
 import (

@@ -2,9 +2,11 @@ package main
 
 import (
 	"encoding/json"
+	"flag"
 	"fmt"
 	"io"
 	"math"
+	"strings"
 	"text/tabwriter"
 
 	"github.com/ejecta-dev/ejecta/yields"
@@ -18,6 +20,9 @@ type ratesTotals struct {
 	// MetalYieldPerMsun is the total metal mass ejected (new metals plus
 	// those the stars were born with), Msun per Msun formed.
 	MetalYieldPerMsun float64 `json:"metal_yield_per_msun"`
+	// ElementsMsun is the mass of each element asked for with -elements,
+	// Msun per Msun formed, by symbol.
+	ElementsMsun map[string]float64 `json:"elements_msun,omitempty"`
 }
 
 // ratesBin is one age bin; counts and masses are per Msun formed within the
@@ -32,13 +37,21 @@ type ratesBin struct {
 	Energy         float64 `json:"energy_erg"`
 	Luminosity     float64 `json:"luminosity_lsun"`
 	IonizingPerSec float64 `json:"ionizing_photons_per_s"`
+	// ElementsMsun is the mass of each element asked for, by symbol.
+	ElementsMsun map[string]float64 `json:"elements_msun,omitempty"`
 }
 
 type ratesReport struct {
-	IMF         string      `json:"imf"`
-	Metallicity float64     `json:"metallicity"`
-	Totals      ratesTotals `json:"totals"`
-	Bins        []ratesBin  `json:"bins"`
+	IMF         string  `json:"imf"`
+	Metallicity float64 `json:"metallicity"`
+	// Elements lists the symbols asked for with -elements, in order.
+	Elements []string    `json:"elements"`
+	Totals   ratesTotals `json:"totals"`
+	Bins     []ratesBin  `json:"bins"`
+	// Notes say where the model was used outside the range it covers
+	// (ages or metallicities beyond a table's grid, metallicities beyond
+	// the lifetime fit's) and what it did there.
+	Notes []string `json:"notes"`
 }
 
 // defaultRatesZ is the present-day solar metal mass fraction of Asplund et
@@ -49,10 +62,12 @@ var ratesCommand = subcommand{
 	name:     "rates",
 	synopsis: "[flags]",
 	description: "Prints what one Msun of stars formed in a single burst releases, by age: " +
-		"core-collapse and Type Ia supernovae, ejected mass and metals, energy (explosions and " +
-		"wind kinetic energy), and the luminosity and ionizing photon rate at each bin's start, " +
-		"from the built-in population (-imf) or a rates table in the CSV format of package yields (-table). " +
-		"The first bin runs from age 0 to 0.1 Myr; the rest are log-spaced up to 13.8 Gyr.",
+		"core-collapse and Type Ia supernovae, ejected mass and metals (and, with -elements, the mass of " +
+		"each element asked for), energy (explosions and wind kinetic energy), and the luminosity and " +
+		"ionizing photon rate at each bin's start, from the built-in population (-imf) or a rates table " +
+		"in the CSV format of package yields (-table). The first bin runs from age 0 to 0.1 Myr; the " +
+		"rest are log-spaced up to 13.8 Gyr. Where the model is asked about ages or metallicities it " +
+		"does not cover, the output says so and what was done instead.",
 }
 
 func runRates(args []string, stdout, stderr io.Writer) int {
@@ -61,6 +76,7 @@ func runRates(args []string, stdout, stderr io.Writer) int {
 	z := fs.Float64("z", defaultRatesZ, "metal mass fraction (default 0.0134, solar: Asplund et al. 2009)")
 	tablePath := fs.String("table", "", "read the population from this CSV rates table instead of the built-in model")
 	perDecade := fs.Int("per-decade", 4, "age bins per decade between 0.1 Myr and 13.8 Gyr")
+	elements := fs.String("elements", "", "comma-separated element symbols whose ejected mass to print as well (e.g. O,Fe), or \"all\" for every element the model carries")
 	asJSON := fs.Bool("json", false, "print one JSON object instead of a text table")
 	if code, ok := ratesCommand.parseFlags(fs, args, stdout, stderr); !ok {
 		return code
@@ -73,15 +89,22 @@ func runRates(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ejecta rates: -per-decade %d: want 1..100\n", *perDecade)
 		return 2
 	}
+	imfSet := false
+	fs.Visit(func(f *flag.Flag) { imfSet = imfSet || f.Name == "imf" })
+	if imfSet && *tablePath != "" {
+		fmt.Fprintln(stderr, "ejecta rates: -imf and -table exclude each other: a table carries its own population")
+		return 2
+	}
 	var model yields.Model
 	label := ""
+	carries := func(yields.Species) bool { return true }
 	if *tablePath != "" {
 		t, err := yields.ReadTableFile(*tablePath)
 		if err != nil {
 			fmt.Fprintf(stderr, "ejecta rates: %v\n", err)
 			return 1
 		}
-		model, label = t, "table:"+*tablePath
+		model, label, carries = t, "table:"+*tablePath, t.Carries
 	} else {
 		form, err := yields.ParseIMFForm(*imfName)
 		if err != nil {
@@ -97,10 +120,19 @@ func runRates(args []string, stdout, stderr io.Writer) int {
 		}
 		model, label = p, form.String()
 	}
-	rep, err := buildRatesReport(model, label, *z, *perDecade)
+	species, err := parseElements(*elements, carries)
+	if err != nil {
+		fmt.Fprintf(stderr, "ejecta rates: -elements: %v\n", err)
+		return 2
+	}
+	rep, err := buildRatesReport(model, label, *z, *perDecade, species)
 	if err != nil {
 		fmt.Fprintf(stderr, "ejecta rates: %v\n", err)
 		return 1
+	}
+	rep.Notes = coverageNotes(model, *z)
+	for _, n := range rep.Notes {
+		fmt.Fprintf(stderr, "ejecta rates: note: %s\n", n)
 	}
 	if *asJSON {
 		enc := json.NewEncoder(stdout)
@@ -115,6 +147,89 @@ func runRates(args []string, stdout, stderr io.Writer) int {
 	return 0
 }
 
+// parseElements reads the -elements list: element symbols (not "Z", the
+// total metals, which is always printed), each once, each one the model
+// carries; "all" is every element it carries.
+func parseElements(list string, carries func(yields.Species) bool) ([]yields.Species, error) {
+	if strings.TrimSpace(list) == "all" {
+		var out []yields.Species
+		for s := yields.Species(0); s < yields.NumSpecies; s++ {
+			if s != yields.Metals && carries(s) {
+				out = append(out, s)
+			}
+		}
+		return out, nil
+	}
+	var out []yields.Species
+	seen := map[yields.Species]bool{}
+	for _, sym := range splitList(list) {
+		s, ok := speciesBySymbol(sym)
+		switch {
+		case !ok || s == yields.Metals:
+			return nil, fmt.Errorf("unknown element %q (the model tracks %s)", sym, knownElements(carries))
+		case seen[s]:
+			return nil, fmt.Errorf("element %s named twice", sym)
+		case !carries(s):
+			return nil, fmt.Errorf("the table has no columns for %s (it carries %s)", sym, knownElements(carries))
+		}
+		seen[s] = true
+		out = append(out, s)
+	}
+	return out, nil
+}
+
+func speciesBySymbol(sym string) (yields.Species, bool) {
+	for s := yields.Species(0); s < yields.NumSpecies; s++ {
+		if s.Symbol() == sym {
+			return s, true
+		}
+	}
+	return 0, false
+}
+
+func knownElements(carries func(yields.Species) bool) string {
+	var names []string
+	for s := yields.Species(0); s < yields.NumSpecies; s++ {
+		if s != yields.Metals && carries(s) {
+			names = append(names, s.Symbol())
+		}
+	}
+	return strings.Join(names, ", ")
+}
+
+// coverageNotes says where the bins and metallicity fall outside what the
+// model covers, and what it does there.
+func coverageNotes(m yields.Model, z float64) []string {
+	notes := []string{}
+	if t, ok := m.(*yields.Table); ok {
+		ages, zs := t.Ages(), t.Metallicities()
+		first, last := ages[0], ages[len(ages)-1]
+		if first > 0 {
+			notes = append(notes, fmt.Sprintf("ages below the table's first age %g Myr: the cumulative release grows "+
+				"linearly from zero at age 0 and the luminosity and photon rate are held at their first values", first))
+		}
+		if last < yields.HubbleTime {
+			notes = append(notes, fmt.Sprintf("ages past the table's last age %g Myr (bins run to %g Myr): nothing "+
+				"more is released and the luminosity and photon rate are held at their last values", last, yields.HubbleTime))
+		}
+		lo, hi := zs[0], zs[len(zs)-1]
+		switch {
+		case z < lo:
+			notes = append(notes, fmt.Sprintf("metallicity %g is below the table's lowest %g: the values printed are those at %g (clamped)", z, lo, lo))
+		case z > hi:
+			notes = append(notes, fmt.Sprintf("metallicity %g is above the table's highest %g: the values printed are those at %g (clamped)", z, hi, hi))
+		}
+		return notes
+	}
+	if z < yields.LifetimeMinZ || z > yields.LifetimeMaxZ {
+		c := math.Min(math.Max(z, yields.LifetimeMinZ), yields.LifetimeMaxZ)
+		notes = append(notes, fmt.Sprintf("metallicity %g is outside the range of the stellar lifetime fit "+
+			"(Raiteri, Villata & Navarro 1996: %g to %g): lifetimes are those at %g (clamped)",
+			z, yields.LifetimeMinZ, yields.LifetimeMaxZ, c))
+	}
+	return notes
+}
+
 // rateEdges are the bin edges: 0, then log-spaced from 0.1 Myr to the Hubble time.
 func rateEdges(perDecade int) []float64 {
 	const first = 0.1
@@ -126,8 +241,21 @@ func rateEdges(perDecade int) []float64 {
 	return append(edges, yields.HubbleTime)
 }
 
-func buildRatesReport(m yields.Model, label string, z float64, perDecade int) (ratesReport, error) {
-	rep := ratesReport{IMF: label, Metallicity: z}
+func buildRatesReport(m yields.Model, label string, z float64, perDecade int, elements []yields.Species) (ratesReport, error) {
+	rep := ratesReport{IMF: label, Metallicity: z, Elements: []string{}, Notes: []string{}}
+	for _, s := range elements {
+		rep.Elements = append(rep.Elements, s.Symbol())
+	}
+	masses := func(t yields.Ejecta) map[string]float64 {
+		if len(elements) == 0 {
+			return nil
+		}
+		out := make(map[string]float64, len(elements))
+		for _, s := range elements {
+			out[s.Symbol()] = t.Species[s]
+		}
+		return out
+	}
 	all, err := m.Release(0, yields.HubbleTime, z)
 	if err != nil {
 		return rep, err
@@ -138,6 +266,7 @@ func buildRatesReport(m yields.Model, label string, z float64, perDecade int) (r
 		SNIaPerMsun:          all.Channels[yields.TypeIa].Events,
 		ReturnedMassFraction: tot.Mass,
 		MetalYieldPerMsun:    tot.Species[yields.Metals],
+		ElementsMsun:         masses(tot),
 	}
 	edges := rateEdges(perDecade)
 	for i := 0; i+1 < len(edges); i++ {
@@ -158,7 +287,7 @@ func buildRatesReport(m yields.Model, label string, z float64, perDecade int) (r
 			AgeStart: edges[i], AgeEnd: edges[i+1],
 			SNCC: r.Channels[yields.CoreCollapse].Events, SNIa: r.Channels[yields.TypeIa].Events,
 			Ejecta: t.Mass, Metals: t.Species[yields.Metals], Energy: t.Energy,
-			Luminosity: l, IonizingPerSec: q,
+			Luminosity: l, IonizingPerSec: q, ElementsMsun: masses(t),
 		})
 	}
 	return rep, nil
@@ -166,13 +295,58 @@ func buildRatesReport(m yields.Model, label string, z float64, perDecade int) (r
 
 func printRates(w io.Writer, rep ratesReport) {
 	fmt.Fprintf(w, "# release of one Msun formed in a burst: %s, Z = %g\n", rep.IMF, rep.Metallicity)
-	fmt.Fprintf(w, "# totals to 13.8 Gyr: %.4g core-collapse SNe, %.4g SNe Ia, returned mass fraction %.4g, metals ejected %.4g Msun\n",
+	fmt.Fprintf(w, "# totals to 13.8 Gyr: %.4g core-collapse SNe, %.4g SNe Ia, returned mass fraction %.4g, metals ejected %.4g Msun",
 		rep.Totals.SNCCPerMsun, rep.Totals.SNIaPerMsun, rep.Totals.ReturnedMassFraction, rep.Totals.MetalYieldPerMsun)
+	for _, e := range rep.Elements {
+		fmt.Fprintf(w, ", %s %.4g Msun", e, rep.Totals.ElementsMsun[e])
+	}
+	fmt.Fprintln(w)
+	for _, n := range rep.Notes {
+		fmt.Fprintf(w, "# note: %s\n", n)
+	}
+	legend := []string{
+		"age0, age1: the bin's ages since the burst [Myr]; counts and masses are released within the bin, per Msun formed",
+		"SN_cc, SN_Ia: expected core-collapse and Type Ia supernovae",
+		"ejecta: mass returned to the gas by every channel [Msun]; metals: the metal mass in it, new and inherited [Msun]",
+	}
+	if len(rep.Elements) > 0 {
+		legend = append(legend, "element columns: the mass of that element in the ejecta [Msun]")
+	}
+	legend = append(legend,
+		"energy: supernova explosion energy plus wind kinetic energy released [erg]",
+		"L: bolometric luminosity at the bin's start [Lsun]; Q: hydrogen-ionizing photons emitted per second at the bin's start [1/s]")
+	for _, l := range legend {
+		fmt.Fprintln(w, indentText(wrapText(l, 76), "# "))
+	}
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "age0[Myr]\tage1[Myr]\tSN_cc\tSN_Ia\tejecta[Msun]\tmetals[Msun]\tenergy[erg]\tL[Lsun]\tQ[1/s]\t")
+	header := "age0[Myr]\tage1[Myr]\tSN_cc\tSN_Ia\tejecta[Msun]\tmetals[Msun]\t"
+	for _, e := range rep.Elements {
+		header += e + "[Msun]\t"
+	}
+	fmt.Fprintln(tw, header+"energy[erg]\tL[Lsun]\tQ[1/s]\t")
 	for _, b := range rep.Bins {
-		fmt.Fprintf(tw, "%.4g\t%.4g\t%.3e\t%.3e\t%.3e\t%.3e\t%.3e\t%.3e\t%.3e\t\n",
-			b.AgeStart, b.AgeEnd, b.SNCC, b.SNIa, b.Ejecta, b.Metals, b.Energy, b.Luminosity, b.IonizingPerSec)
+		line := fmt.Sprintf("%s\t%s\t%s\t%s\t%s\t%s\t", age(b.AgeStart), age(b.AgeEnd),
+			sci(b.SNCC), sci(b.SNIa), sci(b.Ejecta), sci(b.Metals))
+		for _, e := range rep.Elements {
+			line += sci(b.ElementsMsun[e]) + "\t"
+		}
+		fmt.Fprintln(tw, line+sci(b.Energy)+"\t"+sci(b.Luminosity)+"\t"+sci(b.IonizingPerSec)+"\t")
 	}
 	tw.Flush()
+}
+
+// age prints a bin edge to four significant digits, without an exponent.
+func age(v float64) string {
+	if v >= 1000 {
+		return fmt.Sprintf("%.0f", v)
+	}
+	return fmt.Sprintf("%.4g", v)
+}
+
+// sci prints a table value to four significant digits, and zero as 0.
+func sci(v float64) string {
+	if v == 0 {
+		return "0"
+	}
+	return fmt.Sprintf("%.3e", v)
 }

@@ -3,8 +3,10 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -121,5 +123,174 @@ func TestRatesTextAndErrors(t *testing.T) {
 		errOut.Reset()
 		assert.Equal(t, tc.code, run(tc.args, &out, &errOut), "%v", tc.args)
 		assert.Contains(t, errOut.String(), tc.msg, "%v", tc.args)
+	}
+}
+
+func TestRatesImfWithTableRefused(t *testing.T) {
+	path := filepath.Join("..", "..", "..", "testdata", "yields", "example_table.csv")
+	// Even the default IMF, named explicitly, is refused with a table.
+	for _, imf := range []string{"kroupa", "salpeter"} {
+		code, stdout, stderr := runCLI("rates", "-table", path, "-imf", imf)
+		assert.Equal(t, 2, code)
+		assert.Empty(t, stdout)
+		assert.Contains(t, stderr, "-imf and -table exclude each other")
+	}
+}
+
+// -elements prints the ejected mass of each element asked for: per bin
+// they add up to the totals, and the elements are part of the metals.
+func TestRatesElements(t *testing.T) {
+	rep := runRatesJSON(t, "-elements", "O,Fe,C")
+	assert.Equal(t, []string{"O", "Fe", "C"}, rep.Elements)
+	sum := map[string]float64{}
+	for _, b := range rep.Bins {
+		require.Len(t, b.ElementsMsun, 3)
+		var elems float64
+		for e, m := range b.ElementsMsun {
+			assert.GreaterOrEqual(t, m, 0.0, e)
+			sum[e] += m
+			elems += m
+		}
+		assert.LessOrEqual(t, elems, b.Metals*(1+1e-12))
+	}
+	for e, m := range rep.Totals.ElementsMsun {
+		assert.InEpsilon(t, m, sum[e], 1e-12, e)
+	}
+	// Oxygen is the most abundant metal ejected (about half of the metal
+	// yield of a stellar population: common practice, from memory), iron
+	// and carbon a few to ten per cent of it.
+	tot := rep.Totals
+	assert.Greater(t, tot.ElementsMsun["O"], 0.3*tot.MetalYieldPerMsun)
+	assert.Less(t, tot.ElementsMsun["O"], 0.7*tot.MetalYieldPerMsun)
+	assert.Less(t, tot.ElementsMsun["Fe"], tot.ElementsMsun["O"])
+
+	all := runRatesJSON(t, "-elements", "all")
+	assert.Equal(t, []string{"H", "He", "C", "N", "O", "Ne", "Mg", "Si", "S", "Ca", "Fe"}, all.Elements)
+	// H + He + metals is the ejected mass.
+	assert.InEpsilon(t, all.Totals.ReturnedMassFraction,
+		all.Totals.ElementsMsun["H"]+all.Totals.ElementsMsun["He"]+all.Totals.MetalYieldPerMsun, 1e-9)
+
+	// A table prints only what it carries: the example table has O and Fe.
+	path := filepath.Join("..", "..", "..", "testdata", "yields", "example_table.csv")
+	tab := runRatesJSON(t, "-table", path, "-elements", "all")
+	assert.Equal(t, []string{"H", "He", "O", "Fe"}, tab.Elements)
+
+	code, stdout, stderr := runCLI("rates", "-elements", "O,Fe", "-per-decade", "1")
+	require.Equal(t, 0, code, stderr)
+	assert.Regexp(t, `metals\[Msun\] +O\[Msun\] +Fe\[Msun\] +energy\[erg\]`, stdout)
+	assert.Contains(t, stdout, "element columns: the mass of that element")
+
+	none := runRatesJSON(t)
+	assert.Empty(t, none.Elements)
+	assert.Nil(t, none.Bins[0].ElementsMsun)
+}
+
+func TestRatesElementsErrors(t *testing.T) {
+	path := filepath.Join("..", "..", "..", "testdata", "yields", "example_table.csv")
+	tests := []struct {
+		args []string
+		want string
+	}{
+		{[]string{"-elements", "O,Xx"}, `unknown element "Xx"`},
+		{[]string{"-elements", "Z"}, `unknown element "Z"`},
+		{[]string{"-elements", "o"}, `unknown element "o"`},
+		{[]string{"-elements", "O,Fe,O"}, "O named twice"},
+		{[]string{"-table", path, "-elements", "C"}, "the table has no columns for C (it carries H, He, O, Fe)"},
+	}
+	for _, tc := range tests {
+		code, stdout, stderr := runCLI(append([]string{"rates"}, tc.args...)...)
+		assert.Equal(t, 2, code, "%v", tc.args)
+		assert.Empty(t, stdout)
+		assert.Contains(t, stderr, tc.want, "%v", tc.args)
+	}
+}
+
+// Asked about ages or metallicities the model does not cover, rates says
+// so (stderr, the text table's header, the JSON notes) and what it did.
+func TestRatesCoverageNotes(t *testing.T) {
+	path := filepath.Join("..", "..", "..", "testdata", "yields", "example_table.csv")
+	// A table cut at 100 Myr and its metallicities 0.001..0.03.
+	short := filepath.Join(t.TempDir(), "short.csv")
+	b, err := os.ReadFile(path)
+	require.NoError(t, err)
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	kept := []string{lines[0]}
+	for _, l := range lines[1:] {
+		var a float64
+		_, err := fmt.Sscanf(strings.Split(l, ",")[0], "%g", &a)
+		require.NoError(t, err)
+		if a <= 100 {
+			kept = append(kept, l)
+		}
+	}
+	require.NoError(t, os.WriteFile(short, []byte(strings.Join(kept, "\n")+"\n"), 0o644))
+
+	tests := []struct {
+		name string
+		args []string
+		want []string
+	}{
+		{"built-in, solar", nil, nil},
+		{"built-in, above the lifetime fit", []string{"-z", "0.05"}, []string{"outside the range of the stellar lifetime fit", "those at 0.03 (clamped)"}},
+		{"built-in, below the lifetime fit", []string{"-z", "1e-6"}, []string{"those at 7e-05 (clamped)"}},
+		{"table, inside", []string{"-table", path, "-z", "0.0134"}, []string{"below the table's first age 0.1 Myr"}},
+		{"table, metal-poor", []string{"-table", path, "-z", "1e-4"}, []string{"below the table's lowest 0.001", "those at 0.001 (clamped)"}},
+		{"table, metal-rich", []string{"-table", path, "-z", "0.04"}, []string{"above the table's highest 0.03"}},
+		{"table, short in age", []string{"-table", short}, []string{"past the table's last age 100 Myr", "nothing more is released"}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			rep := runRatesJSON(t, tc.args...)
+			require.NotNil(t, rep.Notes, "an empty list, not null")
+			notes := strings.Join(rep.Notes, "\n")
+			for _, w := range tc.want {
+				assert.Contains(t, notes, w)
+			}
+			if tc.want == nil {
+				assert.Empty(t, rep.Notes)
+			}
+			code, stdout, stderr := runCLI(append([]string{"rates", "-per-decade", "1"}, tc.args...)...)
+			require.Equal(t, 0, code, stderr)
+			for _, w := range tc.want {
+				assert.Contains(t, stderr, w)
+				assert.Regexp(t, "(?m)^# note: .*"+regexp.QuoteMeta(w), stdout)
+			}
+			if tc.want == nil {
+				assert.NotContains(t, stdout, "# note")
+				assert.Empty(t, stderr)
+			}
+		})
+	}
+	// Past the last age a short table releases nothing more.
+	rep := runRatesJSON(t, "-table", short)
+	for _, b := range rep.Bins {
+		if b.AgeStart >= 100 {
+			assert.Zero(t, b.Ejecta, "bin from %g Myr", b.AgeStart)
+		}
+	}
+}
+
+// The text table explains every column with its unit and prints numbers
+// to four significant digits.
+func TestRatesTextExplained(t *testing.T) {
+	code, stdout, stderr := runCLI("rates", "-per-decade", "2")
+	require.Equal(t, 0, code, stderr)
+	for _, w := range []string{"age0, age1: the bin", "[Myr]", "SN_cc, SN_Ia: expected", "ejecta: mass returned", "metals: the metal mass",
+		"energy: supernova explosion energy plus wind kinetic energy released [erg]", "L: bolometric luminosity", "[Lsun]",
+		"Q: hydrogen-ionizing photons emitted per second", "[1/s]"} {
+		assert.Contains(t, strings.Join(strings.Fields(strings.ReplaceAll(stdout, "\n# ", " ")), " "), w)
+	}
+	for _, l := range strings.Split(stdout, "\n") {
+		if strings.HasPrefix(l, "#") {
+			continue
+		}
+		for i, f := range strings.Fields(l) {
+			if m := regexp.MustCompile(`^(\d+)\.(\d+)(e[+-]\d+)?$`).FindStringSubmatch(f); m != nil {
+				assert.LessOrEqual(t, len(strings.TrimLeft(m[1]+m[2], "0")), 4, f)
+			}
+			if i < 2 && !strings.Contains(f, "[") {
+				assert.NotContains(t, f, "e", "ages print without an exponent")
+			}
+		}
 	}
 }
