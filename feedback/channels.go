@@ -263,16 +263,28 @@ func (Photoionization) Deposit(nb *Neighborhood, out []Deposit) (float64, error)
 
 // StochasticHeating is the stochastic thermal feedback of Dalla Vecchia &
 // Schaye 2012 (MNRAS 426, 140): rather than spreading the energy thinly,
-// it heats a few neighbors by a fixed temperature jump, so the heated gas
-// cools slowly. Each neighbor is heated with probability p = E / (Δu sum_j
-// m_j), Δu the specific energy of the jump, so the expected energy is E;
-// the draws use the counter-based generator keyed by (seed, star ID, step),
-// neighbor by neighbor in order of distance. The heated neighbors share
-// E in proportion to their masses, so energy is conserved exactly in every
-// draw, not only on average; when no neighbor is drawn, the energy is
-// returned undeposited for the caller to carry into the next step. Mass,
-// species and the ejecta's momentum are shared by weight as in a thermal
-// dump.
+// it heats a few neighbors by a fixed temperature jump ΔT, so the heated
+// gas cools slowly. With the budget A (the source's energy, which for the
+// stepper's supernova channels includes the energy the star carried from
+// earlier steps), each neighbor is drawn with probability
+// p = A / (Δu sum_j m_j), Δu the specific energy of the jump, so the
+// expected energy of the drawn set is A; the draws use the counter-based
+// generator keyed by (seed, star ID, step), neighbor by neighbor in order
+// of distance.
+//
+// Every heated element gets exactly ΔT: its specific internal energy,
+// after mixing in its share of the ejecta, rises by Δu, which costs
+// (m_j + dm_j)(u_j + Δu) - m_j u_j (less the heat the mixing itself
+// releases). A drawn element is heated only if what is left of the budget
+// pays for it; what the heated elements do not use is returned
+// undeposited (Ledger.Undeposited), which the stepper carries to the
+// star's next step (StepOutput.Carry), so no energy is lost and the energy
+// deposited matches the energy released over many steps. Elements too
+// massive for the budget are heated once the star has carried enough.
+// When the budget could heat every neighbor (p >= 1), all are heated and
+// share the whole budget in proportion to their masses, each by at least
+// ΔT. Mass, species and the ejecta's momentum are shared by weight as in a
+// thermal dump.
 type StochasticHeating struct {
 	// TemperatureJump in K; zero means 10^7.5 K (the value Dalla Vecchia &
 	// Schaye 2012 recommend, from memory).
@@ -296,27 +308,50 @@ func (s StochasticHeating) Deposit(nb *Neighborhood, out []Deposit) (float64, er
 	src := nb.Source
 	du := specificEnergyAt(dT, IonizedMeanMolecularWeight) / nb.Units.SpecificEnergy()
 	total := 0.0
-	for _, m := range nb.Mass {
-		total += m
-	}
-	p := src.Energy / (du * total)
-	rng := yields.NewCounterRNG(s.Seed, uint64(src.Star.ID), src.Step, streamStochastic)
-	heated := 0.0
 	for j := range nb.EnergyWeight {
 		nb.Momentum[j] = 0
 		nb.HeatCap[j] = math.Inf(1)
 		nb.EnergyWeight[j] = 0
-		if src.Energy > 0 && rng.Float64() < p {
-			nb.EnergyWeight[j] = nb.Mass[j]
-			heated += nb.Mass[j]
-		}
+		total += nb.Mass[j]
 	}
-	if heated == 0 {
-		nb.ReturnEnergy(src.Energy)
-	} else {
+	budget := src.Energy
+	if !(budget > 0) {
+		return nb.CoupleRadial(out), nil
+	}
+	if budget >= du*total {
+		// Enough to heat every neighbor by the jump: all share it all.
 		for j := range nb.EnergyWeight {
-			nb.EnergyWeight[j] /= heated
+			nb.EnergyWeight[j] = nb.Mass[j] / total
 		}
+	} else {
+		p := budget / (du * total)
+		rng := yields.NewCounterRNG(s.Seed, uint64(src.Star.ID), src.Step, streamStochastic)
+		left, used := budget, 0.0
+		for j := range nb.EnergyWeight {
+			if !(rng.Float64() < p) {
+				continue
+			}
+			m, dm := nb.Mass[j], nb.Weight[j]*src.Mass
+			mt := m + dm
+			w := nb.RelVel[j]
+			// The heat that raises u_j by exactly du once dm_j is mixed in,
+			// less what the inelastic mixing itself turns into heat (which
+			// CoupleRadial adds back).
+			cost := mt*(nb.InternalEnergy[j]+du) - m*nb.InternalEnergy[j] - m*dm*dot(w, w)/(2*mt)
+			cost = math.Max(cost, 0)
+			if cost > left {
+				continue
+			}
+			nb.EnergyWeight[j] = cost
+			left -= cost
+			used += cost
+		}
+		if used > 0 {
+			for j := range nb.EnergyWeight {
+				nb.EnergyWeight[j] /= used
+			}
+		}
+		nb.ReturnEnergy(budget - used)
 	}
 	rad := nb.CoupleRadial(out)
 	for j := range out {

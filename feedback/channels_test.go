@@ -142,33 +142,6 @@ func TestChannelSchemesPassTheHarness(t *testing.T) {
 	}
 }
 
-func TestStochasticHeatingJump(t *testing.T) {
-	// Dalla Vecchia & Schaye 2012: heated elements receive the temperature
-	// jump on average; energy is exact in every draw.
-	u := pcMsunKms()
-	g := uniformGas(13, 500, 1e3, 1, u)
-	var srcs []feedback.Source
-	for s := 0; s < 40; s++ {
-		src := supernova(int64(s+1), u)
-		src.Star.Pos = [3]float64{g.Pos[0][s*7], g.Pos[1][s*7], g.Pos[2][s*7] + 0.5}
-		srcs = append(srcs, src)
-	}
-	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.StochasticHeating{Seed: 9}, Neighbors: 32}, srcs)
-	heated := 0
-	for _, r := range out.Records {
-		if r.Flags&feedback.FlagStochastic != 0 {
-			heated++
-		}
-	}
-	// Expected heated count: E / (du m) per star, about 1e51 erg over
-	// 1e3 Msun * (3/2) k 10^7.5 K / (0.59 m_p).
-	du := 1.5 * units.Boltzmann * math.Pow(10, 7.5) / (0.59 * units.ProtonMass)
-	perStar := units.FOE / (du * 1e3 * units.SolarMass)
-	expect := perStar * float64(len(srcs))
-	assert.InDelta(t, expect, float64(heated), 4*math.Sqrt(expect)+1)
-	assert.Greater(t, heated, 0)
-}
-
 func TestCoolingHoldTime(t *testing.T) {
 	// McKee & Ostriker 1977 as used by Stinson et al. 2006 (from memory):
 	// 10^6.85 yr at E51 = 1, n = 1, P/k = 1e4 K cm^-3.

@@ -1,0 +1,82 @@
+package feedback_test
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/neighbor"
+	"github.com/ejecta-dev/ejecta/yields/units"
+)
+
+// Stochastic heating after Dalla Vecchia & Schaye 2012 (MNRAS 426, 140):
+// every heated element's temperature rises by exactly the jump, and the
+// energy not deposited is carried by the star (shown in the ledger as
+// undeposited), so that over many steps the energy deposited matches the
+// energy released. A star releases the same energy every step and carries
+// what is returned, as the stepper does; elements of 1e3 Msun cost about
+// 13 supernovae each at 10^7.5 K and elements of 1e5 Msun about 1300.
+func TestStochasticHeatingGivesTheJump(t *testing.T) {
+	u := pcMsunKms()
+	jump := math.Pow(10, 7.5)
+	// T = (2/3) mu m_p u / k for a monatomic gas of mean molecular weight
+	// mu = 0.59 (ionized gas; common practice).
+	kelvinPerSpecificEnergy := 2.0 / 3 * 0.59 * units.ProtonMass / units.Boltzmann * u.SpecificEnergy()
+	cases := []struct {
+		gasMass, supernovaePerStep float64
+		steps                      int
+	}{
+		{1e3, 1, 400},
+		{1e5, 100, 120},
+	}
+	for _, c := range cases {
+		g := uniformGas(21, 300, c.gasMass, 1, u)
+		f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
+		require.NoError(t, err)
+		cp, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: feedback.StochasticHeating{Seed: 4}, Neighbors: 32})
+		require.NoError(t, err)
+		view := g.View()
+		var out feedback.Output
+		released, deposited, carry := 0.0, 0.0, 0.0
+		heated := 0
+		for step := 0; step < c.steps; step++ {
+			src := supernova(9, u)
+			src.Step = uint64(step)
+			src.Events = c.supernovaePerStep
+			src.Mass *= c.supernovaePerStep
+			for sp := range src.Species {
+				src.Species[sp] *= c.supernovaePerStep
+			}
+			fresh := src.Energy * c.supernovaePerStep
+			released += fresh
+			src.Energy = fresh + carry
+			require.NoError(t, cp.Couple(view, f, []feedback.Source{src}, &out))
+			require.Empty(t, out.Problems)
+			require.NoError(t, out.Ledger.Balanced(1e-12))
+			before := append([]float64(nil), g.Energy...)
+			_, _, err := feedback.Apply(view, out.Records, nil)
+			require.NoError(t, err)
+			for _, r := range out.Records {
+				if r.Flags&feedback.FlagStochastic == 0 {
+					continue
+				}
+				heated++
+				dT := (g.Energy[r.GasIndex] - before[r.GasIndex]) * kelvinPerSpecificEnergy
+				assert.InEpsilon(t, jump, dT, 0.01, "m=%g step %d", c.gasMass, step)
+			}
+			deposited += out.Ledger.Deposited.Energy
+			carry = out.Ledger.Undeposited.Energy
+			assert.Zero(t, out.Ledger.Radiated)
+		}
+		require.Positive(t, heated, "m=%g: some elements heated", c.gasMass)
+		// Nothing lost: deposited plus still carried is what was released.
+		assert.InEpsilon(t, released, deposited+carry, 1e-12, "m=%g", c.gasMass)
+		// The deposit comes in quanta of one element's jump; over the run it
+		// matches the release within the statistical error of their count.
+		assert.InDelta(t, 1, deposited/released, 1/math.Sqrt(float64(heated)), "m=%g (%d heated)", c.gasMass, heated)
+		t.Logf("m=%g Msun: %d heated, deposited/released %.4f, carried at the end %.3g of %.3g", c.gasMass, heated, deposited/released, carry, released)
+	}
+}
