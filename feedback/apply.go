@@ -1,7 +1,6 @@
 package feedback
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"slices"
@@ -103,16 +102,16 @@ func (ap *Applier) Apply(gas *Gas, records []Record, touched []Touched) ([]Touch
 		return touched, rep, fmt.Errorf("apply: %w", err)
 	}
 	if len(records) > math.MaxInt32 {
-		return touched, rep, fmt.Errorf("apply: %d records, at most %d per call", len(records), math.MaxInt32)
+		return touched, rep, errorf(ErrInvalidArgument, "apply: %d records, at most %d per call", len(records), math.MaxInt32)
 	}
 	keys := ap.keys[:0]
 	for i := range records {
 		r := &records[i]
 		if r.GasIndex < 0 || r.GasIndex >= gas.N {
-			return touched, rep, fmt.Errorf("apply: record %d: gas index %d outside the gas (%d elements)", i, r.GasIndex, gas.N)
+			return touched, rep, errorf(ErrUnknownGas, "apply: record %d: gas index %d outside the gas (%d elements)", i, r.GasIndex, gas.N)
 		}
 		if id := gas.ID.Int(r.GasIndex); id != r.GasID {
-			return touched, rep, fmt.Errorf("apply: record %d: gas ID %d does not match ID %d at index %d", i, r.GasID, id, r.GasIndex)
+			return touched, rep, errorf(ErrUnknownGas, "apply: record %d: gas ID %d does not match ID %d at index %d", i, r.GasID, id, r.GasIndex)
 		}
 		if err := r.check(); err != nil {
 			return touched, rep, fmt.Errorf("apply: record %d (gas %d, star %d): %w", i, r.GasID, r.StarID, err)
@@ -135,10 +134,10 @@ func (ap *Applier) Apply(gas *Gas, records []Record, touched []Touched) ([]Touch
 			continue
 		}
 		if records[a.index].GasIndex != records[b.index].GasIndex {
-			return touched, rep, fmt.Errorf("apply: gas ID %d appears at indices %d and %d", a.gas, records[a.index].GasIndex, records[b.index].GasIndex)
+			return touched, rep, errorf(ErrInvalidArgument, "apply: gas ID %d appears at indices %d and %d", a.gas, records[a.index].GasIndex, records[b.index].GasIndex)
 		}
 		if a.star == b.star && a.channel == b.channel {
-			return touched, rep, fmt.Errorf("apply: two records for gas %d from star %d, channel %d (applied twice?)", a.gas, a.star, a.channel)
+			return touched, rep, errorf(ErrInvalidArgument, "apply: two records for gas %d from star %d, channel %d (applied twice?)", a.gas, a.star, a.channel)
 		}
 	}
 	for lo := 0; lo < len(keys); {
@@ -158,15 +157,15 @@ func (r *Record) check() error {
 	vals := [...]float64{r.Mass, r.Momentum[0], r.Momentum[1], r.Momentum[2], r.Energy, r.Heat, r.Radiated, r.Kick, r.Heating, r.HoldCoolingUntil}
 	for _, v := range vals {
 		if !finite(v) {
-			return errors.New("non-finite value")
+			return errorf(ErrBadValue, "non-finite value")
 		}
 	}
 	if r.Mass < 0 || r.Radiated < 0 {
-		return fmt.Errorf("negative mass %g or radiated energy %g", r.Mass, r.Radiated)
+		return errorf(ErrBadValue, "negative mass %g or radiated energy %g", r.Mass, r.Radiated)
 	}
 	for sp, m := range r.Species {
 		if !finite(m) || m < 0 || m > r.Mass*(1+1e-12) {
-			return fmt.Errorf("species %d mass %g not within [0, %g]", sp, m, r.Mass)
+			return errorf(ErrBadValue, "species %d mass %g not within [0, %g]", sp, m, r.Mass)
 		}
 	}
 	return nil

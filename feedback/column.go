@@ -173,23 +173,23 @@ func (c Column) Set(i int, v float64) {
 
 func (c Column) check(name string, n int, writable bool) error {
 	if c.base == nil {
-		return fmt.Errorf("column %s: not bound", name)
+		return errorf(ErrInvalidArgument, "column %s: not bound", name)
 	}
 	sz := c.typ.Size()
 	if sz == 0 {
-		return fmt.Errorf("column %s: unknown element type %d", name, c.typ)
+		return errorf(ErrInvalidArgument, "column %s: unknown element type %d", name, c.typ)
 	}
 	if writable && (c.typ == Int64 || c.typ == Int32) {
-		return fmt.Errorf("column %s: must be float32 or float64, got %v", name, c.typ)
+		return errorf(ErrInvalidArgument, "column %s: must be float32 or float64, got %v", name, c.typ)
 	}
 	if c.stride < sz {
-		return fmt.Errorf("column %s: stride %d bytes is smaller than its %v elements (%d bytes)", name, c.stride, c.typ, sz)
+		return errorf(ErrInvalidArgument, "column %s: stride %d bytes is smaller than its %v elements (%d bytes)", name, c.stride, c.typ, sz)
 	}
 	if c.n != n {
-		return fmt.Errorf("column %s: holds %d elements, gas has %d", name, c.n, n)
+		return errorf(ErrInvalidArgument, "column %s: holds %d elements, gas has %d", name, c.n, n)
 	}
 	if uintptr(c.base)%sz != 0 || c.stride%sz != 0 {
-		return fmt.Errorf("column %s: misaligned for %v (base %#x, stride %d)", name, c.typ, uintptr(c.base), c.stride)
+		return errorf(ErrInvalidArgument, "column %s: misaligned for %v (base %#x, stride %d)", name, c.typ, uintptr(c.base), c.stride)
 	}
 	return nil
 }

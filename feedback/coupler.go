@@ -1,7 +1,6 @@
 package feedback
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"slices"
@@ -44,6 +43,20 @@ type Output struct {
 	Ledger Ledger
 	// Problems lists the sources returned undeposited.
 	Problems []Problem
+}
+
+// Err is nil when every source of the call was deposited; otherwise an
+// error wrapping ErrUndeposited that counts the problems and carries the
+// first one's reason (errors.Is also finds its kind, e.g. ErrNoNeighbors).
+func (o *Output) Err() error { return problemsErr(o.Problems) }
+
+func problemsErr(problems []Problem) error {
+	if len(problems) == 0 {
+		return nil
+	}
+	p := &problems[0]
+	return fmt.Errorf("%w: %d releases; first: star %d (index %d, channel %s): %w",
+		ErrUndeposited, len(problems), p.StarID, p.Index, ChannelName(p.Channel), p.Err)
 }
 
 // Config sets up a Coupler. Lengths, masses, velocities and energies in the
@@ -121,7 +134,7 @@ type workerScratch struct {
 // NewCoupler checks the configuration and prepares a coupler.
 func NewCoupler(cfg Config) (*Coupler, error) {
 	if err := cfg.Units.Validate(); err != nil {
-		return nil, fmt.Errorf("coupler: %w", err)
+		return nil, errorf(ErrInvalidArgument, "coupler: %w", err)
 	}
 	if cfg.Scheme == nil {
 		cfg.Scheme = TerminalMomentum{Fit: KimOstriker2015}
@@ -130,23 +143,23 @@ func NewCoupler(cfg Config) (*Coupler, error) {
 		cfg.Neighbors = DefaultNeighbors
 	}
 	if cfg.Neighbors < 0 {
-		return nil, fmt.Errorf("coupler: neighbor count %d must be positive", cfg.Neighbors)
+		return nil, errorf(ErrInvalidArgument, "coupler: neighbor count %d must be positive", cfg.Neighbors)
 	}
 	if !(cfg.Radius >= 0) {
-		return nil, fmt.Errorf("coupler: radius %g must be non-negative", cfg.Radius)
+		return nil, errorf(ErrInvalidArgument, "coupler: radius %g must be non-negative", cfg.Radius)
 	}
 	if cfg.Workers == 0 {
 		cfg.Workers = 1
 	}
 	if cfg.Workers < 0 || cfg.Workers > 4096 {
-		return nil, fmt.Errorf("coupler: worker count %d outside 1..4096", cfg.Workers)
+		return nil, errorf(ErrInvalidArgument, "coupler: worker count %d outside 1..4096", cfg.Workers)
 	}
 	if cfg.Weighting != KernelVolume && cfg.Weighting != SolidAngle {
-		return nil, fmt.Errorf("coupler: unknown weighting %d", cfg.Weighting)
+		return nil, errorf(ErrInvalidArgument, "coupler: unknown weighting %d", cfg.Weighting)
 	}
 	for a := 0; a < 3; a++ {
 		if !(cfg.Box.Size[a] >= 0) || math.IsInf(cfg.Box.Size[a], 0) {
-			return nil, fmt.Errorf("coupler: box size %g on axis %d must be finite and non-negative", cfg.Box.Size[a], a)
+			return nil, errorf(ErrInvalidArgument, "coupler: box size %g on axis %d must be finite and non-negative", cfg.Box.Size[a], a)
 		}
 	}
 	c := &Coupler{cfg: cfg, scheme: cfg.Scheme, workers: make([]workerScratch, cfg.Workers)}
@@ -159,10 +172,6 @@ func NewCoupler(cfg Config) (*Coupler, error) {
 
 // Config returns the configuration in force (with defaults filled in).
 func (c *Coupler) Config() Config { return c.cfg }
-
-// errNoNeighbors is the reason a source with no gas around it is returned
-// undeposited.
-var errNoNeighbors = errors.New("no gas neighbors")
 
 // Couple deposits every source's release into the gas around it. finder
 // must have been built on the same gas (the same element order). Records
@@ -177,7 +186,7 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 	}
 	defer c.mu.Unlock()
 	if out == nil {
-		return errors.New("couple: nil output")
+		return errorf(ErrInvalidArgument, "couple: nil output")
 	}
 	out.Records = out.Records[:0]
 	out.Problems = out.Problems[:0]
@@ -186,7 +195,7 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 		return fmt.Errorf("couple: %w", err)
 	}
 	if finder == nil {
-		return errors.New("couple: nil neighbor finder")
+		return errorf(ErrInvalidArgument, "couple: nil neighbor finder")
 	}
 	n := len(sources)
 	if cap(c.slots) < n {
@@ -352,14 +361,14 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 		ws.found, err = finder.Nearest(q, c.cfg.Neighbors, ws.found)
 	}
 	if err != nil {
-		return undeposited(src, fmt.Errorf("star %d: neighbor search: %w", src.Star.ID, err))
+		return undeposited(src, errorf(ErrNoNeighbors, "star %d: neighbor search: %w", src.Star.ID, err))
 	}
 	k := len(ws.found)
 	if c.cfg.Radius == 0 && k > c.cfg.Neighbors {
-		return undeposited(src, fmt.Errorf("star %d: finder returned %d neighbors, %d asked for", src.Star.ID, k, c.cfg.Neighbors))
+		return undeposited(src, errorf(ErrNoNeighbors, "star %d: finder returned %d neighbors, %d asked for", src.Star.ID, k, c.cfg.Neighbors))
 	}
 	if k == 0 {
-		return undeposited(src, fmt.Errorf("star %d: %w", src.Star.ID, errNoNeighbors))
+		return undeposited(src, errorf(ErrNoNeighbors, "star %d: no gas neighbors", src.Star.ID))
 	}
 	nb := &ws.nb
 	nb.resize(k)
@@ -371,7 +380,7 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 	for j, f := range ws.found {
 		i := f.Index
 		if i < 0 || i >= gas.N {
-			return undeposited(src, fmt.Errorf("star %d: neighbor index %d outside the gas (%d elements)", src.Star.ID, i, gas.N))
+			return undeposited(src, errorf(ErrNoNeighbors, "star %d: neighbor index %d outside the gas (%d elements)", src.Star.ID, i, gas.N))
 		}
 		nb.Index[j] = i
 		nb.ID[j] = gas.ID.Int(i)
@@ -392,7 +401,7 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 	for j := range nb.Index {
 		m, rho, u, z := nb.Mass[j], nb.Density[j], nb.InternalEnergy[j], nb.Metallicity[j]
 		if !(m > 0) || !(rho > 0) || !(u >= 0) || math.IsInf(m, 0) || math.IsInf(rho, 0) || math.IsInf(u, 0) {
-			return undeposited(src, fmt.Errorf("star %d: gas element %d (ID %d) has mass %g, density %g, internal energy %g: need positive finite mass and density and finite non-negative energy", src.Star.ID, nb.Index[j], nb.ID[j], m, rho, u))
+			return undeposited(src, errorf(ErrBadValue, "star %d: gas element %d (ID %d) has mass %g, density %g, internal energy %g: need positive finite mass and density and finite non-negative energy", src.Star.ID, nb.Index[j], nb.ID[j], m, rho, u))
 		}
 		p, v := nb.Dir[j], nb.Vel[j]
 		var d [3]float64
@@ -401,8 +410,11 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 		}
 		d = c.cfg.Box.MinImage(d)
 		r := math.Sqrt(dot(d, d))
-		if !finite(r) || !finite(dot(v, v)) || !finite(z) {
-			return undeposited(src, fmt.Errorf("star %d: gas element %d (ID %d) has a non-finite position, velocity or metallicity", src.Star.ID, nb.Index[j], nb.ID[j]))
+		if !(z >= 0 && z <= 1) {
+			return undeposited(src, errorf(ErrBadValue, "star %d: gas element %d (ID %d) has metal mass fraction %g, outside [0, 1]", src.Star.ID, nb.Index[j], nb.ID[j], z))
+		}
+		if !finite(r) || !finite(dot(v, v)) {
+			return undeposited(src, errorf(ErrBadValue, "star %d: gas element %d (ID %d) has a non-finite position or velocity", src.Star.ID, nb.Index[j], nb.ID[j]))
 		}
 		nb.Dist[j] = r
 		if r > 0 {
@@ -430,7 +442,7 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 	// Extreme but finite gas values (1e300) can overflow inside a scheme:
 	// such a star is returned, never written as non-finite records.
 	if !finite(radiated) || !finite(nb.returned) || !depositsFinite(deps) {
-		return undeposited(src, fmt.Errorf("star %d: scheme %s produced non-finite amounts (gas or release values out of floating-point range)", src.Star.ID, c.scheme.Name()))
+		return undeposited(src, errorf(ErrBadValue, "star %d: scheme %s produced non-finite amounts (gas or release values out of floating-point range)", src.Star.ID, c.scheme.Name()))
 	}
 	l := Ledger{Stars: 1, Radiated: radiated}
 	l.In = sourceQuantities(src)

@@ -78,6 +78,17 @@
 // is booked as ApplyReport.Shortfall rather than letting the internal
 // energy go negative.
 //
+// # Errors
+//
+// Every failure matches one kind with errors.Is: ErrInvalidArgument,
+// ErrBadValue, ErrNoNeighbors, ErrUnknownGas, ErrUnknownName, ErrImbalance,
+// ErrBusy or ErrInternal. A release that cannot be coupled is not an error
+// of the call: it is returned undeposited, booked in the ledger and listed
+// in Output.Problems; Output.Err turns the list into an error matching
+// ErrUndeposited and the first problem's kind. A panic in any worker
+// goroutine (a user's scheme or finder, a fault reading host memory) is
+// recovered and returned as ErrInternal with nothing deposited.
+//
 // # Concurrency
 //
 // A Coupler runs its stars on Config.Workers goroutines with per-worker

@@ -44,10 +44,10 @@ type Gas struct {
 // two columns written by Apply overlap in memory. It reads no values.
 func (g *Gas) Validate() error {
 	if g == nil {
-		return fmt.Errorf("gas: nil")
+		return errorf(ErrInvalidArgument, "gas: nil")
 	}
 	if g.N <= 0 {
-		return fmt.Errorf("gas: %d elements, need at least one", g.N)
+		return errorf(ErrInvalidArgument, "gas: %d elements, need at least one", g.N)
 	}
 	type named struct {
 		name     string
@@ -65,15 +65,15 @@ func (g *Gas) Validate() error {
 		cols = append(cols, named{"smoothing", g.Smoothing, false})
 	}
 	if len(g.Species) != len(g.SpeciesFractions) {
-		return fmt.Errorf("gas: %d species named but %d species columns", len(g.Species), len(g.SpeciesFractions))
+		return errorf(ErrInvalidArgument, "gas: %d species named but %d species columns", len(g.Species), len(g.SpeciesFractions))
 	}
 	var seen [yields.NumSpecies]bool
 	for i, s := range g.Species {
 		if s < 0 || s >= yields.NumSpecies {
-			return fmt.Errorf("gas: species %d is not a known species", int(s))
+			return errorf(ErrInvalidArgument, "gas: species %d is not a known species", int(s))
 		}
 		if seen[s] {
-			return fmt.Errorf("gas: species %s listed twice", s.Symbol())
+			return errorf(ErrInvalidArgument, "gas: species %s listed twice", s.Symbol())
 		}
 		seen[s] = true
 		cols = append(cols, named{"species fraction", g.SpeciesFractions[i], true})
@@ -89,7 +89,7 @@ func (g *Gas) Validate() error {
 				continue
 			}
 			if collides(cols[i].c, cols[j].c) {
-				return fmt.Errorf("gas: columns %s and %s overlap in memory", cols[i].name, cols[j].name)
+				return errorf(ErrInvalidArgument, "gas: columns %s and %s overlap in memory", cols[i].name, cols[j].name)
 			}
 		}
 	}

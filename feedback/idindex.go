@@ -18,7 +18,7 @@ func NewIDIndex(g *Gas) (*IDIndex, error) {
 	for i := 0; i < g.N; i++ {
 		id := g.ID.Int(i)
 		if j, dup := x.index[id]; dup {
-			return nil, fmt.Errorf("id index: gas ID %d at both %d and %d", id, j, i)
+			return nil, errorf(ErrInvalidArgument, "id index: gas ID %d at both %d and %d", id, j, i)
 		}
 		x.index[id] = i
 	}
@@ -36,7 +36,7 @@ func (x *IDIndex) Lookup(id int64) (int, bool) {
 func (x *IDIndex) Resolve(recs []Record) error {
 	for k := range recs {
 		if _, ok := x.index[recs[k].GasID]; !ok {
-			return fmt.Errorf("id index: record %d names gas ID %d, not held here", k, recs[k].GasID)
+			return errorf(ErrUnknownGas, "id index: record %d names gas ID %d, not held here", k, recs[k].GasID)
 		}
 	}
 	for k := range recs {

@@ -1,7 +1,6 @@
 package feedback
 
 import (
-	"fmt"
 	"math"
 
 	"github.com/ejecta-dev/ejecta/yields"
@@ -45,26 +44,26 @@ func (s *Source) Validate() error {
 	vals := [...]float64{s.Mass, s.Energy, s.Events, s.Photons, s.Duration, s.Star.Mass, s.Star.Metallicity, s.Star.Age}
 	for _, v := range vals {
 		if !finite(v) {
-			return fmt.Errorf("star %d: non-finite release or star field", s.Star.ID)
+			return errorf(ErrBadValue, "star %d: non-finite release or star field", s.Star.ID)
 		}
 	}
 	for a := 0; a < 3; a++ {
 		if !finite(s.Star.Pos[a]) || !finite(s.Star.Vel[a]) {
-			return fmt.Errorf("star %d: non-finite position or velocity", s.Star.ID)
+			return errorf(ErrBadValue, "star %d: non-finite position or velocity", s.Star.ID)
 		}
 	}
 	if v2 := dot(s.Star.Vel, s.Star.Vel); !finite(v2) || !finite(0.5*s.Mass*v2) {
-		return fmt.Errorf("star %d: the ejecta's kinetic energy overflows (speed %g, mass %g)", s.Star.ID, math.Sqrt(math.Abs(v2)), s.Mass)
+		return errorf(ErrBadValue, "star %d: the ejecta's kinetic energy overflows (speed %g, mass %g)", s.Star.ID, math.Sqrt(math.Abs(v2)), s.Mass)
 	}
 	if s.Mass < 0 || s.Energy < 0 || s.Events < 0 || s.Photons < 0 || s.Duration < 0 {
-		return fmt.Errorf("star %d: negative release (mass %g, energy %g, events %g, photons %g, duration %g)", s.Star.ID, s.Mass, s.Energy, s.Events, s.Photons, s.Duration)
+		return errorf(ErrBadValue, "star %d: negative release (mass %g, energy %g, events %g, photons %g, duration %g)", s.Star.ID, s.Mass, s.Energy, s.Events, s.Photons, s.Duration)
 	}
 	for sp, m := range s.Species {
 		if !finite(m) || m < 0 {
-			return fmt.Errorf("star %d: species %s mass %g is not finite and non-negative", s.Star.ID, yields.Species(sp).Symbol(), m)
+			return errorf(ErrBadValue, "star %d: species %s mass %g is not finite and non-negative", s.Star.ID, yields.Species(sp).Symbol(), m)
 		}
 		if m > s.Mass*(1+1e-12) {
-			return fmt.Errorf("star %d: species %s mass %g exceeds the ejected mass %g", s.Star.ID, yields.Species(sp).Symbol(), m, s.Mass)
+			return errorf(ErrBadValue, "star %d: species %s mass %g exceeds the ejected mass %g", s.Star.ID, yields.Species(sp).Symbol(), m, s.Mass)
 		}
 	}
 	return nil
@@ -192,11 +191,11 @@ func (l *Ledger) Balanced(rel float64) error {
 	imb := l.Imbalance()
 	scale := func(a, b float64) float64 { return math.Max(math.Abs(a), math.Abs(b)) }
 	if s := scale(l.In.Mass, l.Deposited.Mass); math.Abs(imb.Mass) > rel*s || math.IsNaN(imb.Mass) {
-		return fmt.Errorf("ledger: mass imbalance %g of %g", imb.Mass, s)
+		return errorf(ErrImbalance, "ledger: mass imbalance %g of %g", imb.Mass, s)
 	}
 	for i := range imb.Species {
 		if s := scale(l.In.Species[i], l.Deposited.Species[i]); math.Abs(imb.Species[i]) > rel*s || math.IsNaN(imb.Species[i]) {
-			return fmt.Errorf("ledger: species %s imbalance %g of %g", yields.Species(i).Symbol(), imb.Species[i], s)
+			return errorf(ErrImbalance, "ledger: species %s imbalance %g of %g", yields.Species(i).Symbol(), imb.Species[i], s)
 		}
 	}
 	pscale := 0.0
@@ -208,12 +207,12 @@ func (l *Ledger) Balanced(rel float64) error {
 	pscale = math.Max(pscale, l.MomentumScale)
 	for a := 0; a < 3; a++ {
 		if math.Abs(imb.Momentum[a]) > rel*pscale || math.IsNaN(imb.Momentum[a]) {
-			return fmt.Errorf("ledger: momentum imbalance %g (axis %d) of %g", imb.Momentum[a], a, pscale)
+			return errorf(ErrImbalance, "ledger: momentum imbalance %g (axis %d) of %g", imb.Momentum[a], a, pscale)
 		}
 	}
 	escale := math.Max(scale(l.In.Energy, l.Deposited.Energy), l.EnergyScale)
 	if math.Abs(imb.Energy) > rel*escale || math.IsNaN(imb.Energy) {
-		return fmt.Errorf("ledger: energy imbalance %g of %g", imb.Energy, escale)
+		return errorf(ErrImbalance, "ledger: energy imbalance %g of %g", imb.Energy, escale)
 	}
 	return nil
 }

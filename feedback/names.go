@@ -1,9 +1,6 @@
 package feedback
 
-import (
-	"fmt"
-	"strings"
-)
+import "strings"
 
 // SchemeOptions are the settings of a built-in scheme chosen by name.
 type SchemeOptions struct {
@@ -43,5 +40,5 @@ func SchemeByName(name string, o SchemeOptions) (Scheme, error) {
 	case Photoionization{}.Name():
 		return Photoionization{}, nil
 	}
-	return nil, fmt.Errorf("scheme %q: want one of %s", name, strings.Join(SchemeNames(), ", "))
+	return nil, errorf(ErrUnknownName, "scheme %q: want one of %s", name, strings.Join(SchemeNames(), ", "))
 }

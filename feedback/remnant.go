@@ -1,7 +1,6 @@
 package feedback
 
 import (
-	"fmt"
 	"math"
 
 	"github.com/ejecta-dev/ejecta/yields"
@@ -84,7 +83,7 @@ func ParseRemnantFit(s string) (RemnantFit, error) {
 			return f, nil
 		}
 	}
-	return 0, fmt.Errorf("remnant fit %q: want kim-ostriker-2015 or cioffi-mckee-bertschinger-1988", s)
+	return 0, errorf(ErrUnknownName, "remnant fit %q: want kim-ostriker-2015 or cioffi-mckee-bertschinger-1988", s)
 }
 
 // metallicityFloor keeps zeta^(-3/14) finite in metal-free gas; 1e-3 solar

@@ -52,7 +52,7 @@ func (s *sharedSearch) runItem(_, i int) {
 
 func (s *sharedSearch) row(q neighbor.Query) ([]neighbor.Neighbor, error) {
 	if q.Star < 0 || q.Star >= len(s.rows) {
-		return nil, fmt.Errorf("shared search: star %d outside the step's %d stars", q.Star, len(s.rows))
+		return nil, errorf(ErrInternal, "shared search: star %d outside the step's %d stars", q.Star, len(s.rows))
 	}
 	return s.rows[q.Star], s.errs[q.Star]
 }

@@ -1,7 +1,6 @@
 package feedback
 
 import (
-	"errors"
 	"fmt"
 	"math"
 
@@ -102,6 +101,11 @@ type StepOutput struct {
 	Problems []Problem
 }
 
+// Err is nil when every release of the step was deposited; otherwise an
+// error wrapping ErrUndeposited and the first problem's reason (see
+// Output.Err).
+func (o *StepOutput) Err() error { return problemsErr(o.Problems) }
+
 // Stepper drives every channel for a batch of stars over one step: it asks
 // the model what each star releases over [age, age + dt], draws the
 // supernovae with the counter-based generator keyed by (seed, star ID,
@@ -121,19 +125,19 @@ type Stepper struct {
 // NewStepper checks the configuration and prepares the couplers.
 func NewStepper(cfg StepConfig) (*Stepper, error) {
 	if cfg.Model == nil {
-		return nil, errors.New("stepper: no yields model")
+		return nil, errorf(ErrInvalidArgument, "stepper: no yields model")
 	}
 	if cfg.MaxSupernovaePerStep == 0 {
 		cfg.MaxSupernovaePerStep = 10
 	}
 	if !(cfg.MaxSupernovaePerStep > 0) {
-		return nil, fmt.Errorf("stepper: max supernovae per step %g must be positive", cfg.MaxSupernovaePerStep)
+		return nil, errorf(ErrInvalidArgument, "stepper: max supernovae per step %g must be positive", cfg.MaxSupernovaePerStep)
 	}
 	if cfg.PhotoheatingPerPhoton == 0 {
 		cfg.PhotoheatingPerPhoton = 3 * electronVolt
 	}
 	if !(cfg.PhotoheatingPerPhoton > 0) || math.IsInf(cfg.PhotoheatingPerPhoton, 0) {
-		return nil, fmt.Errorf("stepper: photoheating per photon %g erg must be positive", cfg.PhotoheatingPerPhoton)
+		return nil, errorf(ErrInvalidArgument, "stepper: photoheating per photon %g erg must be positive", cfg.PhotoheatingPerPhoton)
 	}
 	fit := KimOstriker2015
 	if tm, ok := cfg.Coupling.Scheme.(TerminalMomentum); ok {
@@ -171,10 +175,10 @@ func NewStepper(cfg StepConfig) (*Stepper, error) {
 // applied: call Apply (after routing ghost records to their owners).
 func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, step uint64, dt float64, out *StepOutput) error {
 	if out == nil {
-		return errors.New("step: nil output")
+		return errorf(ErrInvalidArgument, "step: nil output")
 	}
 	if !(dt >= 0) || math.IsInf(dt, 0) {
-		return fmt.Errorf("step: step length %g must be finite and non-negative", dt)
+		return errorf(ErrInvalidArgument, "step: step length %g must be finite and non-negative", dt)
 	}
 	u := s.cfg.Coupling.Units
 	out.Records = out.Records[:0]
@@ -206,7 +210,7 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 		age0 := st.Age * myr
 		rel, err := s.cfg.Model.Release(age0, age0+dt*myr, st.Metallicity)
 		if err != nil {
-			return fmt.Errorf("step: star %d: %w", st.ID, err)
+			return errorf(ErrBadValue, "step: star %d: %w", st.ID, err)
 		}
 		clampRoundOff(&rel)
 		formed := st.FormedMass * msun // Msun formed
@@ -267,7 +271,7 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 	}
 	// One neighbor search per star serves every channel.
 	if finder == nil {
-		return errors.New("step: nil neighbor finder")
+		return errorf(ErrInvalidArgument, "step: nil neighbor finder")
 	}
 	if err := s.search.fill(finder, stars, s.couplers[0].Config()); err != nil {
 		return fmt.Errorf("step: neighbor search: %w", err)
@@ -337,18 +341,18 @@ func (s *Stepper) delayCooling(gas *Gas, c int, recs []Record) {
 func (st *StarParticle) validate() error {
 	v2 := dot(st.Vel, st.Vel)
 	if !finite(dot(st.Pos, st.Pos)) || !finite(v2) {
-		return fmt.Errorf("star %d: position or velocity not finite (or too large to square)", st.ID)
+		return errorf(ErrBadValue, "star %d: position or velocity not finite (or too large to square)", st.ID)
 	}
 	for _, f := range [...]struct {
 		name string
 		v    float64
 	}{{"mass", st.Mass}, {"formed mass", st.FormedMass}, {"age", st.Age}, {"carried energy", st.CarriedEnergy}} {
 		if !(f.v >= 0) || math.IsInf(f.v, 0) {
-			return fmt.Errorf("star %d: %s %g must be finite and non-negative", st.ID, f.name, f.v)
+			return errorf(ErrBadValue, "star %d: %s %g must be finite and non-negative", st.ID, f.name, f.v)
 		}
 	}
 	if !(st.Metallicity >= 0 && st.Metallicity < 1) {
-		return fmt.Errorf("star %d: metallicity %g outside [0, 1)", st.ID, st.Metallicity)
+		return errorf(ErrBadValue, "star %d: metallicity %g outside [0, 1)", st.ID, st.Metallicity)
 	}
 	return nil
 }
