@@ -11,54 +11,6 @@ import (
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
-// Record is one star's deposit into one gas element, ready to be applied
-// in place or sent to the rank that owns the element. Kick is the speed
-// change the deposit alone gives the element and Heating its heat per unit
-// mass, for the host's timestep limiter.
-type Record struct {
-	GasIndex int
-	GasID    int64
-	StarID   int64
-	Channel  yields.Channel
-	Deposit
-	Kick    float64
-	Heating float64
-}
-
-// Problem is a source whose release was returned undeposited, and why:
-// the star's ID, its index in the call, and the channel of the release.
-type Problem struct {
-	StarID  int64
-	Index   int
-	Channel yields.Channel
-	Err     error
-}
-
-// Output receives the result of Couple. Its slices are reused from call to
-// call: keep one Output per simulation to avoid allocation.
-type Output struct {
-	// Records, grouped by source in input order.
-	Records []Record
-	// Ledger of the call.
-	Ledger Ledger
-	// Problems lists the sources returned undeposited.
-	Problems []Problem
-}
-
-// Err is nil when every source of the call was deposited; otherwise an
-// error wrapping ErrUndeposited that counts the problems and carries the
-// first one's reason (errors.Is also finds its kind, e.g. ErrNoNeighbors).
-func (o *Output) Err() error { return problemsErr(o.Problems) }
-
-func problemsErr(problems []Problem) error {
-	if len(problems) == 0 {
-		return nil
-	}
-	p := &problems[0]
-	return fmt.Errorf("%w: %d releases; first: star %d (index %d, channel %s): %w",
-		ErrUndeposited, len(problems), p.StarID, p.Index, ChannelName(p.Channel), p.Err)
-}
-
 // Config sets up a Coupler. Lengths, masses, velocities and energies in the
 // gas and the sources are in the code units given here.
 type Config struct {

@@ -1,0 +1,84 @@
+package feedback
+
+import (
+	"math"
+
+	"github.com/ejecta-dev/ejecta/yields"
+)
+
+// Star is one star particle, in code units. Age is in code time units since
+// formation. ID must be unique among the stars of a call: it orders records.
+type Star struct {
+	ID          int64
+	Pos         [3]float64
+	Vel         [3]float64
+	Mass        float64
+	Metallicity float64
+	Age         float64
+}
+
+// Source is what one star releases into its gas in one call, in code units
+// and in the star's rest frame: the ejected mass (which moves with the star),
+// its species, and the energy (explosion energy for supernovae, wind kinetic
+// energy for winds, emitted light for radiation pressure). Events is the
+// number of discrete events (supernovae) the energy comes from, 0 for
+// continuous release. Photons is the number of hydrogen-ionizing photons
+// emitted over the step and Duration the step's length (code time), used by
+// the photoionization scheme.
+type Source struct {
+	Star     Star
+	Channel  yields.Channel
+	Mass     float64
+	Species  yields.Abundances
+	Energy   float64
+	Events   float64
+	Photons  float64
+	Duration float64
+	// Step is the host's step index, which keys counter-based draws.
+	Step uint64
+}
+
+// Validate checks that the release is finite, non-negative and that no
+// species outweighs the ejected mass.
+func (s *Source) Validate() error {
+	vals := [...]float64{s.Mass, s.Energy, s.Events, s.Photons, s.Duration, s.Star.Mass, s.Star.Metallicity, s.Star.Age}
+	for _, v := range vals {
+		if !finite(v) {
+			return errorf(ErrBadValue, "star %d: non-finite release or star field", s.Star.ID)
+		}
+	}
+	for a := 0; a < 3; a++ {
+		if !finite(s.Star.Pos[a]) || !finite(s.Star.Vel[a]) {
+			return errorf(ErrBadValue, "star %d: non-finite position or velocity", s.Star.ID)
+		}
+	}
+	if v2 := dot(s.Star.Vel, s.Star.Vel); !finite(v2) || !finite(0.5*s.Mass*v2) {
+		return errorf(ErrBadValue, "star %d: the ejecta's kinetic energy overflows (speed %g, mass %g)", s.Star.ID, math.Sqrt(math.Abs(v2)), s.Mass)
+	}
+	if s.Mass < 0 || s.Energy < 0 || s.Events < 0 || s.Photons < 0 || s.Duration < 0 {
+		return errorf(ErrBadValue, "star %d: negative release (mass %g, energy %g, events %g, photons %g, duration %g)", s.Star.ID, s.Mass, s.Energy, s.Events, s.Photons, s.Duration)
+	}
+	for sp, m := range s.Species {
+		if !finite(m) || m < 0 {
+			return errorf(ErrBadValue, "star %d: species %s mass %g is not finite and non-negative", s.Star.ID, yields.Species(sp).Symbol(), m)
+		}
+		if m > s.Mass*(1+1e-12) {
+			return errorf(ErrBadValue, "star %d: species %s mass %g exceeds the ejected mass %g", s.Star.ID, yields.Species(sp).Symbol(), m, s.Mass)
+		}
+	}
+	return nil
+}
+
+// sourceQuantities is what a source brings in, lab frame: the ejecta carry
+// the star's velocity, so their momentum is M v and their kinetic energy
+// 1/2 M v^2 on top of the released energy.
+func sourceQuantities(s *Source) Quantities {
+	q := Quantities{Mass: s.Mass, Species: s.Species}
+	v2 := 0.0
+	for a := 0; a < 3; a++ {
+		q.Momentum[a] = s.Mass * s.Star.Vel[a]
+		v2 += s.Star.Vel[a] * s.Star.Vel[a]
+	}
+	q.Energy = s.Energy + 0.5*s.Mass*v2
+	return q
+}
