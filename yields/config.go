@@ -86,12 +86,14 @@ type CoreCollapseConfig struct {
 // TypeIaConfig sets the Type Ia channel: a delay-time distribution
 // R(t) = A/t for t >= MinDelay (zero before), with A chosen so that
 // EventsPerMsun events happen between MinDelay and HubbleTime; it goes on
-// past HubbleTime. Default numbers from memory: Maoz & Mannucci 2012 (PASA
-// 29, 447) for the t^-1 shape and about 1e-3 events per Msun formed over a
-// Hubble time; W7 (Iwamoto et al. 1999, ApJS 125, 439) for the ejecta.
+// past HubbleTime. Default numbers from memory: the t^-1 shape and 1.3e-3
+// events per Msun formed over a Hubble time are the review values of Maoz,
+// Mannucci & Nelemans 2014 (ARA&A 52, 107); W7 (Iwamoto et al. 1999, ApJS
+// 125, 439) for the ejecta.
 type TypeIaConfig struct {
 	// EventsPerMsun is the number of SNe Ia per Msun formed by HubbleTime.
-	// Default 1e-3.
+	// Default 1.3e-3 (Maoz, Mannucci & Nelemans 2014; the low end of the
+	// published range is about 1e-3).
 	EventsPerMsun float64
 	// MinDelay in Myr. Default 40 (about the lifetime of an 8 Msun star).
 	MinDelay float64
@@ -166,6 +168,11 @@ type Config struct {
 	Species SpeciesSet
 }
 
+// DefaultTypeIaPerMsun is the default number of Type Ia supernovae per Msun
+// formed over a Hubble time, 1.3e-3 (Maoz, Mannucci & Nelemans 2014, ARA&A
+// 52, 107; from memory).
+const DefaultTypeIaPerMsun = 1.3e-3
+
 // DefaultConfig is a Kroupa population over 0.1–100 Msun with every channel
 // at its documented default.
 func DefaultConfig() Config {
@@ -197,7 +204,7 @@ func DefaultConfig() Config {
 			MinMass: 8, MaxMass: 100, Energy: 1e51,
 			NewMetalsPerMsun: 0.2, NewMetalsMinMass: 10, NewMetalPattern: ccPattern,
 		},
-		TypeIa: TypeIaConfig{EventsPerMsun: 1e-3, MinDelay: 40, EjectaMass: 1.4, Energy: 1e51, ElementMass: ia},
+		TypeIa: TypeIaConfig{EventsPerMsun: DefaultTypeIaPerMsun, MinDelay: 40, EjectaMass: 1.4, Energy: 1e51, ElementMass: ia},
 		MassiveWinds: MassiveWindConfig{
 			MinMass: 8, LostFractionAt100: 0.4, MetallicityExponent: 0.69, Speed: 2000, HeliumEnrichment: 0.05,
 		},

@@ -1,8 +1,8 @@
 // Package yields says what a stellar population releases as it ages: the
 // number of core-collapse and Type Ia supernovae, the mass, metals and energy
-// they eject, the mass lost in winds, and the light and ionizing photons the
-// stars emit, per solar mass of stars formed, as a function of age and
-// metallicity.
+// they eject, the mass lost in winds, and the light, ionizing photons and
+// far-ultraviolet light the stars emit, per solar mass of stars formed, as a
+// function of age and metallicity.
 //
 // Ages are in Myr, masses in Msun (per Msun formed), energies in erg, wind
 // speeds in km/s, metallicity a metal mass fraction in [0, 1); see package
@@ -14,7 +14,9 @@
 // between two ages, channel by channel (CoreCollapse, TypeIa, MassiveWinds,
 // AGBWinds), with per-species masses (total metals, H, He, C, N, O, Ne, Mg,
 // Si, S, Ca, Fe; H + He + metals is the ejected mass), plus the radiant
-// energy and ionizing photons emitted. Two models are provided:
+// energy, the ionizing photons and the far-ultraviolet (6–13.6 eV) energy
+// emitted. Luminosity, IonizingRate and FarUltravioletLuminosity give the
+// same light as rates at one age. Two models are provided:
 //
 //   - Population, the built-in simple stellar population, configured by
 //     Config (DefaultConfig documents every default and its source): an IMF
@@ -22,8 +24,11 @@
 //     the fit of Raiteri, Villata & Navarro 1996 (Lifetimes), core-collapse
 //     supernovae in a progenitor window, Type Ia supernovae from a t^-1
 //     delay-time distribution, winds of massive stars spread over their
-//     lives, AGB mass loss from an initial–final mass relation, and the light
-//     and ionizing photons of the stars still on the main sequence.
+//     lives, AGB mass loss from an initial–final mass relation, and the
+//     light of the stars still alive: zero-age main-sequence luminosities
+//     and radii from the fits of Tout et al. 1996 (ZAMS), with a blackbody
+//     spectrum at each star's effective temperature for the ionizing photons
+//     and the far-ultraviolet light.
 //   - Table, read from a user's CSV file (ReadTable), for the output of any
 //     population-synthesis model; WriteTable writes any Model in the format.
 //
@@ -46,6 +51,8 @@
 //	ionizing_rate[photons/s/Msun]  hydrogen-ionizing photon rate at that age
 //	radiant_energy[erg/Msun]       cumulative: light emitted since formation
 //	ionizing_photons[photons/Msun] cumulative: ionizing photons since formation
+//	fuv_luminosity[Lsun/Msun]      optional: 6–13.6 eV luminosity at that age
+//	fuv_energy[erg/Msun]           optional, cumulative: 6–13.6 eV light since formation
 //
 // and, for each channel prefix ccsn, snia, massive_wind and agb_wind, all
 // cumulative since formation:
@@ -61,7 +68,9 @@
 // strictly rising ages. Cumulative columns must not fall with age (a fall is
 // a negative rate). In each row and channel H + He + metals must equal the
 // mass to 1e-6 (the mass is then taken as that sum) and the elements must
-// not exceed the metals. Absent optional elements read as zero. Any defect
+// not exceed the metals. Absent optional elements read as zero. The two
+// far-ultraviolet columns come together or not at all; a table without them
+// has no far-ultraviolet light (Table.HasFarUltraviolet reports which). Any defect
 // is reported with its line number.
 //
 // Between grid points a table is interpolated linearly in log age and log

@@ -21,19 +21,38 @@ const (
 	tablePerDecade = 32   // nodes per decade of age
 	tableZNodes    = 25   // nodes in log Z over [LifetimeMinZ, LifetimeMaxZ]
 	glNodes        = 12   // Gauss–Legendre nodes per smooth mass sub-interval
+	lightPerDecade = 2    // mass sub-intervals per decade for the light integrals (1e-9 relative, measured)
 )
 
 // Population is the built-in Model: a simple stellar population (a single
-// burst) with an IMF, stellar lifetimes and the four release channels,
-// configured by Config.
+// burst) with an IMF, stellar lifetimes, the four release channels and the
+// light of its stars, configured by Config.
 //
 // Every quantity is a cumulative function of age C(t) — what has been
 // released from formation to age t — and Release(age0, age1, z) returns
 // C(age1) − C(age0), so the releases of consecutive intervals add up to the
 // release of their union to round-off. Supernova counts and ejecta (and AGB
-// ejecta) are closed-form IMF integrals above the turn-off mass. Radiant
-// energy, ionizing photons and massive-star winds, which a star emits all
-// through its life, are tabulated at construction: cumulative values on a
+// ejecta) are closed-form IMF integrals above the turn-off mass.
+//
+// Light. Each star shines from birth to the end of its lifetime with its
+// zero-age main-sequence luminosity and effective temperature (ZAMS, the
+// fits of Tout et al. 1996), and its spectrum is taken to be a blackbody at
+// that temperature: the hydrogen-ionizing photon rate is the blackbody's
+// photon rate above HydrogenIonizationEnergy, and the far-ultraviolet
+// luminosity is its luminosity between FarUltravioletMinEnergy and
+// HydrogenIonizationEnergy. Against model atmospheres the blackbody gives
+// the ionizing rate of early O stars to a few hundredths of a dex and
+// overestimates it for late O and B stars (by about 0.2 dex at 33000 K and
+// 0.5 dex at 30000 K, against the dwarf O-star scale of Martins, Schaerer &
+// Hillier 2005, A&A 436, 1049), whose atmospheres have a strong Lyman edge;
+// a young population's ionizing photons come mostly from stars above
+// 30 Msun, so its rate is overestimated by a few tens of per cent at most.
+// Stars brighten on the main sequence and giants are left out, so the
+// light of an older population is underestimated.
+//
+// Radiant energy, ionizing photons, far-ultraviolet energy and massive-star
+// winds, which a star emits all through its life, are tabulated at
+// construction: cumulative values on a
 // grid of 32 nodes per decade of age from 0.01 Myr to 1e6 Myr (and age 0)
 // and 25 nodes in log Z, computed by Gauss–Legendre quadrature over mass
 // together with their rates (the time derivatives, known in closed form),
@@ -44,24 +63,29 @@ const (
 // A Population is immutable after NewPopulation and safe for concurrent
 // use; Release allocates nothing.
 type Population struct {
-	cfg      Config
-	imf      IMF
-	lum, ion piecewisePower
-	iaCoef   float64 // A in R(t) = A/t
-	windTo   float64 // per-unit-s wind factor: LostFractionAt100/100
-	windEV   float64 // erg per Msun of massive-star wind
-	agbEV    float64 // erg per Msun of AGB wind
-	ccPat    Abundances
+	cfg    Config
+	imf    IMF
+	iaCoef float64 // A in R(t) = A/t
+	windTo float64 // per-unit-s wind factor: LostFractionAt100/100
+	windEV float64 // erg per Msun of massive-star wind
+	agbEV  float64 // erg per Msun of AGB wind
+	ccPat  Abundances
+	// lightEdges splits the IMF's mass range into sub-intervals on which
+	// the light of a star times the IMF is smooth; gx, gw are the
+	// Gauss–Legendre nodes and weights on [−1, 1] used on each.
+	lightEdges []float64
+	gx, gw     []float64
 	// Mass ranges of the closed-form channels, with the IMF primitives at their ends.
 	ccNS, ccBH, ccNew, agb tailSegment
 	tabT                   []float64 // node ages, Myr; tabT[0] = 0
 	tabLZ                  []float64 // node log10 Z
 	rad                    []float64 // cumulative radiant energy, Lsun Myr, [iz*nt+it]
 	phot                   []float64 // cumulative ionizing photons, photons/s Myr
+	fuv                    []float64 // cumulative far-ultraviolet energy, Lsun Myr
 	wind                   []float64 // cumulative massive-wind mass per unit metallicity factor, Msun
 	// Rates at the nodes (the cumulative values' time derivatives), limited
 	// so that the cubic Hermite interpolant is monotone.
-	dRad, dPhot, dWind []float64
+	dRad, dPhot, dFUV, dWind []float64
 }
 
 // NewPopulation checks cfg and builds the population and its tables.
@@ -76,8 +100,6 @@ func NewPopulation(cfg Config) (*Population, error) {
 	p := &Population{
 		cfg:    cfg,
 		imf:    imf,
-		lum:    massLuminosity(),
-		ion:    ionizingRatePerStar(),
 		windTo: cfg.MassiveWinds.LostFractionAt100 / 100,
 	}
 	if cfg.TypeIa.EventsPerMsun > 0 {
@@ -101,6 +123,10 @@ func NewPopulation(cfg Config) (*Population, error) {
 	if err := p.checkMassBudget(); err != nil {
 		return nil, fmt.Errorf("yields: population config: %w", err)
 	}
+	p.gx = make([]float64, glNodes)
+	p.gw = make([]float64, glNodes)
+	quad.Legendre{}.FixedLocations(p.gx, p.gw, -1, 1)
+	p.lightEdges = p.massEdges()
 	if err := p.buildTables(); err != nil {
 		return nil, fmt.Errorf("yields: population tables: %w", err)
 	}
@@ -158,8 +184,8 @@ func (p *Population) checkMassBudget() error {
 	return nil
 }
 
-// buildTables tabulates the cumulative radiant energy, ionizing photons and
-// massive-wind mass.
+// buildTables tabulates the cumulative radiant energy, ionizing photons,
+// far-ultraviolet energy and massive-wind mass.
 func (p *Population) buildTables() error {
 	nt := 1 + tablePerDecade*int(math.Round(math.Log10(tableMaxAge/tableMinAge))) + 1
 	p.tabT = make([]float64, nt)
@@ -171,103 +197,104 @@ func (p *Population) buildTables() error {
 	for i := range p.tabLZ {
 		p.tabLZ[i] = l0 + (l1-l0)*float64(i)/(tableZNodes-1)
 	}
-	p.rad = make([]float64, nt*tableZNodes)
-	p.phot = make([]float64, nt*tableZNodes)
-	p.wind = make([]float64, nt*tableZNodes)
-	p.dRad = make([]float64, nt*tableZNodes)
-	p.dPhot = make([]float64, nt*tableZNodes)
-	p.dWind = make([]float64, nt*tableZNodes)
-
-	gx := make([]float64, glNodes)
-	gw := make([]float64, glNodes)
-	quad.Legendre{}.FixedLocations(gx, gw, -1, 1)
+	n := nt * tableZNodes
+	p.rad, p.phot, p.fuv, p.wind = make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
+	p.dRad, p.dPhot, p.dFUV, p.dWind = make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
 
 	lo, hi := p.imf.MinMass(), p.imf.MaxMass()
 	wlo := math.Max(p.cfg.MassiveWinds.MinMass, lo)
 	for iz, lz := range p.tabLZ {
-		lt, err := NewLifetimes(math.Pow(10, lz))
+		z := math.Pow(10, lz)
+		lt, err := NewLifetimes(z)
 		if err != nil {
 			return err
 		}
-		// Integrands, per unit mass: light of stars that have died (emitted
-		// over their whole life) and the wind rate of living massive stars.
-		deadL := func(m float64) float64 { return p.lum.at(m) * lt.Lifetime(m) * p.imf.Density(m) }
-		deadQ := func(m float64) float64 { return p.ion.at(m) * lt.Lifetime(m) * p.imf.Density(m) }
-		aliveW := func(m float64) float64 {
-			if m < wlo {
-				return 0
-			}
-			return p.windTo * m * (m - p.remnant(m)) / lt.Lifetime(m) * p.imf.Density(m)
+		ms, err := NewZAMS(z)
+		if err != nil {
+			return err
 		}
-		// gl integrates g over [a, b] in ln m; [a, b] lies inside one smooth piece.
-		gl := func(g func(float64) float64, a, b float64) float64 {
-			if !(a < b) {
-				return 0
+		// Integrands, per unit mass: the light of the living stars (a rate),
+		// the light of stars that have died (emitted over their whole life)
+		// and the wind rate of living massive stars.
+		alive := func(m float64) starLight { return ms.light(m).scale(p.imf.Density(m)) }
+		dead := func(m float64) starLight { return ms.light(m).scale(lt.Lifetime(m) * p.imf.Density(m)) }
+		aliveW := func(m float64) starLight {
+			if m < wlo {
+				return starLight{}
 			}
-			la, lb := math.Log(a), math.Log(b)
-			h := (lb - la) / 2
-			var s float64
-			for j := range gx {
-				m := math.Exp(la + h*(gx[j]+1))
-				s += h * gw[j] * m * g(m)
-			}
-			return s
+			return starLight{p.windTo * m * (m - p.remnant(m)) / lt.Lifetime(m) * p.imf.Density(m), 0, 0}
 		}
 		edges := p.edges(lt.VertexMass(), wlo)
 		ne := len(edges) - 1 // sub-intervals
-		sufL := make([]float64, ne+1)
-		sufQ := make([]float64, ne+1)
+		sufD := make([]starLight, ne+1)
+		preA := make([]starLight, ne+1)
 		preW := make([]float64, ne+1)
 		for j := ne - 1; j >= 0; j-- {
-			sufL[j] = sufL[j+1] + gl(deadL, edges[j], edges[j+1])
-			sufQ[j] = sufQ[j+1] + gl(deadQ, edges[j], edges[j+1])
+			sufD[j] = sufD[j+1].add(p.gl(dead, edges[j], edges[j+1]))
 		}
 		for j := 0; j < ne; j++ {
-			preW[j+1] = preW[j] + gl(aliveW, edges[j], edges[j+1])
+			preA[j+1] = preA[j].add(p.gl(alive, edges[j], edges[j+1]))
+			preW[j+1] = preW[j] + p.gl(aliveW, edges[j], edges[j+1]).lum
 		}
 		for it, t := range p.tabT {
 			x := math.Min(lt.TurnoffMass(t), hi)
-			var dL, dQ, aW float64
+			var d, a starLight
+			var aW float64
 			switch {
 			case x >= hi:
-				aW = preW[ne]
+				a, aW = preA[ne], preW[ne]
 			case x <= lo:
-				dL, dQ = sufL[0], sufQ[0]
+				d = sufD[0]
 			default:
 				j := sort.SearchFloat64s(edges, x) // edges[j-1] < x <= edges[j]
 				if edges[j] == x {
-					dL, dQ, aW = sufL[j], sufQ[j], preW[j]
+					d, a, aW = sufD[j], preA[j], preW[j]
 				} else {
-					dL = gl(deadL, x, edges[j]) + sufL[j]
-					dQ = gl(deadQ, x, edges[j]) + sufQ[j]
-					aW = preW[j-1] + gl(aliveW, edges[j-1], x)
+					d = p.gl(dead, x, edges[j]).add(sufD[j])
+					a = preA[j-1].add(p.gl(alive, edges[j-1], x))
+					aW = preW[j-1] + p.gl(aliveW, edges[j-1], x).lum
 				}
 			}
 			// The rates are the light of the living stars and the wind of the
-			// living massive stars (the terms from stars dying at t cancel).
-			lRate := p.lum.integrate(&p.imf, lo, x)
-			qRate := p.ion.integrate(&p.imf, lo, x)
-			rad := t*lRate + dL
-			phot := t*qRate + dQ
+			// living massive stars (the terms from stars dying at t cancel):
+			// the cumulative light is t times the living stars' light plus
+			// the whole-life light of the dead ones.
+			cum := a.scale(t).add(d)
 			// Winds: living stars have lost t/τ of their wind mass, dead ones all of it.
 			w := t*aW + p.windTo*p.massiveMoment2(math.Max(x, wlo), hi)
-			if math.IsNaN(rad) || math.IsNaN(phot) || math.IsNaN(w) {
+			if math.IsNaN(cum.lum) || math.IsNaN(cum.ionizing) || math.IsNaN(cum.fuv) || math.IsNaN(w) {
 				return fmt.Errorf("NaN at age %g Myr, log Z %g", t, lz)
 			}
 			k := iz*nt + it
-			p.rad[k], p.phot[k], p.wind[k] = rad, phot, w
-			p.dRad[k], p.dPhot[k], p.dWind[k] = lRate, qRate, aW
+			p.rad[k], p.phot[k], p.fuv[k], p.wind[k] = cum.lum, cum.ionizing, cum.fuv, w
+			p.dRad[k], p.dPhot[k], p.dFUV[k], p.dWind[k] = a.lum, a.ionizing, a.fuv, aW
 			if it > 0 { // keep the tables monotone against quadrature round-off
-				p.rad[k] = math.Max(p.rad[k], p.rad[k-1])
-				p.phot[k] = math.Max(p.phot[k], p.phot[k-1])
-				p.wind[k] = math.Max(p.wind[k], p.wind[k-1])
+				for _, tab := range [][]float64{p.rad, p.phot, p.fuv, p.wind} {
+					tab[k] = math.Max(tab[k], tab[k-1])
+				}
 			}
 		}
-		for _, tab := range [][2][]float64{{p.rad, p.dRad}, {p.phot, p.dPhot}, {p.wind, p.dWind}} {
+		for _, tab := range [][2][]float64{{p.rad, p.dRad}, {p.phot, p.dPhot}, {p.fuv, p.dFUV}, {p.wind, p.dWind}} {
 			limitSlopes(p.tabT, tab[0][iz*nt:(iz+1)*nt], tab[1][iz*nt:(iz+1)*nt])
 		}
 	}
 	return nil
+}
+
+// gl integrates g over [a, b] in ln m with the Gauss–Legendre rule; [a, b]
+// lies inside one smooth piece of g.
+func (p *Population) gl(g func(float64) starLight, a, b float64) starLight {
+	if !(a < b) {
+		return starLight{}
+	}
+	la, lb := math.Log(a), math.Log(b)
+	h := (lb - la) / 2
+	var s starLight
+	for j, x := range p.gx {
+		m := math.Exp(la + h*(x+1))
+		s = s.add(g(m).scale(h * p.gw[j] * m))
+	}
+	return s
 }
 
 // limitSlopes makes the cubic Hermite interpolant of the non-decreasing
@@ -294,20 +321,36 @@ func limitSlopes(t, y, d []float64) {
 	}
 }
 
-// edges lists the IMF range's ends and the masses inside it where a
-// tabulated integrand has a kink, sorted and without repeats.
-func (p *Population) edges(vertex, wlo float64) []float64 {
+// massEdges lists the IMF range's ends, the IMF's breaks and a grid of
+// lightPerDecade masses per decade: the sub-intervals on which the light of
+// the living stars is integrated.
+func (p *Population) massEdges() []float64 {
 	lo, hi := p.imf.MinMass(), p.imf.MaxMass()
-	b := []float64{lo, hi, vertex, wlo, p.cfg.Remnants.BlackHoleMinMass}
+	b := []float64{lo, hi}
 	for _, pc := range p.imf.pieces[:p.imf.n] {
 		b = append(b, pc.lo, pc.hi)
 	}
-	for _, s := range p.lum {
-		b = append(b, s.lo)
+	for k := math.Floor(math.Log10(lo) * lightPerDecade); ; k++ {
+		m := math.Pow(10, k/lightPerDecade)
+		if m >= hi {
+			break
+		}
+		b = append(b, m)
 	}
-	for _, s := range p.ion {
-		b = append(b, s.lo)
-	}
+	return sortedInside(b, lo, hi)
+}
+
+// edges lists the light's sub-interval edges and the masses where a
+// tabulated integrand has a kink (the lifetime's vertex mass, the lightest
+// massive star with winds, the lightest black-hole progenitor), sorted and
+// without repeats.
+func (p *Population) edges(vertex, wlo float64) []float64 {
+	b := append([]float64{vertex, wlo, p.cfg.Remnants.BlackHoleMinMass}, p.lightEdges...)
+	return sortedInside(b, p.imf.MinMass(), p.imf.MaxMass())
+}
+
+// sortedInside sorts b and keeps the values in [lo, hi] without repeats.
+func sortedInside(b []float64, lo, hi float64) []float64 {
 	sort.Float64s(b)
 	out := b[:0]
 	for _, v := range b {
@@ -379,11 +422,11 @@ type cumulative struct {
 	ccN, ccMass, ccNew float64
 	iaN                float64
 	windMass, agbMass  float64
-	rad, phot          float64 // Lsun Myr, photons/s Myr
+	light              starLight // Lsun Myr, photons/s Myr, Lsun Myr
 }
 
 // tableAt interpolates the light and wind tables at an age.
-func (p *Population) tableAt(c *evalContext, age float64) (rad, phot, wind float64) {
+func (p *Population) tableAt(c *evalContext, age float64) (light starLight, wind float64) {
 	nt := len(p.tabT)
 	var i int
 	if age >= p.tabT[1] {
@@ -408,7 +451,7 @@ func (p *Population) tableAt(c *evalContext, age float64) (rad, phot, wind float
 			a, b := last(y, d, k0), last(y, d, k1)
 			return a + c.wz*(b-a)
 		}
-		return mix(p.rad, p.dRad), mix(p.phot, p.dPhot), mix(p.wind, p.dWind) * c.wsc
+		return starLight{mix(p.rad, p.dRad), mix(p.phot, p.dPhot), mix(p.fuv, p.dFUV)}, mix(p.wind, p.dWind) * c.wsc
 	}
 	// Cubic Hermite basis on the cell.
 	u := (age - t0) / h
@@ -422,7 +465,7 @@ func (p *Population) tableAt(c *evalContext, age float64) (rad, phot, wind float
 		a, b := herm(y, d, k0), herm(y, d, k1)
 		return a + c.wz*(b-a)
 	}
-	return mix(p.rad, p.dRad), mix(p.phot, p.dPhot), mix(p.wind, p.dWind) * c.wsc
+	return starLight{mix(p.rad, p.dRad), mix(p.phot, p.dPhot), mix(p.fuv, p.dFUV)}, mix(p.wind, p.dWind) * c.wsc
 }
 
 // tailSegment is a mass range [lo, hi] of a closed-form channel with the
@@ -473,7 +516,7 @@ func (p *Population) cumulativeAt(c *evalContext, age float64) cumulative {
 	if age > p.cfg.TypeIa.MinDelay {
 		r.iaN = p.iaCoef * math.Log(age/p.cfg.TypeIa.MinDelay)
 	}
-	r.rad, r.phot, r.windMass = p.tableAt(c, age)
+	r.light, r.windMass = p.tableAt(c, age)
 	return r
 }
 
@@ -565,8 +608,9 @@ func (p *Population) Release(age0, age1, z float64) (Release, error) {
 			}
 		}
 	}
-	r.RadiantEnergy = (c1.rad - c0.rad) * units.SolarLuminosity * units.Megayear
-	r.IonizingPhotons = (c1.phot - c0.phot) * units.Megayear
+	r.RadiantEnergy = (c1.light.lum - c0.light.lum) * units.SolarLuminosity * units.Megayear
+	r.IonizingPhotons = (c1.light.ionizing - c0.light.ionizing) * units.Megayear
+	r.FarUltravioletEnergy = (c1.light.fuv - c0.light.fuv) * units.SolarLuminosity * units.Megayear
 	return r, nil
 }
 
@@ -581,30 +625,46 @@ func checkAge(age, z float64) error {
 }
 
 // Luminosity is the bolometric luminosity at an age in Lsun per Msun
-// formed: the mass–luminosity relation integrated over the stars still on
-// the main sequence (closed form).
+// formed: the zero-age luminosity of the stars still alive, integrated over
+// the IMF at the metallicity z itself (not interpolated between table
+// nodes).
 func (p *Population) Luminosity(age, z float64) (float64, error) {
-	if err := checkAge(age, z); err != nil {
-		return 0, err
-	}
-	life, err := NewLifetimes(z)
-	if err != nil {
-		return 0, err
-	}
-	x := math.Min(life.TurnoffMass(age), p.imf.MaxMass())
-	return p.lum.integrate(&p.imf, p.imf.MinMass(), x), nil
+	l, err := p.lightAt(age, z)
+	return l.lum, err
 }
 
 // IonizingRate is the hydrogen-ionizing photon rate at an age in photons/s
-// per Msun formed (closed form, as Luminosity).
+// per Msun formed, computed as Luminosity.
 func (p *Population) IonizingRate(age, z float64) (float64, error) {
+	l, err := p.lightAt(age, z)
+	return l.ionizing, err
+}
+
+// FarUltravioletLuminosity is the far-ultraviolet (6–13.6 eV) luminosity at
+// an age in Lsun per Msun formed, computed as Luminosity.
+func (p *Population) FarUltravioletLuminosity(age, z float64) (float64, error) {
+	l, err := p.lightAt(age, z)
+	return l.fuv, err
+}
+
+// lightAt integrates the light of the stars alive at an age over the IMF.
+func (p *Population) lightAt(age, z float64) (starLight, error) {
 	if err := checkAge(age, z); err != nil {
-		return 0, err
+		return starLight{}, err
 	}
 	life, err := NewLifetimes(z)
 	if err != nil {
-		return 0, err
+		return starLight{}, err
+	}
+	ms, err := NewZAMS(z)
+	if err != nil {
+		return starLight{}, err
 	}
 	x := math.Min(life.TurnoffMass(age), p.imf.MaxMass())
-	return p.ion.integrate(&p.imf, p.imf.MinMass(), x), nil
+	alive := func(m float64) starLight { return ms.light(m).scale(p.imf.Density(m)) }
+	var s starLight
+	for j := 0; j+1 < len(p.lightEdges) && p.lightEdges[j] < x; j++ {
+		s = s.add(p.gl(alive, p.lightEdges[j], math.Min(x, p.lightEdges[j+1])))
+	}
+	return s, nil
 }

@@ -118,6 +118,12 @@ type Release struct {
 	// IonizingPhotons is the number of hydrogen-ionizing photons emitted over
 	// the interval per Msun formed.
 	IonizingPhotons float64
+	// FarUltravioletEnergy is the energy emitted over the interval in the
+	// far ultraviolet, between FarUltravioletMinEnergy and
+	// HydrogenIonizationEnergy (6–13.6 eV), in erg per Msun formed (the time
+	// integral of FarUltravioletLuminosity; part of RadiantEnergy). A table
+	// without the far-ultraviolet columns gives zero.
+	FarUltravioletEnergy float64
 }
 
 // Total is the sum of all channels' ejecta.
@@ -139,4 +145,7 @@ type Model interface {
 	// IonizingRate is the hydrogen-ionizing photon rate at an age, in photons
 	// per second per Msun formed.
 	IonizingRate(age, z float64) (float64, error)
+	// FarUltravioletLuminosity is the luminosity between 6 and 13.6 eV at an
+	// age, in Lsun per Msun formed.
+	FarUltravioletLuminosity(age, z float64) (float64, error)
 }

@@ -21,6 +21,8 @@ const (
 	colIonizingRate
 	colRadiant
 	colPhotons
+	colFUVLuminosity
+	colFUVEnergy
 	colChannels // first channel column; each channel has colsPerChannel
 )
 
@@ -49,10 +51,12 @@ type tableColumn struct {
 }
 
 const (
-	tableAgeName = "age"
-	tableAgeUnit = "Myr"
-	tableZName   = "metallicity"
-	tableZUnit   = "mass_fraction"
+	fuvLuminosityName = "fuv_luminosity"
+	fuvEnergyName     = "fuv_energy"
+	tableAgeName      = "age"
+	tableAgeUnit      = "Myr"
+	tableZName        = "metallicity"
+	tableZUnit        = "mass_fraction"
 )
 
 // tableColumns lists every column the format knows.
@@ -64,6 +68,8 @@ func tableColumns() []tableColumn {
 		{"ionizing_rate", "photons/s/Msun", colIonizingRate, false, true},
 		{"radiant_energy", "erg/Msun", colRadiant, true, true},
 		{"ionizing_photons", "photons/Msun", colPhotons, true, true},
+		{fuvLuminosityName, "Lsun/Msun", colFUVLuminosity, false, false},
+		{fuvEnergyName, "erg/Msun", colFUVEnergy, true, false},
 	}
 	for ch, pre := range tablePrefixes() {
 		base := colChannels + ch*colsPerChannel
@@ -88,9 +94,10 @@ func tableColumns() []tableColumn {
 // age and log Z. Releases are differences of the interpolated cumulative
 // values, so they add up over consecutive intervals like Population's. Below
 // the first age, cumulative values grow linearly from zero at age 0; past the
-// last age they stay constant. Luminosity and photon rate are held at the
-// end values outside the grid, and metallicities outside the grid are
-// clamped to it. A Table is immutable and safe for concurrent use.
+// last age they stay constant. Luminosity, photon rate and far-ultraviolet
+// luminosity are held at the end values outside the grid, and metallicities
+// outside the grid are clamped to it. The far-ultraviolet columns are
+// optional: without them the far-ultraviolet light is zero. A Table is immutable and safe for concurrent use.
 type Table struct {
 	ages, logAges []float64
 	zs, logZs     []float64
@@ -175,6 +182,9 @@ func ReadTable(r io.Reader) (*Table, error) {
 		if c.required && !seen[c.name] {
 			return nil, lineError(headerLine, "missing column %s[%s]", c.name, c.unit)
 		}
+	}
+	if seen[fuvLuminosityName] != seen[fuvEnergyName] {
+		return nil, lineError(headerLine, "columns %s and %s come together: give both or neither", fuvLuminosityName, fuvEnergyName)
 	}
 	cr.FieldsPerRecord = len(header)
 
@@ -376,6 +386,7 @@ func (t *Table) Release(age0, age1, z float64) (Release, error) {
 	}
 	r.RadiantEnergy = diff(colRadiant)
 	r.IonizingPhotons = diff(colPhotons)
+	r.FarUltravioletEnergy = diff(colFUVEnergy) // zero when the columns are absent
 	return r, nil
 }
 
@@ -390,6 +401,17 @@ func (t *Table) Luminosity(age, z float64) (float64, error) {
 func (t *Table) IonizingRate(age, z float64) (float64, error) {
 	return t.rate(colIonizingRate, age, z)
 }
+
+// FarUltravioletLuminosity is the tabulated far-ultraviolet (6–13.6 eV)
+// luminosity in Lsun per Msun formed, interpolated as Luminosity; zero for a
+// table without the optional far-ultraviolet columns.
+func (t *Table) FarUltravioletLuminosity(age, z float64) (float64, error) {
+	return t.rate(colFUVLuminosity, age, z)
+}
+
+// HasFarUltraviolet reports whether the table has the optional
+// far-ultraviolet columns.
+func (t *Table) HasFarUltraviolet() bool { return t.present[colFUVLuminosity] }
 
 func (t *Table) rate(col int, age, z float64) (float64, error) {
 	if err := checkAge(age, z); err != nil {
@@ -418,8 +440,16 @@ func WriteTable(w io.Writer, m Model, layout TableLayout) error {
 	if len(layout.Ages) < 2 || len(layout.Metallicities) < 1 {
 		return errors.New("yields: write table: need at least two ages and one metallicity")
 	}
+	// A table without the optional far-ultraviolet columns is written without them.
+	noFUV := false
+	if t, ok := m.(*Table); ok && !t.HasFarUltraviolet() {
+		noFUV = true
+	}
 	var cols []tableColumn
 	for _, c := range tableColumns() {
+		if noFUV && (c.index == colFUVLuminosity || c.index == colFUVEnergy) {
+			continue
+		}
 		if c.index >= colChannels {
 			off := (c.index - colChannels) % colsPerChannel
 			if off >= chSpecies && !layout.Species.Has(Species(off-chSpecies)) {
@@ -460,9 +490,13 @@ func WriteTable(w io.Writer, m Model, layout TableLayout) error {
 			if err != nil {
 				return fmt.Errorf("yields: write table at %v Myr, Z %v: %w", age, z, err)
 			}
+			f, err := m.FarUltravioletLuminosity(age, z)
+			if err != nil {
+				return fmt.Errorf("yields: write table at %v Myr, Z %v: %w", age, z, err)
+			}
 			var v [numTableCols]float64
-			v[colLuminosity], v[colIonizingRate] = l, q
-			v[colRadiant], v[colPhotons] = r.RadiantEnergy, r.IonizingPhotons
+			v[colLuminosity], v[colIonizingRate], v[colFUVLuminosity] = l, q, f
+			v[colRadiant], v[colPhotons], v[colFUVEnergy] = r.RadiantEnergy, r.IonizingPhotons, r.FarUltravioletEnergy
 			for ch, e := range r.Channels {
 				b := colChannels + ch*colsPerChannel
 				v[b+chEvents], v[b+chMass], v[b+chEnergy] = e.Events, e.Mass, e.Energy

@@ -43,6 +43,12 @@ const (
 	Megayear = 1e6 * JulianYear
 	// Gigayear is 1e9 Julian years in s.
 	Gigayear = 1e9 * JulianYear
+	// SolarRadius nominal R_sun in cm: IAU 2015 Resolution B3 (6.957e8 m), exact by definition.
+	SolarRadius = 6.957e10
+	// Planck h in erg s: exact in the 2019 SI (CODATA 2018: 6.62607015e-34 J s).
+	Planck = 6.62607015e-27
+	// ElectronVolt in erg: exact in the 2019 SI (CODATA 2018: 1.602176634e-19 J).
+	ElectronVolt = 1.602176634e-12
 	// FOE is the canonical supernova energy, 1e51 erg (common practice in the trade:
 	// "one foe", no single source).
 	FOE = 1e51
@@ -50,6 +56,10 @@ const (
 
 // Derived conveniences.
 const (
+	// StefanBoltzmann σ = 2π⁵k⁴/(15h³c²) in erg cm^-2 s^-1 K^-4, exact in the
+	// 2019 SI from h, k_B and c (CODATA 2018 quotes 5.670374419e-8 W m^-2 K^-4).
+	StefanBoltzmann = 2 * math.Pi * math.Pi * math.Pi * math.Pi * math.Pi * Boltzmann * Boltzmann * Boltzmann * Boltzmann /
+		(15 * Planck * Planck * Planck * SpeedOfLight * SpeedOfLight)
 	// MsunKms is one solar mass moving at one km/s, in g cm/s: the unit in which
 	// remnant momenta are quoted in the literature.
 	MsunKms = SolarMass * Kilometre

@@ -27,6 +27,13 @@ func TestPublishedConstants(t *testing.T) {
 		{"solar luminosity", SolarLuminosity, 3.828e33, 0},
 		// CODATA 2018: G = 6.67430e-11 m^3 kg^-1 s^-2.
 		{"G", Gravitational, 6.67430e-8, 0},
+		// IAU 2015 Resolution B3 nominal solar radius, exact.
+		{"solar radius", SolarRadius, 6.957e10, 0},
+		// CODATA 2018 (exact in the 2019 SI): h = 6.62607015e-34 J s, 1 eV = 1.602176634e-19 J.
+		{"planck", Planck, 6.62607015e-27, 0},
+		{"electron volt", ElectronVolt, 1.602176634e-12, 0},
+		// CODATA 2018: σ = 5.670374419e-8 W m^-2 K^-4 (the quoted digits of the exact value).
+		{"stefan-boltzmann", StefanBoltzmann, 5.670374419e-5, 1e-9},
 		// 1 Msun km/s in g cm/s: 1.98841e33 g × 1e5 cm/s (arithmetic on the values above).
 		{"Msun km/s", MsunKms, 1.98841e38, 1e-5},
 	}
