@@ -270,6 +270,11 @@ func TestTableGridChecks(t *testing.T) {
 // gives finite, non-negative, additive releases.
 func FuzzReadTable(f *testing.F) {
 	f.Add([]byte(goodTable))
+	lines := strings.Split(goodTable, "\n")
+	lines[1] += ",fuv_luminosity[Lsun/Msun],fuv_energy[erg/Msun]"
+	lines[2] += ",400,4e49"
+	lines[3] += ",200,8e49"
+	f.Add([]byte(strings.Join(lines, "\n")))
 	f.Add([]byte("age[Myr],metallicity[mass_fraction]\n1,0.02\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		tab, err := ReadTable(bytes.NewReader(data))

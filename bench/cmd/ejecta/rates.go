@@ -26,7 +26,8 @@ type ratesTotals struct {
 }
 
 // ratesBin is one age bin; counts and masses are per Msun formed within the
-// bin, luminosity and photon rate at the bin's start.
+// bin, luminosities and photon rate at the bin's start. FUVLuminosity is
+// nil for a rates table without the optional far-ultraviolet columns.
 type ratesBin struct {
 	AgeStart       float64 `json:"age_myr_start"`
 	AgeEnd         float64 `json:"age_myr_end"`
@@ -39,6 +40,8 @@ type ratesBin struct {
 	IonizingPerSec float64 `json:"ionizing_photons_per_s"`
 	// ElementsMsun is the mass of each element asked for, by symbol.
 	ElementsMsun map[string]float64 `json:"elements_msun,omitempty"`
+	// FUVLuminosity is the far-ultraviolet (6–13.6 eV) luminosity.
+	FUVLuminosity *float64 `json:"fuv_luminosity_lsun,omitempty"`
 }
 
 type ratesReport struct {
@@ -63,11 +66,11 @@ var ratesCommand = subcommand{
 	synopsis: "[flags]",
 	description: "Prints what one Msun of stars formed in a single burst releases, by age: " +
 		"core-collapse and Type Ia supernovae, ejected mass and metals (and, with -elements, the mass of " +
-		"each element asked for), energy (explosions and wind kinetic energy), and the luminosity and " +
-		"ionizing photon rate at each bin's start, from the built-in population (-imf) or a rates table " +
-		"in the CSV format of package yields (-table). The first bin runs from age 0 to 0.1 Myr; the " +
-		"rest are log-spaced up to 13.8 Gyr. Where the model is asked about ages or metallicities it " +
-		"does not cover, the output says so and what was done instead.",
+		"each element asked for), energy (explosions and wind kinetic energy), and the luminosity, " +
+		"far-ultraviolet (6-13.6 eV) luminosity and ionizing photon rate at each bin's start, from the " +
+		"built-in population (-imf) or a rates table in the CSV format of package yields (-table). The " +
+		"first bin runs from age 0 to 0.1 Myr; the rest are log-spaced up to 13.8 Gyr. Where the model " +
+		"is asked about ages or metallicities it does not cover, the output says so and what was done instead.",
 }
 
 func runRates(args []string, stdout, stderr io.Writer) int {
@@ -268,6 +271,11 @@ func buildRatesReport(m yields.Model, label string, z float64, perDecade int, el
 		MetalYieldPerMsun:    tot.Species[yields.Metals],
 		ElementsMsun:         masses(tot),
 	}
+	// A rates table may lack the optional far-ultraviolet columns.
+	hasFUV := true
+	if t, ok := m.(*yields.Table); ok {
+		hasFUV = t.HasFarUltraviolet()
+	}
 	edges := rateEdges(perDecade)
 	for i := 0; i+1 < len(edges); i++ {
 		r, err := m.Release(edges[i], edges[i+1], z)
@@ -282,12 +290,20 @@ func buildRatesReport(m yields.Model, label string, z float64, perDecade int, el
 		if err != nil {
 			return rep, err
 		}
+		var fuv *float64
+		if hasFUV {
+			f, err := m.FarUltravioletLuminosity(edges[i], z)
+			if err != nil {
+				return rep, err
+			}
+			fuv = &f
+		}
 		t := r.Total()
 		rep.Bins = append(rep.Bins, ratesBin{
 			AgeStart: edges[i], AgeEnd: edges[i+1],
 			SNCC: r.Channels[yields.CoreCollapse].Events, SNIa: r.Channels[yields.TypeIa].Events,
 			Ejecta: t.Mass, Metals: t.Species[yields.Metals], Energy: t.Energy,
-			Luminosity: l, IonizingPerSec: q, ElementsMsun: masses(t),
+			Luminosity: l, IonizingPerSec: q, FUVLuminosity: fuv, ElementsMsun: masses(t),
 		})
 	}
 	return rep, nil
@@ -314,7 +330,8 @@ func printRates(w io.Writer, rep ratesReport) {
 	}
 	legend = append(legend,
 		"energy: supernova explosion energy plus wind kinetic energy released [erg]",
-		"L: bolometric luminosity at the bin's start [Lsun]; Q: hydrogen-ionizing photons emitted per second at the bin's start [1/s]")
+		"L: bolometric luminosity at the bin's start [Lsun]; L_FUV: its far-ultraviolet (6-13.6 eV) part, "+
+			"\"-\" for a rates table without it [Lsun]; Q: hydrogen-ionizing photons emitted per second at the bin's start [1/s]")
 	for _, l := range legend {
 		fmt.Fprintln(w, indentText(wrapText(l, 76), "# "))
 	}
@@ -323,14 +340,18 @@ func printRates(w io.Writer, rep ratesReport) {
 	for _, e := range rep.Elements {
 		header += e + "[Msun]\t"
 	}
-	fmt.Fprintln(tw, header+"energy[erg]\tL[Lsun]\tQ[1/s]\t")
+	fmt.Fprintln(tw, header+"energy[erg]\tL[Lsun]\tL_FUV[Lsun]\tQ[1/s]\t")
 	for _, b := range rep.Bins {
 		line := fmt.Sprintf("%s\t%s\t%s\t%s\t%s\t%s\t", age(b.AgeStart), age(b.AgeEnd),
 			sci(b.SNCC), sci(b.SNIa), sci(b.Ejecta), sci(b.Metals))
 		for _, e := range rep.Elements {
 			line += sci(b.ElementsMsun[e]) + "\t"
 		}
-		fmt.Fprintln(tw, line+sci(b.Energy)+"\t"+sci(b.Luminosity)+"\t"+sci(b.IonizingPerSec)+"\t")
+		fuv := "-" // a rates table without the far-ultraviolet columns
+		if b.FUVLuminosity != nil {
+			fuv = sci(*b.FUVLuminosity)
+		}
+		fmt.Fprintln(tw, line+sci(b.Energy)+"\t"+sci(b.Luminosity)+"\t"+fuv+"\t"+sci(b.IonizingPerSec)+"\t")
 	}
 	tw.Flush()
 }
