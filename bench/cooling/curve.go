@@ -22,7 +22,10 @@ type Curve struct {
 	slope   []float64 // d ln Λ / d ln T on [temp[k], temp[k+1]); the last entry continues past the top node
 	// evol[k] = Y(temp[k]) = ∫_{temp[k]}^{temp[top]} dT/Λ(T), in K / (erg cm^3 s^-1);
 	// it falls with k and is 0 at the top node.
-	evol    []float64
+	evol []float64
+	// peak[k] = max(lambda[0..k]): the lowest node reaching a value is a
+	// binary search away.
+	peak    []float64
 	heating float64 // Γ in erg/s per H
 }
 
@@ -44,6 +47,7 @@ func NewCurve(tempK, lambda []float64, heating float64) (*Curve, error) {
 		lambda:  append([]float64(nil), lambda...),
 		slope:   make([]float64, n),
 		evol:    make([]float64, n),
+		peak:    make([]float64, n),
 		heating: heating,
 	}
 	for k := range n {
@@ -58,6 +62,10 @@ func NewCurve(tempK, lambda []float64, heating float64) (*Curve, error) {
 			return nil, fmt.Errorf("cooling: curve: node %d: cooling %v erg cm^3/s, want finite > 0: %w", k, l, ErrInput)
 		}
 		c.logTemp[k] = math.Log(t)
+	}
+	c.peak[0] = c.lambda[0]
+	for k := 1; k < n; k++ {
+		c.peak[k] = math.Max(c.peak[k-1], c.lambda[k])
 	}
 	for k := 0; k < n-1; k++ {
 		c.slope[k] = (math.Log(c.lambda[k+1]) - math.Log(c.lambda[k])) / (c.logTemp[k+1] - c.logTemp[k])
@@ -183,13 +191,11 @@ func (c *Curve) EquilibriumTemperature(nH float64) float64 {
 		return c.temp[0]
 	}
 	n := len(c.temp)
-	for k := 1; k < n; k++ {
-		if c.lambda[k] >= target {
-			// Inside segment k−1: Λ_{k−1} x^s = target.
-			s := c.slope[k-1]
-			t := c.temp[k-1] * math.Exp(math.Log(target/c.lambda[k-1])/s)
-			return math.Min(math.Max(t, c.temp[k-1]), c.temp[k])
-		}
+	// The first node reaching the target; the root lies in the segment before it.
+	if k := sort.SearchFloat64s(c.peak, target); k < n {
+		s := c.slope[k-1]
+		t := c.temp[k-1] * math.Exp(math.Log(target/c.lambda[k-1])/s)
+		return math.Min(math.Max(t, c.temp[k-1]), c.temp[k])
 	}
 	if s := c.slope[n-1]; s > 0 {
 		return c.temp[n-1] * math.Exp(math.Log(target/c.lambda[n-1])/s)
