@@ -16,7 +16,7 @@ import (
 const (
 	// pathCapacity bounds the length of a yields table path, NUL included.
 	pathCapacity      = 4096
-	numStepChannels   = feedback.NumStepChannels
+	numStepChannels   = int(yields.NumAllChannels)
 	defaultMaxPerStep = 10
 )
 

@@ -282,7 +282,7 @@ func runPopulation(t *testing.T, scheme string, workers int32, model yields.Mode
 		require.Equal(t, codeOK, entryGetLedger(h, &l))
 		var msg [256]byte
 		require.Equal(t, codeOK, entryLedgerBalanced(&l, 1e-12, &msg[0], int64(len(msg))), "step %d: %s", k, msg[:])
-		assert.Equal(t, int64(feedback.NumStepChannels), l.Stars, "one release per channel")
+		assert.Equal(t, int64(yields.NumAllChannels), l.Stars, "one release per channel")
 		// The channel ledgers add up to the step's.
 		var sum feedback.Ledger
 		for ch := int32(0); ch < int32(numStepChannels); ch++ {
@@ -388,7 +388,7 @@ func TestPopulationSwitchesAndTable(t *testing.T) {
 			[]yields.Channel{yields.MassiveWinds, yields.AGBWinds},
 			[]int32{int32(yields.MassiveWinds), int32(yields.AGBWinds)}, false},
 		{"radiation and photoionization off", func(p *populationConfigABI) { p.RadiationPressure, p.Photoionization = 0, 0 }, builtin,
-			nil, []int32{int32(feedback.RadiationChannel), int32(feedback.PhotoionizationChannel)}, false},
+			nil, []int32{int32(yields.RadiationPressure), int32(yields.Photoionization)}, false},
 		{"delayed cooling", func(p *populationConfigABI) { p.DelayedCooling = 1 }, builtin, nil, nil, true},
 		{"table", func(p *populationConfigABI) { p.YieldsTable = cString(exampleTable) }, table, nil, nil, false},
 	}
@@ -426,7 +426,7 @@ func TestPopulationSwitchesAndTable(t *testing.T) {
 				assert.Zero(t, cl.Released.Energy, "channel %d", ch)
 			}
 			var ion ledgerABI
-			require.Equal(t, codeOK, entryGetChannelLedger(h, int32(feedback.PhotoionizationChannel), &ion))
+			require.Equal(t, codeOK, entryGetChannelLedger(h, int32(yields.Photoionization), &ion))
 			if len(tc.silent) == 0 {
 				assert.Positive(t, ion.Released.Energy, "a 4 Myr population ionizes")
 			}

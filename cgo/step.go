@@ -114,7 +114,7 @@ func (s *session) runBatch(kind stepKind, a *batchArgs, couple func(neighbor.Fin
 	s.phase, s.kind = phaseStepped, kind
 	if p := s.out.Problems; len(p) > 0 {
 		return fail(codeUndeposited, "releases returned undeposited: %d (of %d stars); first: star %d (index %d, channel %s): %v",
-			len(p), a.n, p[0].StarID, p[0].Index, feedback.ChannelName(p[0].Channel), p[0].Err)
+			len(p), a.n, p[0].StarID, p[0].Index, p[0].Channel.String(), p[0].Err)
 	}
 	return nil
 }

@@ -95,11 +95,11 @@ func BenchmarkCouple(b *testing.B) {
 		return feedback.Source{Star: src.Star, Channel: yields.MassiveWinds, Mass: 1e-3, Energy: 0.5 * 1e-3 * 2000 * 2000}
 	}
 	light := func(src feedback.Source) feedback.Source {
-		return feedback.Source{Star: src.Star, Channel: feedback.RadiationChannel, Energy: 1e6 * units.SolarLuminosity * units.Megayear / u.EnergyErg()}
+		return feedback.Source{Star: src.Star, Channel: yields.RadiationPressure, Energy: 1e6 * units.SolarLuminosity * units.Megayear / u.EnergyErg()}
 	}
 	photons := func(src feedback.Source) feedback.Source {
 		n := 1e49 * units.Megayear
-		return feedback.Source{Star: src.Star, Channel: feedback.PhotoionizationChannel, Photons: n,
+		return feedback.Source{Star: src.Star, Channel: yields.Photoionization, Photons: n,
 			Duration: units.Megayear / u.TimeS(), Energy: n * 3 * 1.602e-12 / u.EnergyErg()}
 	}
 	cases := []struct {

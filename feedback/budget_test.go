@@ -58,7 +58,7 @@ func TestInfraredBoostIsBounded(t *testing.T) {
 	// Through the coupler: a dense cloud whose column is far above
 	// tau_IR = 1 gets 3 L/c, not (1 + tau_IR) L/c.
 	g := uniformGas(12, 400, 1e4, 1e4, u)
-	src := feedback.Source{Star: feedback.Star{ID: 2}, Channel: feedback.RadiationChannel, Energy: e}
+	src := feedback.Source{Star: feedback.Star{ID: 2}, Channel: yields.RadiationPressure, Energy: e}
 	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.RadiationPressure{}, Neighbors: 64}, []feedback.Source{src})
 	assert.InEpsilon(t, 3*lc, out.Ledger.RadialMomentum, 1e-6)
 	// A bound below 1 is refused.
@@ -105,8 +105,8 @@ func TestPhotoheatingIsPaidFromTheLight(t *testing.T) {
 		require.NoError(t, err)
 		var out feedback.StepOutput
 		require.NoError(t, st.Step(g.View(), f, []feedback.StarParticle{star}, 0, myr, &out))
-		rad := out.Channels[feedback.RadiationChannel].In.Energy
-		ion := out.Channels[feedback.PhotoionizationChannel].In.Energy
+		rad := out.Channels[yields.RadiationPressure].In.Energy
+		ion := out.Channels[yields.Photoionization].In.Energy
 		photons := rel.IonizingPhotons * 1e4
 		heat := photons * 3 * 1.602176634e-12 / u.EnergyErg() // 3 eV per photon, the default
 		if c.heat {

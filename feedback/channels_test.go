@@ -54,7 +54,7 @@ func TestStromgrenBudget(t *testing.T) {
 	g := latticeGas(21, dx, nH, u)
 	q := 1e48 // photons per second: R_S about 6.8 pc at n = 10
 	dt := units.Megayear / u.TimeS()
-	src := feedback.Source{Star: feedback.Star{ID: 1, Pos: [3]float64{0.1, 0.05, 0.02}}, Channel: feedback.PhotoionizationChannel,
+	src := feedback.Source{Star: feedback.Star{ID: 1, Pos: [3]float64{0.1, 0.05, 0.02}}, Channel: yields.Photoionization,
 		Photons: q * units.Megayear, Duration: dt, Energy: 1e60 / u.EnergyErg()}
 	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.Photoionization{}, Neighbors: 9000}, []feedback.Source{src})
 	n := nH
@@ -103,7 +103,7 @@ func TestRadiationPressureMomentum(t *testing.T) {
 
 	// Through the coupler, in dense gas that absorbs everything.
 	g := uniformGas(12, 400, 100, 1e3, u)
-	src := feedback.Source{Star: feedback.Star{ID: 2}, Channel: feedback.RadiationChannel, Energy: e}
+	src := feedback.Source{Star: feedback.Star{ID: 2}, Channel: yields.RadiationPressure, Energy: e}
 	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: rp, Neighbors: 64}, []feedback.Source{src})
 	assert.InEpsilon(t, want, out.Ledger.RadialMomentum, 1e-6)
 	assert.Greater(t, out.Ledger.Radiated, 0.99*e, "the light's energy escapes, only the kicks stay")
@@ -118,11 +118,11 @@ func TestChannelSchemesPassTheHarness(t *testing.T) {
 		return src
 	}
 	light := func(s feedback.Star) feedback.Source {
-		return feedback.Source{Star: s, Channel: feedback.RadiationChannel, Energy: 1e6 * units.SolarLuminosity * units.Megayear / u.EnergyErg()}
+		return feedback.Source{Star: s, Channel: yields.RadiationPressure, Energy: 1e6 * units.SolarLuminosity * units.Megayear / u.EnergyErg()}
 	}
 	photons := func(s feedback.Star) feedback.Source {
 		n := 1e49 * units.Megayear
-		return feedback.Source{Star: s, Channel: feedback.PhotoionizationChannel, Photons: n,
+		return feedback.Source{Star: s, Channel: yields.Photoionization, Photons: n,
 			Duration: units.Megayear / u.TimeS(), Energy: n * 3 * 1.602e-12 / u.EnergyErg()}
 	}
 	cases := []struct {

@@ -51,5 +51,5 @@ func problemsErr(problems []Problem) error {
 	}
 	p := &problems[0]
 	return fmt.Errorf("%w: %d releases; first: star %d (index %d, channel %s): %w",
-		ErrUndeposited, len(problems), p.StarID, p.Index, ChannelName(p.Channel), p.Err)
+		ErrUndeposited, len(problems), p.StarID, p.Index, p.Channel.String(), p.Err)
 }

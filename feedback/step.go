@@ -9,27 +9,6 @@ import (
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
-// Channels of a step beyond the four release channels of package yields:
-// radiation pressure and photoionization, which records carry in their
-// Channel field.
-const (
-	RadiationChannel       = yields.NumChannels
-	PhotoionizationChannel = yields.NumChannels + 1
-	// NumStepChannels counts every channel a step drives.
-	NumStepChannels = int(yields.NumChannels) + 2
-)
-
-// ChannelName names any channel a record can carry.
-func ChannelName(c yields.Channel) string {
-	switch c {
-	case RadiationChannel:
-		return "radiation-pressure"
-	case PhotoionizationChannel:
-		return "photoionization"
-	}
-	return c.String()
-}
-
 // StarParticle is a star particle with the state a step needs: its star
 // (age in code time at the step's start), the stellar mass it formed with
 // (code mass; releases scale with it), and energy carried over from earlier
@@ -83,7 +62,7 @@ type StepOutput struct {
 	Records []Record
 	// Ledger sums every channel; Channels holds each channel's own.
 	Ledger   Ledger
-	Channels [NumStepChannels]Ledger
+	Channels [yields.NumAllChannels]Ledger
 	// Supernovae counts the events drawn per channel (core-collapse, Ia);
 	// StarSupernovae holds each star's own counts.
 	Supernovae     [2]int
@@ -116,10 +95,10 @@ func (o *StepOutput) Err() error { return problemsErr(o.Problems) }
 // continuous.
 type Stepper struct {
 	cfg      StepConfig
-	couplers [NumStepChannels]*Coupler
+	couplers [yields.NumAllChannels]*Coupler
 	search   sharedSearch
-	sources  [NumStepChannels][]Source
-	outs     [NumStepChannels]Output
+	sources  [yields.NumAllChannels][]Source
+	outs     [yields.NumAllChannels]Output
 }
 
 // NewStepper checks the configuration and prepares the couplers.
@@ -153,17 +132,17 @@ func NewStepper(cfg StepConfig) (*Stepper, error) {
 		cfg.Photoionization = Photoionization{}
 	}
 	s := &Stepper{cfg: cfg}
-	schemes := [NumStepChannels]Scheme{
+	schemes := [yields.NumAllChannels]Scheme{
 		yields.CoreCollapse: cfg.Coupling.Scheme, yields.TypeIa: cfg.Coupling.Scheme,
 		yields.MassiveWinds: cfg.Winds, yields.AGBWinds: cfg.Winds,
-		RadiationChannel: cfg.Radiation, PhotoionizationChannel: cfg.Photoionization,
+		yields.RadiationPressure: cfg.Radiation, yields.Photoionization: cfg.Photoionization,
 	}
 	for c, sch := range schemes {
 		cc := cfg.Coupling
 		cc.Scheme = sch
 		co, err := NewCoupler(cc)
 		if err != nil {
-			return nil, fmt.Errorf("stepper: channel %s: %w", ChannelName(yields.Channel(c)), err)
+			return nil, fmt.Errorf("stepper: channel %s: %w", yields.Channel(c).String(), err)
 		}
 		s.couplers[c] = co
 	}
@@ -184,7 +163,7 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 	out.Records = out.Records[:0]
 	out.Problems = out.Problems[:0]
 	out.Ledger = Ledger{}
-	out.Channels = [NumStepChannels]Ledger{}
+	out.Channels = [yields.NumAllChannels]Ledger{}
 	out.Supernovae = [2]int{}
 	out.SuggestedStep = 0
 	out.MassLoss = resizeFloats(out.MassLoss, len(stars))
@@ -253,18 +232,18 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 		// the radiant energy, and radiation pressure gets the rest.
 		light := rel.RadiantEnergy * formed * erg
 		ion := base
-		ion.Channel = PhotoionizationChannel
+		ion.Channel = yields.Photoionization
 		if !s.cfg.SkipPhotoionization {
 			ion.Photons = rel.IonizingPhotons * formed
 			ion.Energy = math.Min(ion.Photons*s.cfg.PhotoheatingPerPhoton*erg, light)
 		}
 		rad := base
-		rad.Channel = RadiationChannel
+		rad.Channel = yields.RadiationPressure
 		if !s.cfg.SkipRadiation {
 			rad.Energy = math.Max(light-ion.Energy, 0)
 		}
-		s.sources[RadiationChannel] = append(s.sources[RadiationChannel], rad)
-		s.sources[PhotoionizationChannel] = append(s.sources[PhotoionizationChannel], ion)
+		s.sources[yields.RadiationPressure] = append(s.sources[yields.RadiationPressure], rad)
+		s.sources[yields.Photoionization] = append(s.sources[yields.Photoionization], ion)
 	}
 	if maxExpected > s.cfg.MaxSupernovaePerStep {
 		out.SuggestedStep = dt * s.cfg.MaxSupernovaePerStep / maxExpected
@@ -282,8 +261,8 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 			// Nothing of a failed step is deposited, not even the
 			// channels already coupled.
 			out.Records, out.Problems = out.Records[:0], out.Problems[:0]
-			out.Ledger, out.Channels = Ledger{}, [NumStepChannels]Ledger{}
-			return fmt.Errorf("step: channel %s: %w", ChannelName(yields.Channel(c)), err)
+			out.Ledger, out.Channels = Ledger{}, [yields.NumAllChannels]Ledger{}
+			return fmt.Errorf("step: channel %s: %w", yields.Channel(c).String(), err)
 		}
 		if s.cfg.DelayedCooling && yields.Channel(c).Discrete() {
 			s.delayCooling(gas, c, o.Records)

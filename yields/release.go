@@ -50,15 +50,30 @@ const (
 	MassiveWinds
 	// AGBWinds is the mass loss of intermediate- and low-mass stars on the asymptotic giant branch.
 	AGBWinds
-	// NumChannels is the number of channels.
+	// NumChannels is the number of channels that eject mass (the ejecta
+	// of Release.Channels).
 	NumChannels
 )
 
-var channelNames = [NumChannels]string{"core-collapse", "type-ia", "massive-winds", "agb-winds"}
+// The channels of a population's light, which eject no mass: the feedback
+// step couples them as channels of their own.
+const (
+	// RadiationPressure is the population's light (Release.RadiantEnergy),
+	// coupled as radiation pressure.
+	RadiationPressure = NumChannels + iota
+	// Photoionization is the population's hydrogen-ionizing photons
+	// (Release.IonizingPhotons), coupled as photoheating.
+	Photoionization
+	// NumAllChannels counts every channel, the ejecta channels first.
+	NumAllChannels
+)
+
+var channelNames = [NumAllChannels]string{"core-collapse", "type-ia", "massive-winds", "agb-winds",
+	"radiation-pressure", "photoionization"}
 
 // String is the channel's name.
 func (c Channel) String() string {
-	if c < 0 || c >= NumChannels {
+	if c < 0 || c >= NumAllChannels {
 		return "unknown-channel"
 	}
 	return channelNames[c]
