@@ -142,6 +142,7 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 	}
 	out.Records = out.Records[:0]
 	out.Problems = out.Problems[:0]
+	out.Undeposited = out.Undeposited[:0]
 	out.Ledger = Ledger{}
 	if err := gas.Validate(); err != nil {
 		return fmt.Errorf("couple: %w", err)
@@ -150,6 +151,10 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 		return errorf(ErrInvalidArgument, "couple: nil neighbor finder")
 	}
 	n := len(sources)
+	if cap(out.Undeposited) < n {
+		out.Undeposited = make([]Quantities, n)
+	}
+	out.Undeposited = out.Undeposited[:n]
 	if cap(c.slots) < n {
 		c.slots = make([]slot, n)
 		c.order = make([]int, n)
@@ -179,7 +184,7 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 	cs.gas, cs.finder, cs.sources, cs.out, cs.metals = nil, nil, nil, nil, Column{}
 	if err != nil {
 		// A worker panicked: nothing of the call is deposited.
-		out.Records = out.Records[:0]
+		out.Records, out.Undeposited = out.Records[:0], out.Undeposited[:0]
 		return fmt.Errorf("couple: %w", err)
 	}
 
@@ -194,6 +199,7 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 		} else {
 			out.Records = append(out.Records, c.workers[sl.worker].records[sl.start:sl.start+sl.count]...)
 		}
+		out.Undeposited[i] = sl.ledger.Undeposited
 		if sl.err != nil {
 			out.Problems = append(out.Problems, Problem{StarID: sources[i].Star.ID, Index: i, Channel: sources[i].Channel, Err: sl.err})
 		}

@@ -338,6 +338,7 @@ func TestNoNeighborsReturnsRelease(t *testing.T) {
 	require.NoError(t, out.Ledger.Balanced(1e-12))
 	assert.Equal(t, out.Ledger.In, out.Ledger.Undeposited, "the whole release comes back")
 	assert.Len(t, out.Problems, 1)
+	assert.Equal(t, []feedback.Quantities{out.Ledger.In}, out.Undeposited, "and is the source's own")
 }
 
 func TestApplyRejectsBadRecordsWithoutWriting(t *testing.T) {

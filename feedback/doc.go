@@ -1,6 +1,19 @@
 // Package feedback couples what star particles release into the gas around
 // them, conserving mass, every species, momentum and energy to round-off.
 //
+// # Two layers
+//
+// A Coupler couples prepared releases: one Source per star (what it
+// releases this call, for one channel), through one Scheme, into Records
+// and a Ledger (Config, Couple, Output). A Stepper is built on Couplers:
+// given star particles (StarParticle: a Star with its formed mass) and a
+// yields.Model, it works out each star's releases over a step, draws the
+// supernovae, searches each star's neighbors once and couples every
+// channel (supernovae, winds, radiation pressure, photoionization) through
+// a Coupler of its own, using only what Couple returns (StepConfig, Step,
+// StepOutput). Use a Coupler when the host computes releases itself, a
+// Stepper when ejecta should.
+//
 // # Data
 //
 // Gas is a view on the host's gas, column by column: each Column has a base

@@ -38,6 +38,11 @@ type Output struct {
 	Ledger Ledger
 	// Problems lists the sources returned undeposited.
 	Problems []Problem
+	// Undeposited holds, for each source in input order, what of its
+	// release was returned to the caller: all of it for a Problem, the
+	// energy a scheme could not place (stochastic heating that drew no
+	// neighbor), or nothing. Ledger.Undeposited is their sum.
+	Undeposited []Quantities
 }
 
 // Err is nil when every source of the call was deposited; otherwise an

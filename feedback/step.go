@@ -279,7 +279,7 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 	clear(out.MassLoss)
 	for c := range s.couplers {
 		for i := range stars {
-			back := &s.couplers[c].slots[i].ledger.Undeposited
+			back := &s.outs[c].Undeposited[i]
 			out.MassLoss[i] += s.sources[c][i].Mass - back.Mass
 			if yields.Channel(c).Discrete() {
 				v := stars[i].Vel
