@@ -41,6 +41,10 @@ func Schemes() []SchemeSpec {
 			Scheme: feedback.TerminalMomentum{Fit: feedback.KimOstriker2015}, SkipIsotropyCorrection: true},
 		{Name: "kinetic-uncorrected", Description: "kinetic, kernel-volume weights without the isotropy correction",
 			Scheme: feedback.Kinetic{}, SkipIsotropyCorrection: true},
+		{Name: "kicked-winds", Description: "decoupled kicked wind (Springel & Hernquist 2003): eta = 2 per supernova mass at 484 km/s, rest as heat",
+			Scheme: feedback.DefaultKickedWinds()},
+		{Name: "kicked-winds-momentum-driven", Description: "kicked wind with momentum-driven scalings (Oppenheimer & Davé 2006) from the local gas dispersion",
+			Scheme: feedback.DefaultMomentumDrivenWinds()},
 	}
 }
 

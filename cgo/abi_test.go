@@ -105,6 +105,7 @@ func supernovae(n int, box float64, seed uint64) []starABI {
 		s.EjectedMass = 10
 		s.SpeciesMass[yields.Metals] = 2
 		s.Energy, s.Events = foe, 1
+		s.Duration = 0.01 // code time (about 10 kyr): the light schemes need a step length
 	}
 	return stars
 }

@@ -10,14 +10,18 @@ import (
 
 // Touched is the timestep help for one gas element that received records:
 // the largest speed change and the largest heating per unit mass any single
-// record gave it, and the union of the records' flags.
+// record gave it, the union of the records' flags, the latest hold times,
+// and the summed far-ultraviolet field (G0) of the stars that lit it, for
+// hosts with their own cooling or chemistry.
 type Touched struct {
-	Index            int
-	ID               int64
-	MaxKick          float64
-	MaxHeating       float64
-	Flags            Flags
-	HoldCoolingUntil float64
+	Index               int
+	ID                  int64
+	MaxKick             float64
+	MaxHeating          float64
+	Flags               Flags
+	HoldCoolingUntil    float64
+	HydroDecoupledUntil float64
+	FUVField            float64
 }
 
 // ApplyReport summarises an Apply call.
@@ -154,7 +158,8 @@ func (ap *Applier) Apply(gas *Gas, records []Record, touched []Touched) ([]Touch
 }
 
 func (r *Record) check() error {
-	vals := [...]float64{r.Mass, r.Momentum[0], r.Momentum[1], r.Momentum[2], r.Energy, r.Heat, r.Radiated, r.Kick, r.Heating, r.HoldCoolingUntil}
+	vals := [...]float64{r.Mass, r.Momentum[0], r.Momentum[1], r.Momentum[2], r.Energy, r.Heat, r.Radiated, r.Kick, r.Heating,
+		r.HoldCoolingUntil, r.HydroDecoupledUntil, r.FUVField}
 	for _, v := range vals {
 		if !finite(v) {
 			return errorf(ErrBadValue, "non-finite value")
@@ -162,6 +167,9 @@ func (r *Record) check() error {
 	}
 	if r.Mass < 0 || r.Radiated < 0 {
 		return errorf(ErrBadValue, "negative mass %g or radiated energy %g", r.Mass, r.Radiated)
+	}
+	if r.FUVField < 0 {
+		return fmt.Errorf("negative far-ultraviolet field %g", r.FUVField)
 	}
 	for sp, m := range r.Species {
 		if !finite(m) || m < 0 || m > r.Mass*(1+1e-12) {
@@ -197,6 +205,8 @@ func applyElement(gas *Gas, records []Record, keys []applyKey, rep *ApplyReport)
 		t.MaxHeating = math.Max(t.MaxHeating, r.Heating)
 		t.Flags |= r.Flags
 		t.HoldCoolingUntil = math.Max(t.HoldCoolingUntil, r.HoldCoolingUntil)
+		t.HydroDecoupledUntil = math.Max(t.HydroDecoupledUntil, r.HydroDecoupledUntil)
+		t.FUVField += r.FUVField
 		rep.Deposited.Mass += r.Mass
 		for a := 0; a < 3; a++ {
 			rep.Deposited.Momentum[a] += r.Momentum[a]

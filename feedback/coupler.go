@@ -260,7 +260,7 @@ func (c *Coupler) runItem(w, i int) {
 func depositsFinite(deps []Deposit) bool {
 	for j := range deps {
 		d := &deps[j]
-		sum := d.Mass + d.Energy + d.Heat + d.Radiated + d.HoldCoolingUntil +
+		sum := d.Mass + d.Energy + d.Heat + d.Radiated + d.HoldCoolingUntil + d.HydroDecoupledUntil + d.FUVField +
 			d.Momentum[0] + d.Momentum[1] + d.Momentum[2]
 		for _, m := range d.Species {
 			sum += m
@@ -268,7 +268,8 @@ func depositsFinite(deps []Deposit) bool {
 		// A sum of finite numbers can overflow to Inf: check it, and fall
 		// back to one by one only then.
 		if !finite(sum) {
-			vals := [...]float64{d.Mass, d.Energy, d.Heat, d.Radiated, d.HoldCoolingUntil, d.Momentum[0], d.Momentum[1], d.Momentum[2]}
+			vals := [...]float64{d.Mass, d.Energy, d.Heat, d.Radiated, d.HoldCoolingUntil, d.HydroDecoupledUntil, d.FUVField,
+				d.Momentum[0], d.Momentum[1], d.Momentum[2]}
 			for _, v := range vals {
 				if !finite(v) {
 					return false
@@ -415,11 +416,16 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 			l.Deposited.Momentum[a] += d.Momentum[a]
 		}
 		l.Deposited.Energy += d.Energy
-		mt := nb.Mass[j] + d.Mass
-		var dv [3]float64
+		m := nb.Mass[j]
+		mt := m + d.Mass
+		var dv, kick [3]float64
 		for a := 0; a < 3; a++ {
 			dv[a] = (d.Momentum[a] - d.Mass*nb.Vel[j][a]) / mt
+			kick[a] = d.Momentum[a] - d.Mass*vs[a]
 		}
+		w := nb.RelVel[j]
+		l.KickEnergy += (2*m*dot(w, kick) + dot(kick, kick) - m*d.Mass*dot(w, w)) / (2 * mt)
+		l.Heat += d.Heat
 		*recs = append(*recs, Record{
 			GasIndex: nb.Index[j], GasID: nb.ID[j], StarID: src.Star.ID, Channel: src.Channel,
 			Deposit: *d, Kick: norm(dv), Heating: d.Heat / mt,

@@ -77,6 +77,14 @@ type Ledger struct {
 	// the call plus what went in: the scale against which energy round-off
 	// is judged.
 	EnergyScale float64
+	// KickEnergy and Heat split the deposited energy as the schemes did,
+	// summed over sources: KickEnergy is the kinetic energy the deposits
+	// gave the gas in each star's frame (what the kicks used of the
+	// release), Heat the thermal energy. When every star's kicks sum to zero
+	// in its frame (as in every conserving scheme), Deposited.Energy is
+	// their sum plus the ejecta's lab-frame kinetic energy; what a release
+	// did not use is in Radiated or Undeposited.
+	KickEnergy, Heat float64
 }
 
 // Add accumulates another ledger into l.
@@ -94,6 +102,8 @@ func (l *Ledger) Add(o *Ledger) {
 	l.RadialMomentum += o.RadialMomentum
 	l.MomentumScale += o.MomentumScale
 	l.EnergyScale += o.EnergyScale
+	l.KickEnergy += o.KickEnergy
+	l.Heat += o.Heat
 }
 
 // Imbalance is In - Deposited - Radiated - Undeposited: zero to round-off

@@ -9,7 +9,8 @@ type SchemeOptions struct {
 	// KineticFraction is the kinetic scheme's fraction (0 means the
 	// Sedov–Taylor 0.28).
 	KineticFraction float64
-	// Seed and TemperatureJump set stochastic heating (0 means 10^7.5 K).
+	// Seed keys the draws of stochastic heating and kicked winds;
+	// TemperatureJump sets stochastic heating (0 means 10^7.5 K).
 	Seed            uint64
 	TemperatureJump float64
 }
@@ -19,6 +20,7 @@ func SchemeNames() []string {
 	return []string{
 		ThermalDump{}.Name(), Kinetic{}.Name(), TerminalMomentum{}.Name(), StochasticHeating{}.Name(),
 		Winds{}.Name(), RadiationPressure{}.Name(), Photoionization{}.Name(),
+		PhotoelectricHeating{}.Name(), DefaultKickedWinds().Name(), DefaultMomentumDrivenWinds().Name(),
 	}
 }
 
@@ -39,6 +41,16 @@ func SchemeByName(name string, o SchemeOptions) (Scheme, error) {
 		return RadiationPressure{}, nil
 	case Photoionization{}.Name():
 		return Photoionization{}, nil
+	case PhotoelectricHeating{}.Name():
+		return DefaultPhotoelectricHeating(), nil
+	case DefaultKickedWinds().Name():
+		s := DefaultKickedWinds()
+		s.Seed = o.Seed
+		return s, nil
+	case DefaultMomentumDrivenWinds().Name():
+		s := DefaultMomentumDrivenWinds()
+		s.Seed = o.Seed
+		return s, nil
 	}
 	return nil, errorf(ErrUnknownName, "scheme %q: want one of %s", name, strings.Join(SchemeNames(), ", "))
 }

@@ -25,6 +25,10 @@ const (
 	FlagHoldCooling
 	// FlagStochastic: the element was chosen by stochastic heating.
 	FlagStochastic
+	// FlagHydroDecoupled: the element was launched into a kicked wind; the
+	// host should leave it out of hydrodynamic forces (pressure and
+	// viscosity, both ways) until the time given in the record.
+	FlagHydroDecoupled
 )
 
 // Deposit is what one star gives one neighbor, in code units: mass, the
@@ -48,6 +52,14 @@ type Deposit struct {
 	// HoldCoolingUntil is, with FlagHoldCooling, how long (code time from the
 	// step start) the host should hold the element's cooling.
 	HoldCoolingUntil float64
+	// HydroDecoupledUntil is, with FlagHydroDecoupled, how long (code time
+	// from the step start) the host should keep the element out of
+	// hydrodynamic forces.
+	HydroDecoupledUntil float64
+	// FUVField is the far-ultraviolet field (6-13.6 eV) this star's light
+	// makes at the element, in Habing units G0 (PhotoelectricHeating; zero
+	// for other schemes). Fields of several stars add.
+	FUVField float64
 }
 
 // Scheme decides how one star's release is split over its neighbors:

@@ -36,12 +36,22 @@ type Source struct {
 	Duration float64
 	// Step is the host's step index, which keys counter-based draws.
 	Step uint64
+	// NewStellarMass is the stellar mass (code mass) the star formed that
+	// this release launches a wind for, used by KickedWinds loaded per
+	// formed mass; zero otherwise.
+	NewStellarMass float64
+	// Dispersion is the velocity dispersion (code velocity, one
+	// dimensional) of the star's galaxy, when the host knows it, used by
+	// momentum-driven KickedWinds; zero lets the scheme measure it from
+	// the gas around the star.
+	Dispersion float64
 }
 
 // Validate checks that the release is finite, non-negative and that no
 // species outweighs the ejected mass.
 func (s *Source) Validate() error {
-	vals := [...]float64{s.Mass, s.Energy, s.Events, s.Photons, s.Duration, s.Star.Mass, s.Star.Metallicity, s.Star.Age}
+	vals := [...]float64{s.Mass, s.Energy, s.Events, s.Photons, s.Duration, s.NewStellarMass, s.Dispersion,
+		s.Star.Mass, s.Star.Metallicity, s.Star.Age}
 	for _, v := range vals {
 		if !finite(v) {
 			return errorf(ErrBadValue, "star %d: non-finite release or star field", s.Star.ID)
@@ -57,6 +67,9 @@ func (s *Source) Validate() error {
 	}
 	if s.Mass < 0 || s.Energy < 0 || s.Events < 0 || s.Photons < 0 || s.Duration < 0 {
 		return errorf(ErrBadValue, "star %d: negative release (mass %g, energy %g, events %g, photons %g, duration %g)", s.Star.ID, s.Mass, s.Energy, s.Events, s.Photons, s.Duration)
+	}
+	if s.NewStellarMass < 0 || s.Dispersion < 0 {
+		return errorf(ErrBadValue, "star %d: negative new stellar mass %g or velocity dispersion %g", s.Star.ID, s.NewStellarMass, s.Dispersion)
 	}
 	for sp, m := range s.Species {
 		if !finite(m) || m < 0 {

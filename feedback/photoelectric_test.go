@@ -1,0 +1,226 @@
+package feedback_test
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
+	"github.com/ejecta-dev/ejecta/neighbor"
+	"github.com/ejecta-dev/ejecta/yields/units"
+)
+
+// fuvSource is a star at pos emitting lum erg/s of far-ultraviolet light
+// for one Myr, in code units u.
+func fuvSource(id int64, pos [3]float64, lum float64, u units.CodeUnits) feedback.Source {
+	return feedback.Source{Star: feedback.Star{ID: id, Pos: pos, Metallicity: 0.0134},
+		Energy: lum * units.Megayear / u.EnergyErg(), Duration: units.Megayear / u.TimeS()}
+}
+
+func TestFUVFieldInverseSquareInClearGas(t *testing.T) {
+	// Without dust the field falls as the inverse square of the distance:
+	// G0 = L / (4 pi r^2) / 1.6e-3 erg s^-1 cm^-2 (Habing 1968, from
+	// memory). Arithmetic: 1e39 erg/s at 10 pc (IAU 2015 B2 parsec) gives
+	// 1e39 / (4 pi (3.0857e19 cm)^2) = 8.358e-2 erg s^-1 cm^-2, G0 = 52.2.
+	assert.InEpsilon(t, 52.24, feedback.FUVFieldAt(1e39, 10*units.Parsec, 0), 1e-3)
+	assert.InEpsilon(t, 52.24/4, feedback.FUVFieldAt(1e39, 20*units.Parsec, 0), 1e-3)
+
+	u := pcMsunKms()
+	g := latticeGas(9, 2, 1, u) // 2 pc spacing: element radius 1.24 pc
+	star := [3]float64{0.3, -0.2, 0.1}
+	const lum = 1e39
+	clear := feedback.DefaultPhotoelectricHeating()
+	clear.FUVOpacity = 0
+	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: clear, Neighbors: 200}, []feedback.Source{fuvSource(1, star, lum, u)})
+	require.Len(t, out.Records, 200)
+	checked := 0
+	for _, r := range out.Records {
+		i := r.GasIndex
+		d := math.Sqrt(math.Pow(g.Pos[0][i]-star[0], 2) + math.Pow(g.Pos[1][i]-star[1], 2) + math.Pow(g.Pos[2][i]-star[2], 2))
+		if d < 1.5 {
+			continue // inside the element's own radius: taken at that radius
+		}
+		want := lum / (4 * math.Pi * math.Pow(d*units.Parsec, 2)) / 1.6e-3
+		assert.InEpsilon(t, want, r.FUVField, 1e-12, "element at %g pc", d)
+		checked++
+	}
+	assert.Greater(t, checked, 150)
+	// Clear gas absorbs nothing, so nothing heats and all light leaves.
+	assert.Zero(t, out.Ledger.Heat)
+	assert.InEpsilon(t, out.Ledger.In.Energy, out.Ledger.Radiated, 1e-12)
+}
+
+func TestFUVFieldIsAttenuatedByTheDustInFront(t *testing.T) {
+	// With dust, each element sees exp(-tau) of the clear field, tau the
+	// column of the gas nearer the star (plus half its own) times the
+	// opacity scaled with metallicity.
+	u := pcMsunKms()
+	g := latticeGas(7, 2, 30, u)
+	star := [3]float64{0.3, -0.2, 0.1}
+	s := feedback.DefaultPhotoelectricHeating()
+	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: s, Neighbors: 100}, []feedback.Source{fuvSource(1, star, 1e39, u)})
+	prev := math.Inf(1)
+	for _, r := range out.Records { // nearest first
+		i := r.GasIndex
+		d := math.Sqrt(math.Pow(g.Pos[0][i]-star[0], 2) + math.Pow(g.Pos[1][i]-star[1], 2) + math.Pow(g.Pos[2][i]-star[2], 2))
+		clearField := feedback.FUVFieldAt(1e39, math.Max(d, 1.24)*units.Parsec, 0)
+		ratio := r.FUVField / clearField
+		assert.Less(t, ratio, 1.0)
+		assert.LessOrEqual(t, ratio, prev*(1+1e-12), "attenuation grows outwards")
+		prev = ratio
+	}
+	assert.Less(t, prev, 0.5, "30 cm^-3 of solar-metallicity gas is optically thick to FUV over ~7 pc")
+}
+
+func TestPhotoelectricEfficiencyFit(t *testing.T) {
+	// Bakes & Tielens 1994 (ApJ 427, 822), their fit eq. 43 (from memory):
+	// eps = 4.87e-2 / (1 + 4e-3 x^0.73) + 3.65e-2 (T/1e4)^0.7 / (1 + 2e-4 x).
+	cases := []struct {
+		name    string
+		x, T    float64
+		want    float64
+		rel     float64
+		comment string
+	}{
+		// Uncharged grains (x -> 0) in cold gas: the fit's ceiling, 4.87%.
+		{"uncharged-cold", 0, 0, 4.87e-2, 1e-12, "first coefficient"},
+		// At 1e4 K the recombination term adds its full 3.65%.
+		{"uncharged-warm", 0, 1e4, 4.87e-2 + 3.65e-2, 1e-12, "sum of coefficients"},
+		// The charging term halves where 4e-3 x^0.73 = 1, x = 250^(1/0.73)
+		// = 1925 (the form eps = 0.049 / (1 + (x/1925)^0.73) + ... often
+		// quoted).
+		{"half-charged", math.Pow(250, 1/0.73), 0, 4.87e-2 / 2, 1e-12, "x = 1925"},
+		{"half-charged-rounded", 1925, 0, 4.87e-2 / 2, 1e-3, "x = 1925"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			assert.InEpsilon(t, c.want, feedback.PhotoelectricEfficiency(c.x, c.T), c.rel, c.comment)
+		})
+	}
+	// Cold neutral medium (G0 = 1.7, T = 80 K, n_e = 0.03 cm^-3, so x ~ 500):
+	// heating efficiencies of 3-5% (Bakes & Tielens 1994, and the
+	// diffuse-cloud values built on them; from memory).
+	cnm := feedback.PhotoelectricEfficiency(1.7*math.Sqrt(80)/0.03, 80)
+	assert.Greater(t, cnm, 0.03)
+	assert.Less(t, cnm, 0.05)
+	// Strongly charged grains near bright stars (x ~ 1e6) heat at well
+	// under a percent (their efficiency curve falls by about two decades
+	// between x = 1e2 and 1e6; from memory).
+	strong := feedback.PhotoelectricEfficiency(1e6, 100)
+	assert.Greater(t, strong, 1e-4)
+	assert.Less(t, strong, 3e-3)
+	// Falls monotonically as grains charge.
+	prev := math.Inf(1)
+	for lx := -1.0; lx <= 7; lx += 0.25 {
+		e := feedback.PhotoelectricEfficiency(math.Pow(10, lx), 300)
+		assert.Less(t, e, prev)
+		prev = e
+	}
+}
+
+func TestPhotoelectricHeatingRateOpticallyThin(t *testing.T) {
+	// In optically thin gas each element gets 1e-24 eps G0 erg/s per
+	// hydrogen nucleus over the step (Bakes & Tielens 1994), eps at its own
+	// x = G0 sqrt(T) / n_e, scaled with Z / Z_sun.
+	u := pcMsunKms()
+	g := latticeGas(7, 2, 1, u)
+	star := [3]float64{0.3, -0.2, 0.1}
+	s := feedback.PhotoelectricHeating{FUVOpacity: 1, ElectronFraction: 1e-2} // tau << 1, cap far away
+	const lum = 1e39
+	before := append([]float64(nil), g.Energy...)
+	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: s, Neighbors: 100}, []feedback.Source{fuvSource(1, star, lum, u)})
+	for _, r := range out.Records {
+		i := r.GasIndex
+		T := 2.0 / 3 * before[i] * u.SpecificEnergy() * (1.4 / 1.1) * units.ProtonMass / units.Boltzmann
+		nH := g.Density[i] * u.DensityGCm3() / (1.4 * units.ProtonMass)
+		eps := feedback.PhotoelectricEfficiency(r.FUVField*math.Sqrt(T)/(1e-2*nH), T) * g.Fractions[0][i] / 0.0134
+		hydrogen := g.Mass[i] * u.MassG / (1.4 * units.ProtonMass)
+		want := 1e-24 * eps * r.FUVField * hydrogen * units.Megayear / u.EnergyErg()
+		assert.InEpsilon(t, want, r.Heat, 1e-9)
+	}
+	assert.Greater(t, out.Ledger.Heat, 0.0)
+}
+
+func TestPhotoelectricHeatNeverExceedsAbsorbedLight(t *testing.T) {
+	u := pcMsunKms()
+	star := [3]float64{0.3, -0.2, 0.1}
+	const lum = 1e39
+	for _, kappa := range []float64{1e-6, 1e-2, 1, 1000, 1e6} {
+		g := latticeGas(7, 2, 10, u)
+		s := feedback.PhotoelectricHeating{FUVOpacity: kappa, ElectronFraction: 1}
+		out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: s, Neighbors: 150}, []feedback.Source{fuvSource(1, star, lum, u)})
+		// The light the shells absorb: E (1 - exp(-tau)), with tau summed
+		// over the neighbors as the scheme documents.
+		tau := 0.0
+		size := math.Cbrt(3 * g.Mass[0] / (4 * math.Pi * g.Density[0]))
+		for _, r := range out.Records {
+			i := r.GasIndex
+			d := math.Sqrt(math.Pow(g.Pos[0][i]-star[0], 2) + math.Pow(g.Pos[1][i]-star[1], 2) + math.Pow(g.Pos[2][i]-star[2], 2))
+			d = math.Max(d, size) * units.Parsec
+			tau += kappa * g.Fractions[0][i] / 0.0134 * g.Mass[i] * units.SolarMass / (4 * math.Pi * d * d)
+		}
+		e := out.Ledger.In.Energy
+		absorbed := -math.Expm1(-tau) * e
+		assert.LessOrEqual(t, out.Ledger.Heat, absorbed*(1+1e-12), "kappa %g", kappa)
+		if kappa == 1e-6 {
+			// So little dust that every element is capped at what it absorbs.
+			assert.InEpsilon(t, absorbed, out.Ledger.Heat, 1e-9)
+		}
+		assert.InEpsilon(t, e-out.Ledger.Heat, out.Ledger.Radiated, 1e-12, "the rest is radiated")
+	}
+}
+
+func TestPhotoelectricHeatingPassesTheHarness(t *testing.T) {
+	u := feedbacktest.Units()
+	light := func(s feedback.Star) feedback.Source {
+		// A young cluster's far-ultraviolet light, 3e5 Lsun for 0.1 Myr.
+		return feedback.Source{Star: s, Energy: 3e5 * units.SolarLuminosity * 0.1 * units.Megayear / u.EnergyErg(),
+			Duration: 0.1 * units.Megayear / u.TimeS()}
+	}
+	feedbacktest.Check(t, feedback.DefaultPhotoelectricHeating(), feedbacktest.Options{Release: light, Seeds: []uint64{1, 2}})
+	// With the supernova's ejecta too (mass shared as in a thermal dump).
+	withEjecta := func(s feedback.Star) feedback.Source {
+		src := feedbacktest.SupernovaRelease(s)
+		src.Duration = 0.1 * units.Megayear / u.TimeS()
+		return src
+	}
+	feedbacktest.Check(t, feedback.DefaultPhotoelectricHeating(), feedbacktest.Options{Release: withEjecta, Seeds: []uint64{3}})
+}
+
+func TestPhotoelectricHeatingRefusesBadInput(t *testing.T) {
+	u := pcMsunKms()
+	g := latticeGas(3, 2, 1, u)
+	cases := []struct {
+		name   string
+		scheme feedback.PhotoelectricHeating
+		src    feedback.Source
+	}{
+		{"no-duration", feedback.DefaultPhotoelectricHeating(), feedback.Source{Star: feedback.Star{ID: 1}, Energy: 1}},
+		{"zero-electrons", feedback.PhotoelectricHeating{FUVOpacity: 1000}, fuvSource(1, [3]float64{}, 1e39, u)},
+		{"negative-opacity", feedback.PhotoelectricHeating{FUVOpacity: -1, ElectronFraction: 1e-4}, fuvSource(1, [3]float64{}, 1e39, u)},
+		{"nan-opacity", feedback.PhotoelectricHeating{FUVOpacity: math.NaN(), ElectronFraction: 1e-4}, fuvSource(1, [3]float64{}, 1e39, u)},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			cp, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: c.scheme, Neighbors: 8})
+			require.NoError(t, err)
+			f := treeOf(t, g)
+			var out feedback.Output
+			require.NoError(t, cp.Couple(g.View(), f, []feedback.Source{c.src}, &out))
+			require.Len(t, out.Problems, 1)
+			assert.Empty(t, out.Records)
+			assert.Equal(t, out.Ledger.In.Energy, out.Ledger.Undeposited.Energy, "returned whole")
+		})
+	}
+}
+
+// treeOf builds the default finder on the gas.
+func treeOf(t *testing.T, g *feedbacktest.GasArrays) neighbor.Finder {
+	t.Helper()
+	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
+	require.NoError(t, err)
+	return f
+}
