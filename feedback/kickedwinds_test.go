@@ -9,6 +9,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
@@ -16,7 +17,7 @@ import (
 // windGas is a ball of n elements of unequal masses (50-150 Msun) at
 // 1 cm^-3, with random velocities of rms vel km/s per axis, in pc, Msun,
 // km/s.
-func windGas(seed uint64, n int, vel float64) *feedbacktest.GasArrays {
+func windGas(seed uint64, n int, vel float64) *audit.GasArrays {
 	u := pcMsunKms()
 	g := uniformGas(seed, n, 100, 1, u)
 	rng := rand.New(rand.NewPCG(seed, 77))
@@ -40,7 +41,7 @@ func windStar(id int64, pos, v [3]float64, formed float64) feedback.Source {
 
 // kickedMass sums, per star, the gas mass of the elements flagged as
 // launched into the wind.
-func kickedMass(g *feedbacktest.GasArrays, recs []feedback.Record) map[int64]float64 {
+func kickedMass(g *audit.GasArrays, recs []feedback.Record) map[int64]float64 {
 	out := map[int64]float64{}
 	for _, r := range recs {
 		if r.Flags&feedback.FlagHydroDecoupled != 0 {
@@ -323,7 +324,7 @@ func TestKickedWindsBitwiseForAnyWorkerCount(t *testing.T) {
 		srcs = append(srcs, windStar(int64(1000+3*i), [3]float64{base.Pos[0][j], base.Pos[1][j] + 0.3, base.Pos[2][j]},
 			[3]float64{10, 0, -5}, 200))
 	}
-	var ref *feedbacktest.GasArrays
+	var ref *audit.GasArrays
 	for _, workers := range []int{1, 2, 3, 8} {
 		g := base.Clone()
 		s := feedback.DefaultKickedWinds()
@@ -369,7 +370,7 @@ func TestKickedWindsRefusesBadSettings(t *testing.T) {
 }
 
 // coupleOnceNoApply couples and checks the ledger without applying.
-func coupleOnceNoApply(t *testing.T, g *feedbacktest.GasArrays, cfg feedback.Config, srcs []feedback.Source) (*feedback.Output, error) {
+func coupleOnceNoApply(t *testing.T, g *audit.GasArrays, cfg feedback.Config, srcs []feedback.Source) (*feedback.Output, error) {
 	t.Helper()
 	c, err := feedback.NewCoupler(cfg)
 	require.NoError(t, err)

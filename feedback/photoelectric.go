@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 
+	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
@@ -31,9 +32,11 @@ const (
 	// photoelectricRate is the coefficient of the heating rate per
 	// hydrogen nucleus, 1e-24 eps G0 erg/s (Bakes & Tielens 1994).
 	photoelectricRate = 1e-24
-	// heliumPerHydrogen is the helium abundance by number behind
-	// MassPerHydrogen (1 + 4 * 0.1 = 1.4; common practice).
-	heliumPerHydrogen = 0.1
+	// heliumPerHydrogen is n_He / n_H for the solar mass fractions behind
+	// MassPerHydrogen (ElectronsPerHydrogen - 1): neutral atomic gas has
+	// 1 + n_He / n_H particles per hydrogen atom, a mean molecular weight
+	// of MassPerHydrogen / (1 + n_He / n_H), about 1.25.
+	heliumPerHydrogen = yields.SolarHelium / yields.SolarHydrogen * hydrogenAtomicWeight / heliumAtomicWeight
 )
 
 // PhotoelectricEfficiency is the fraction of the far-ultraviolet energy
@@ -140,7 +143,7 @@ func (s PhotoelectricHeating) Deposit(nb *Neighborhood, out []Deposit) (float64,
 		dt := src.Duration * u.TimeS()
 		eErg := e * ergs
 		lum := eErg / dt
-		// (3/2) k T = u mu m_p for neutral gas, mu = MassPerHydrogen / (1 + He/H).
+		// (3/2) k T = u mu m_p for neutral atomic gas.
 		tempPerEnergy := 2.0 / 3 * u.SpecificEnergy() * MassPerHydrogen / (1 + heliumPerHydrogen) * units.ProtonMass / units.Boltzmann
 		tau := 0.0
 		for j := range heat {

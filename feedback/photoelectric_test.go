@@ -8,6 +8,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
 	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields/units"
@@ -134,10 +135,13 @@ func TestPhotoelectricHeatingRateOpticallyThin(t *testing.T) {
 	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: s, Neighbors: 100}, []feedback.Source{fuvSource(1, star, lum, u)})
 	for _, r := range out.Records {
 		i := r.GasIndex
-		T := 2.0 / 3 * before[i] * u.SpecificEnergy() * (1.4 / 1.1) * units.ProtonMass / units.Boltzmann
-		nH := g.Density[i] * u.DensityGCm3() / (1.4 * units.ProtonMass)
-		eps := feedback.PhotoelectricEfficiency(r.FUVField*math.Sqrt(T)/(1e-2*nH), T) * g.Fractions[0][i] / 0.0134
-		hydrogen := g.Mass[i] * u.MassG / (1.4 * units.ProtonMass)
+		// Neutral atomic gas: mu = (1/X) / (1 + n_He/n_H), both from the
+		// library's solar mass fractions.
+		mu := feedback.MassPerHydrogen / feedback.ElectronsPerHydrogen
+		T := 2.0 / 3 * before[i] * u.SpecificEnergy() * mu * units.ProtonMass / units.Boltzmann
+		nH := g.Density[i] * u.DensityGCm3() / (feedback.MassPerHydrogen * units.ProtonMass)
+		eps := feedback.PhotoelectricEfficiency(r.FUVField*math.Sqrt(T)/(1e-2*nH), T) * g.Fractions[0][i] / feedback.SolarMetallicity
+		hydrogen := g.Mass[i] * u.MassG / (feedback.MassPerHydrogen * units.ProtonMass)
 		want := 1e-24 * eps * r.FUVField * hydrogen * units.Megayear / u.EnergyErg()
 		assert.InEpsilon(t, want, r.Heat, 1e-9)
 	}
@@ -160,7 +164,7 @@ func TestPhotoelectricHeatNeverExceedsAbsorbedLight(t *testing.T) {
 			i := r.GasIndex
 			d := math.Sqrt(math.Pow(g.Pos[0][i]-star[0], 2) + math.Pow(g.Pos[1][i]-star[1], 2) + math.Pow(g.Pos[2][i]-star[2], 2))
 			d = math.Max(d, size) * units.Parsec
-			tau += kappa * g.Fractions[0][i] / 0.0134 * g.Mass[i] * units.SolarMass / (4 * math.Pi * d * d)
+			tau += kappa * g.Fractions[0][i] / feedback.SolarMetallicity * g.Mass[i] * units.SolarMass / (4 * math.Pi * d * d)
 		}
 		e := out.Ledger.In.Energy
 		absorbed := -math.Expm1(-tau) * e
@@ -218,7 +222,7 @@ func TestPhotoelectricHeatingRefusesBadInput(t *testing.T) {
 }
 
 // treeOf builds the default finder on the gas.
-func treeOf(t *testing.T, g *feedbacktest.GasArrays) neighbor.Finder {
+func treeOf(t *testing.T, g *audit.GasArrays) neighbor.Finder {
 	t.Helper()
 	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 	require.NoError(t, err)
