@@ -1,7 +1,6 @@
 package feedback
 
 import (
-	"fmt"
 	"math"
 
 	"github.com/ejecta-dev/ejecta/yields"
@@ -215,40 +214,40 @@ func (s KickedWinds) Validate() error {
 	switch s.Scaling {
 	case ConstantWind:
 		if bad(s.Loading) || bad(s.Speed) {
-			return fmt.Errorf("kicked winds: loading %g and speed %g km/s must be finite and non-negative", s.Loading, s.Speed)
+			return errorf(ErrInvalidArgument, "kicked winds: loading %g and speed %g km/s must be finite and non-negative", s.Loading, s.Speed)
 		}
 	case MomentumDrivenWind:
 		if bad(s.ReferenceDispersion) || !(s.LuminosityFactor >= 1) || math.IsInf(s.LuminosityFactor, 0) ||
 			!(s.DispersionFloor > 0) || math.IsInf(s.DispersionFloor, 0) {
-			return fmt.Errorf("kicked winds: reference dispersion %g km/s must be non-negative, luminosity factor %g at least 1, dispersion floor %g km/s positive (all finite)",
+			return errorf(ErrInvalidArgument, "kicked winds: reference dispersion %g km/s must be non-negative, luminosity factor %g at least 1, dispersion floor %g km/s positive (all finite)",
 				s.ReferenceDispersion, s.LuminosityFactor, s.DispersionFloor)
 		}
 	default:
-		return fmt.Errorf("kicked winds: unknown scaling %d", s.Scaling)
+		return errorf(ErrInvalidArgument, "kicked winds: unknown scaling %d", s.Scaling)
 	}
 	switch s.Direction {
 	case KickRadial, KickAlongRotationAxis:
 	case KickAlongAxis:
 		if a := dot(s.Axis, s.Axis); !(a > 0) || math.IsInf(a, 0) {
-			return fmt.Errorf("kicked winds: axis %v must be finite and non-zero", s.Axis)
+			return errorf(ErrInvalidArgument, "kicked winds: axis %v must be finite and non-zero", s.Axis)
 		}
 	default:
-		return fmt.Errorf("kicked winds: unknown kick direction %d", s.Direction)
+		return errorf(ErrInvalidArgument, "kicked winds: unknown kick direction %d", s.Direction)
 	}
 	switch s.Basis {
 	case LoadPerSupernovaEnergy:
 		if !(s.SupernovaEnergyPerMass > 0) || math.IsInf(s.SupernovaEnergyPerMass, 0) {
-			return fmt.Errorf("kicked winds: supernova energy per mass %g erg/Msun must be finite and positive", s.SupernovaEnergyPerMass)
+			return errorf(ErrInvalidArgument, "kicked winds: supernova energy per mass %g erg/Msun must be finite and positive", s.SupernovaEnergyPerMass)
 		}
 	case LoadPerFormedMass:
 	default:
-		return fmt.Errorf("kicked winds: unknown wind mass basis %d", s.Basis)
+		return errorf(ErrInvalidArgument, "kicked winds: unknown wind mass basis %d", s.Basis)
 	}
 	if s.Leftover != LeftoverHeats && s.Leftover != LeftoverReturned {
-		return fmt.Errorf("kicked winds: unknown leftover rule %d", s.Leftover)
+		return errorf(ErrInvalidArgument, "kicked winds: unknown leftover rule %d", s.Leftover)
 	}
 	if bad(s.DecouplingLength) {
-		return fmt.Errorf("kicked winds: decoupling length %g kpc must be finite and non-negative", s.DecouplingLength)
+		return errorf(ErrInvalidArgument, "kicked winds: decoupling length %g kpc must be finite and non-negative", s.DecouplingLength)
 	}
 	return nil
 }

@@ -362,7 +362,7 @@ func TestKickedWindsRefusesBadSettings(t *testing.T) {
 		t.Run(name, func(t *testing.T) {
 			s := feedback.DefaultKickedWinds()
 			spoil(&s)
-			assert.Error(t, s.Validate())
+			assert.ErrorIs(t, s.Validate(), feedback.ErrInvalidArgument)
 		})
 	}
 	assert.NoError(t, feedback.DefaultKickedWinds().Validate())

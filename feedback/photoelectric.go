@@ -1,7 +1,6 @@
 package feedback
 
 import (
-	"fmt"
 	"math"
 
 	"github.com/ejecta-dev/ejecta/yields"
@@ -116,10 +115,10 @@ func (PhotoelectricHeating) Name() string { return "photoelectric-heating" }
 // Validate checks the opacity and the electron fraction.
 func (s PhotoelectricHeating) Validate() error {
 	if !(s.FUVOpacity >= 0) || math.IsInf(s.FUVOpacity, 0) {
-		return fmt.Errorf("photoelectric heating: opacity %g cm^2/g must be finite and non-negative", s.FUVOpacity)
+		return errorf(ErrInvalidArgument, "photoelectric heating: opacity %g cm^2/g must be finite and non-negative", s.FUVOpacity)
 	}
 	if !(s.ElectronFraction > 0) || math.IsInf(s.ElectronFraction, 0) {
-		return fmt.Errorf("photoelectric heating: electron fraction %g must be finite and positive", s.ElectronFraction)
+		return errorf(ErrInvalidArgument, "photoelectric heating: electron fraction %g must be finite and positive", s.ElectronFraction)
 	}
 	return nil
 }
@@ -133,7 +132,7 @@ func (s PhotoelectricHeating) Deposit(nb *Neighborhood, out []Deposit) (float64,
 	u := nb.Units
 	e := src.Energy
 	if e > 0 && !(src.Duration > 0) {
-		return 0, fmt.Errorf("photoelectric heating: far-ultraviolet energy %g over a step of length %g: the luminosity needs a positive duration", e, src.Duration)
+		return 0, errorf(ErrBadValue, "photoelectric heating: far-ultraviolet energy %g over a step of length %g: the luminosity needs a positive duration", e, src.Duration)
 	}
 	g0 := nb.scratch // free: no kicks, so CoupleRadial does not tilt
 	heat := nb.EnergyWeight

@@ -201,11 +201,12 @@ func TestPhotoelectricHeatingRefusesBadInput(t *testing.T) {
 		name   string
 		scheme feedback.PhotoelectricHeating
 		src    feedback.Source
+		kind   error
 	}{
-		{"no-duration", feedback.DefaultPhotoelectricHeating(), feedback.Source{Star: feedback.Star{ID: 1}, Energy: 1}},
-		{"zero-electrons", feedback.PhotoelectricHeating{FUVOpacity: 1000}, fuvSource(1, [3]float64{}, 1e39, u)},
-		{"negative-opacity", feedback.PhotoelectricHeating{FUVOpacity: -1, ElectronFraction: 1e-4}, fuvSource(1, [3]float64{}, 1e39, u)},
-		{"nan-opacity", feedback.PhotoelectricHeating{FUVOpacity: math.NaN(), ElectronFraction: 1e-4}, fuvSource(1, [3]float64{}, 1e39, u)},
+		{"no-duration", feedback.DefaultPhotoelectricHeating(), feedback.Source{Star: feedback.Star{ID: 1}, Energy: 1}, feedback.ErrBadValue},
+		{"zero-electrons", feedback.PhotoelectricHeating{FUVOpacity: 1000}, fuvSource(1, [3]float64{}, 1e39, u), feedback.ErrInvalidArgument},
+		{"negative-opacity", feedback.PhotoelectricHeating{FUVOpacity: -1, ElectronFraction: 1e-4}, fuvSource(1, [3]float64{}, 1e39, u), feedback.ErrInvalidArgument},
+		{"nan-opacity", feedback.PhotoelectricHeating{FUVOpacity: math.NaN(), ElectronFraction: 1e-4}, fuvSource(1, [3]float64{}, 1e39, u), feedback.ErrInvalidArgument},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -215,6 +216,7 @@ func TestPhotoelectricHeatingRefusesBadInput(t *testing.T) {
 			var out feedback.Output
 			require.NoError(t, cp.Couple(g.View(), f, []feedback.Source{c.src}, &out))
 			require.Len(t, out.Problems, 1)
+			assert.ErrorIs(t, out.Problems[0].Err, c.kind)
 			assert.Empty(t, out.Records)
 			assert.Equal(t, out.Ledger.In.Energy, out.Ledger.Undeposited.Energy, "returned whole")
 		})
