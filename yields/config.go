@@ -9,37 +9,6 @@ import (
 // delay-time distribution (13.8 Gyr; Planck 2018 gives 13.79 Gyr, from memory).
 const HubbleTime = 13800.0
 
-// SpeciesSet selects which single elements a release reports. Total metals,
-// hydrogen and helium are always reported, so that H + He + metals is the
-// ejected mass; an element outside the set is reported as zero (its mass
-// still counts in the metals). The zero value selects every species.
-type SpeciesSet uint32
-
-// AllSpecies selects every tracked species.
-func AllSpecies() SpeciesSet { return SpeciesSet(1<<NumSpecies - 1) }
-
-// SpeciesOf selects the given species plus metals, hydrogen and helium.
-func SpeciesOf(s ...Species) SpeciesSet {
-	set := SpeciesSet(1<<Metals | 1<<Hydrogen | 1<<Helium)
-	for _, x := range s {
-		if x >= 0 && x < NumSpecies {
-			set |= 1 << x
-		}
-	}
-	return set
-}
-
-// Has reports whether the set reports species s. The zero set has every species.
-func (set SpeciesSet) Has(s Species) bool {
-	if s < 0 || s >= NumSpecies {
-		return false
-	}
-	if set == 0 || s == Metals || s == Hydrogen || s == Helium {
-		return true
-	}
-	return set&(1<<s) != 0
-}
-
 // RemnantConfig is the compact remnant a massive star (at least
 // MassiveWindConfig.MinMass) leaves: a neutron star below BlackHoleMinMass, a
 // black hole of fixed mass above. It is a deliberately simple model.
@@ -164,7 +133,10 @@ type Config struct {
 	TypeIa       TypeIaConfig
 	MassiveWinds MassiveWindConfig
 	AGB          AGBConfig
-	// Species selects the reported elements; zero means all.
+	// Species is the set of elements releases report, in its order (see
+	// SpeciesSet); the zero value is DefaultSpeciesSet. The built-in
+	// population has yields for the default set's elements only: a set
+	// naming another element is refused (use a Table for others).
 	Species SpeciesSet
 }
 

@@ -12,11 +12,16 @@
 //
 // A Model answers Release(age0, age1, z): everything one Msun formed releases
 // between two ages, channel by channel (CoreCollapse, TypeIa, MassiveWinds,
-// AGBWinds), with per-species masses (total metals, H, He, C, N, O, Ne, Mg,
-// Si, S, Ca, Fe; H + He + metals is the ejected mass), plus the radiant
-// energy, the ionizing photons and the far-ultraviolet (6–13.6 eV) energy
-// emitted. Luminosity, IonizingRate and FarUltravioletLuminosity give the
-// same light as rates at one age. Two models are provided:
+// AGBWinds), with per-species masses, plus the radiant energy, the ionizing
+// photons and the far-ultraviolet (6–13.6 eV) energy emitted. Luminosity,
+// IonizingRate and FarUltravioletLuminosity give the same light as rates at
+// one age. Which species are tracked is the user's choice (SpeciesSet): the
+// total metals always, and up to MaxElements elements named by chemical
+// symbol (ParseSpeciesSet("H,He,O,Fe")), in the user's order. The default,
+// DefaultSpeciesSet, is H, He, C, N, O, Ne, Mg, Si, S, Ca and Fe, the
+// elements that dominate the radiative cooling of gas as chosen by Wiersma,
+// Schaye & Smith (2009, MNRAS 393, 99). With H and He tracked, H + He +
+// metals is the ejected mass. Two models are provided:
 //
 //   - Population, the built-in simple stellar population, configured by
 //     Config (DefaultConfig documents every default and its source): an IMF
@@ -61,7 +66,9 @@
 //	<prefix>_mass[Msun/Msun]       ejected mass
 //	<prefix>_energy[erg/Msun]      explosion energy, or wind kinetic energy
 //	<prefix>_z[Msun/Msun]          metals; _h and _he likewise (required)
-//	<prefix>_c[Msun/Msun]          optional elements: _c _n _o _ne _mg _si _s _ca _fe
+//	<prefix>_fe[Msun/Msun]         optional: any element, by its symbol in lower case
+//	                               (_c _n _o _fe, or _ni _ba ...; at most MaxElements
+//	                               elements in all, H and He included)
 //
 // Every value is a finite number >= 0. Rows come in blocks of one
 // metallicity, blocks in rising metallicity, each block with the same
@@ -71,7 +78,9 @@
 // not exceed the metals. Absent optional elements read as zero. The two
 // far-ultraviolet columns come together or not at all; a table without them
 // has no far-ultraviolet light (Table.HasFarUltraviolet reports which). Any defect
-// is reported with its line number.
+// is reported with its line number. A table carrying only default-set
+// elements releases in the default set's layout; one carrying others in the
+// layout of what it carries (Table.Carried); Table.WithSpecies chooses.
 //
 // Between grid points a table is interpolated linearly in log age and log
 // metallicity. Before the first age cumulative values grow linearly from

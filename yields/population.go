@@ -93,6 +93,12 @@ func NewPopulation(cfg Config) (*Population, error) {
 	if err := cfg.validate(); err != nil {
 		return nil, fmt.Errorf("yields: population config: %w", err)
 	}
+	for _, e := range cfg.Species.Elements() {
+		if !DefaultSpeciesSet().Has(e) {
+			return nil, fmt.Errorf("yields: population config: no built-in yields for %s (the built-in population has %s; bring other elements in a rates table): %w",
+				e.Symbol(), DefaultSpeciesSet(), ErrSpecies)
+		}
+	}
 	imf, err := NewIMF(cfg.IMF, cfg.LightestStarMass, cfg.HeaviestStarMass)
 	if err != nil {
 		return nil, fmt.Errorf("yields: population config: %w", err)
@@ -138,6 +144,10 @@ func (p *Population) Config() Config { return p.cfg }
 
 // IMF is the population's initial mass function.
 func (p *Population) IMF() IMF { return p.imf }
+
+// Species is the set of elements the population's releases report, in
+// their slot order.
+func (p *Population) Species() SpeciesSet { return p.cfg.Species }
 
 // remnant is the remnant mass of a massive star of initial mass m.
 func (p *Population) remnant(m float64) float64 {
@@ -599,13 +609,10 @@ func (p *Population) Release(age0, age1, z float64) (Release, error) {
 		ag.WindSpeed = p.cfg.AGB.Speed
 	}
 
-	if sel := p.cfg.Species; sel != 0 {
+	if set := p.cfg.Species; !set.IsDefault() {
+		// Computed in the default layout; restated in the chosen one.
 		for ch := range r.Channels {
-			for s := Carbon; s < NumSpecies; s++ {
-				if !sel.Has(s) {
-					r.Channels[ch].Species[s] = 0
-				}
-			}
+			r.Channels[ch].Species, _, _ = Restate(&r.Channels[ch].Species, DefaultSpeciesSet(), set)
 		}
 	}
 	r.RadiantEnergy = (c1.light.lum - c0.light.lum) * units.SolarLuminosity * units.Megayear

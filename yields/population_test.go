@@ -395,29 +395,41 @@ func TestPopulationConfigRejected(t *testing.T) {
 	}
 }
 
+// A chosen species set lays releases out in its own order: slot 1 holds
+// its first element, and so on; the metals and the masses are those of the
+// default set's release, and unused slots are zero.
 func TestSpeciesSelection(t *testing.T) {
 	cfg := DefaultConfig()
-	cfg.Species = SpeciesOf(Oxygen, Iron)
+	var err error
+	cfg.Species, err = ParseSpeciesSet("Fe, O")
+	require.NoError(t, err)
 	p, err := NewPopulation(cfg)
 	require.NoError(t, err)
+	assert.Equal(t, "Fe,O", p.Species().String())
+	assert.Equal(t, cfg.Species, ModelSpecies(p))
 	full := newTestPopulation(t, Kroupa)
 	a, err := p.Release(0, 100, 0.0134)
 	require.NoError(t, err)
 	b, err := full.Release(0, 100, 0.0134)
 	require.NoError(t, err)
 	for ch := range a.Channels {
-		for s := Species(0); s < NumSpecies; s++ {
-			if cfg.Species.Has(s) {
-				assert.Equal(t, b.Channels[ch].Species[s], a.Channels[ch].Species[s])
-			} else {
-				assert.Zero(t, a.Channels[ch].Species[s])
-			}
+		got, want := a.Channels[ch].Species, b.Channels[ch].Species
+		assert.Equal(t, want[Metals], got[Metals])
+		assert.Equal(t, want[Iron], got[1])
+		assert.Equal(t, want[Oxygen], got[2])
+		for s := 3; s < int(NumSpecies); s++ {
+			assert.Zero(t, got[s])
 		}
 		assert.Equal(t, b.Channels[ch].Mass, a.Channels[ch].Mass)
+		assert.Equal(t, b.Channels[ch].Energy, a.Channels[ch].Energy)
 	}
-	assert.True(t, SpeciesSet(0).Has(Calcium))
-	assert.False(t, cfg.Species.Has(Calcium))
-	assert.False(t, cfg.Species.Has(NumSpecies))
+
+	// The built-in population has yields for the default elements only.
+	cfg.Species, err = ParseSpeciesSet("O,Ni")
+	require.NoError(t, err)
+	_, err = NewPopulation(cfg)
+	require.ErrorIs(t, err, ErrSpecies)
+	assert.Contains(t, err.Error(), "no built-in yields for Ni")
 }
 
 func TestReleaseDoesNotAllocate(t *testing.T) {

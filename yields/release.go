@@ -1,10 +1,13 @@
 package yields
 
-// Species indexes the tracked chemical species. Metals is the total metal
-// mass (everything heavier than helium); the others are single elements.
+// Species is a slot of Abundances: Metals (slot 0) is the total metal mass
+// (everything heavier than helium); the other slots hold single elements,
+// in the order of the species set the holder is laid out by (SpeciesSet;
+// the user's choice). The named slots Hydrogen ... Iron are those of
+// DefaultSpeciesSet.
 type Species int
 
-// The tracked species, in the order of Abundances.
+// The slots of the default species set, in the order of Abundances.
 const (
 	Metals Species = iota
 	Hydrogen
@@ -18,14 +21,16 @@ const (
 	Sulfur
 	Calcium
 	Iron
-	// NumSpecies is the number of tracked species.
+	// NumSpecies is the number of slots of Abundances: the total metals
+	// plus MaxElements elements.
 	NumSpecies
 )
 
 var speciesSymbols = [NumSpecies]string{"Z", "H", "He", "C", "N", "O", "Ne", "Mg", "Si", "S", "Ca", "Fe"}
 
-// Symbol is the short name of the species: "Z" for total metals, else the
-// chemical symbol.
+// Symbol is the short name of the slot in the default species set: "Z" for
+// total metals, else the chemical symbol. For another set use
+// SpeciesSet.Symbol.
 func (s Species) Symbol() string {
 	if s < 0 || s >= NumSpecies {
 		return "?"
@@ -90,9 +95,10 @@ type Ejecta struct {
 	Events float64
 	// Mass is the ejected mass in Msun per Msun formed.
 	Mass float64
-	// Species is the ejected mass of each species in Msun per Msun formed;
-	// Species[Metals] is the total metal mass. Species[Hydrogen] +
-	// Species[Helium] + Species[Metals] equals Mass.
+	// Species is the ejected mass of each species in Msun per Msun formed,
+	// laid out by the model's species set; Species[Metals] is the total
+	// metal mass. With hydrogen and helium in the set, their masses plus
+	// the metals equal Mass.
 	Species Abundances
 	// Energy is the energy released in erg per Msun formed: explosion energy
 	// for supernovae, the kinetic energy 1/2 M v^2 of the wind for winds.
@@ -154,6 +160,7 @@ func (r Release) Total() Ejecta {
 // table. Ages are in Myr, metallicity is a metal mass fraction.
 type Model interface {
 	// Release returns what one Msun formed releases between age0 and age1.
+	// Species amounts are laid out by ModelSpecies(m).
 	Release(age0, age1, z float64) (Release, error)
 	// Luminosity is the bolometric luminosity at an age, in Lsun per Msun formed.
 	Luminosity(age, z float64) (float64, error)
@@ -163,4 +170,20 @@ type Model interface {
 	// FarUltravioletLuminosity is the luminosity between 6 and 13.6 eV at an
 	// age, in Lsun per Msun formed.
 	FarUltravioletLuminosity(age, z float64) (float64, error)
+}
+
+// SpeciesModel is a Model that says which species set its releases are
+// laid out by. Population and Table are.
+type SpeciesModel interface {
+	Model
+	Species() SpeciesSet
+}
+
+// ModelSpecies is the species set of m's releases: m.Species() for a
+// SpeciesModel, DefaultSpeciesSet otherwise.
+func ModelSpecies(m Model) SpeciesSet {
+	if sm, ok := m.(SpeciesModel); ok {
+		return sm.Species()
+	}
+	return DefaultSpeciesSet()
 }

@@ -7,6 +7,7 @@ import (
 	"io"
 	"math"
 	"os"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -31,7 +32,7 @@ const (
 	chEvents = iota
 	chMass
 	chEnergy
-	chSpecies      // NumSpecies species columns follow
+	chSpecies      // NumSpecies species slots follow, laid out by the table's species set
 	colsPerChannel = chSpecies + int(NumSpecies)
 )
 
@@ -59,8 +60,9 @@ const (
 	tableZUnit        = "mass_fraction"
 )
 
-// tableColumns lists every column the format knows.
-func tableColumns() []tableColumn {
+// tableColumns lists every column of a table whose species set is set
+// (hydrogen and helium in slots 1 and 2, see tableSpecies).
+func tableColumns(set SpeciesSet) []tableColumn {
 	cols := []tableColumn{
 		{tableAgeName, tableAgeUnit, -1, false, true},
 		{tableZName, tableZUnit, -2, false, true},
@@ -78,9 +80,9 @@ func tableColumns() []tableColumn {
 			tableColumn{pre + "_mass", "Msun/Msun", base + chMass, true, true},
 			tableColumn{pre + "_energy", "erg/Msun", base + chEnergy, true, true},
 		)
-		for s := Species(0); s < NumSpecies; s++ {
+		for s := Species(0); int(s) < set.Slots(); s++ {
 			cols = append(cols, tableColumn{
-				pre + "_" + strings.ToLower(s.Symbol()), "Msun/Msun", base + chSpecies + int(s), true,
+				pre + "_" + strings.ToLower(set.Symbol(s)), "Msun/Msun", base + chSpecies + int(s), true,
 				s == Metals || s == Hydrogen || s == Helium,
 			})
 		}
@@ -88,8 +90,57 @@ func tableColumns() []tableColumn {
 	return cols
 }
 
+// tableSpecies is the species set of a table carrying the given elements:
+// hydrogen and helium (always carried) in slots 1 and 2, as in the default
+// set, then the others in the order given.
+func tableSpecies(elems []Element) (SpeciesSet, error) {
+	all := []Element{ElementHydrogen, ElementHelium}
+	for _, e := range elems {
+		if !slices.Contains(all, e) {
+			all = append(all, e)
+		}
+	}
+	return NewSpeciesSet(all...)
+}
+
+// subsetOfDefault reports whether every element of set is in the default
+// set.
+func subsetOfDefault(set SpeciesSet) bool {
+	for _, e := range set.Elements() {
+		if !DefaultSpeciesSet().Has(e) {
+			return false
+		}
+	}
+	return true
+}
+
+// headerElements lists the elements named by per-channel species columns
+// of a header ("ccsn_fe[Msun/Msun]"), in order of first appearance.
+func headerElements(header []string) []Element {
+	var out []Element
+	for _, h := range header {
+		name, _, _ := strings.Cut(strings.TrimSpace(h), "[")
+		for _, pre := range tablePrefixes() {
+			sym, ok := strings.CutPrefix(name, pre+"_")
+			if !ok {
+				continue
+			}
+			if e, err := ParseElement(sym); err == nil && strings.ToLower(sym) == sym && !slices.Contains(out, e) {
+				out = append(out, e)
+			}
+		}
+	}
+	return out
+}
+
 // Table is a Model read from a user's CSV table (see the package
-// documentation for the format): cumulative releases and instantaneous
+// documentation for the format). It may carry any elements (up to
+// MaxElements in all): Carried is hydrogen, helium and the elements it has
+// columns for, in the order they first appear. Its releases are laid out by
+// DefaultSpeciesSet when every element it carries is one of the default
+// set's (the others are released as zero), by Carried otherwise;
+// WithSpecies lays them out by any set of elements it carries. It holds
+// cumulative releases and instantaneous
 // light on a grid of ages and metallicities, interpolated linearly in log
 // age and log Z. Releases are differences of the interpolated cumulative
 // values, so they add up over consecutive intervals like Population's. Below
@@ -103,6 +154,31 @@ type Table struct {
 	zs, logZs     []float64
 	data          []float64 // [iz][ia][numTableCols]
 	present       [numTableCols]bool
+	// own is the set the columns are laid out by; out the set releases
+	// are laid out by; fill says out may hold elements own lacks (zero).
+	own, out SpeciesSet
+	fill     bool
+}
+
+// Species is the species set the table's releases are laid out by.
+func (t *Table) Species() SpeciesSet { return t.out }
+
+// Carried is the set of the elements the table has columns for: hydrogen,
+// helium and the others in the order of the header.
+func (t *Table) Carried() SpeciesSet { return t.own }
+
+// WithSpecies returns the table with its releases laid out by set (the
+// user's choice of tracked species). Every element of set must be one the
+// table carries; otherwise the error wraps ErrSpecies and names it.
+func (t *Table) WithSpecies(set SpeciesSet) (*Table, error) {
+	for _, e := range set.Elements() {
+		if !t.own.Has(e) {
+			return nil, fmt.Errorf("yields: table has no columns for %s (it carries %s): %w", e.Symbol(), t.own, ErrSpecies)
+		}
+	}
+	c := *t
+	c.out, c.fill = set, false
+	return &c, nil
 }
 
 // Ages is the table's age grid in Myr (a copy).
@@ -148,11 +224,19 @@ func ReadTable(r io.Reader) (*Table, error) {
 		return nil, fmt.Errorf("yields: table header: %w", err)
 	}
 	headerLine, _ := cr.FieldPos(0)
+	own, err := tableSpecies(headerElements(header))
+	if err != nil {
+		return nil, lineError(headerLine, "species columns: %v", err)
+	}
+	columns := tableColumns(own)
 	known := map[string]tableColumn{}
-	for _, c := range tableColumns() {
+	for _, c := range columns {
 		known[c.name] = c
 	}
-	t := &Table{}
+	t := &Table{own: own, out: own}
+	if subsetOfDefault(own) {
+		t.out, t.fill = DefaultSpeciesSet(), true
+	}
 	colOf := make([]tableColumn, len(header)) // file column → known column
 	seen := map[string]bool{}
 	for i, h := range header {
@@ -178,7 +262,7 @@ func ReadTable(r io.Reader) (*Table, error) {
 			t.present[c.index] = true
 		}
 	}
-	for _, c := range tableColumns() {
+	for _, c := range columns {
 		if c.required && !seen[c.name] {
 			return nil, lineError(headerLine, "missing column %s[%s]", c.name, c.unit)
 		}
@@ -272,7 +356,7 @@ func ReadTable(r io.Reader) (*Table, error) {
 		}
 		if ia > 0 {
 			prev := &rows[i-1]
-			for _, c := range tableColumns() {
+			for _, c := range columns {
 				if c.cumulative && c.index >= 0 && rw.v[c.index] < prev.v[c.index] {
 					return nil, lineError(rw.line, "column %q falls from %v to %v: cumulative values cannot decrease (negative rate)", c.name, prev.v[c.index], rw.v[c.index])
 				}
@@ -380,6 +464,9 @@ func (t *Table) Release(age0, age1, z float64) (Release, error) {
 			}
 		}
 		e.Mass = e.Species[Hydrogen] + e.Species[Helium] + e.Species[Metals]
+		if t.out != t.own {
+			e.Species = restateFill(&e.Species, t.own, t.out)
+		}
 		if !ch.Discrete() && e.Mass > 0 {
 			e.WindSpeed = math.Sqrt(2*e.Energy/(e.Mass*units.SolarMass)) / units.Kilometre
 		}
@@ -426,7 +513,9 @@ func (t *Table) rate(col int, age, z float64) (float64, error) {
 type TableLayout struct {
 	// Ages in Myr (> 0, rising) and Metallicities (in (0, 1), rising).
 	Ages, Metallicities []float64
-	// Species selects the element columns written (zero: all).
+	// Species selects the element columns written; the zero value writes
+	// every element of the model's set. Hydrogen and helium are always
+	// written (the format requires them), so the model must carry them.
 	Species SpeciesSet
 	// Digits is the number of significant digits; 0 writes the shortest
 	// representation that reads back exactly.
@@ -445,16 +534,27 @@ func WriteTable(w io.Writer, m Model, layout TableLayout) error {
 	if t, ok := m.(*Table); ok && !t.HasFarUltraviolet() {
 		noFUV = true
 	}
+	ms := ModelSpecies(m)
+	chosen := layout.Species
+	if chosen.IsDefault() {
+		chosen = ms
+	}
+	wset, err := tableSpecies(chosen.Elements())
+	if err != nil {
+		return fmt.Errorf("yields: write table: %w", err)
+	}
+	for _, e := range wset.Elements() {
+		if !ms.Has(e) {
+			return fmt.Errorf("yields: write table: the model does not carry %s (it has %s): %w", e.Symbol(), ms, ErrSpecies)
+		}
+	}
 	var cols []tableColumn
-	for _, c := range tableColumns() {
+	for _, c := range tableColumns(wset) {
 		if noFUV && (c.index == colFUVLuminosity || c.index == colFUVEnergy) {
 			continue
 		}
 		if c.index >= colChannels {
 			off := (c.index - colChannels) % colsPerChannel
-			if off >= chSpecies && !layout.Species.Has(Species(off-chSpecies)) {
-				continue
-			}
 			if off == chEvents && !Channel((c.index-colChannels)/colsPerChannel).Discrete() {
 				continue
 			}
@@ -500,7 +600,8 @@ func WriteTable(w io.Writer, m Model, layout TableLayout) error {
 			for ch, e := range r.Channels {
 				b := colChannels + ch*colsPerChannel
 				v[b+chEvents], v[b+chMass], v[b+chEnergy] = e.Events, e.Mass, e.Energy
-				copy(v[b+chSpecies:b+colsPerChannel], e.Species[:])
+				sp := restateFill(&e.Species, ms, wset)
+				copy(v[b+chSpecies:b+colsPerChannel], sp[:])
 			}
 			for i, c := range cols {
 				switch c.index {
@@ -522,19 +623,4 @@ func WriteTable(w io.Writer, m Model, layout TableLayout) error {
 		return fmt.Errorf("yields: write table: %w", err)
 	}
 	return nil
-}
-
-// Carries reports whether the table has columns for species s (summed
-// over the channels that have any); total metals, hydrogen and helium are
-// always carried. A species it lacks is released as zero.
-func (t *Table) Carries(s Species) bool {
-	if s < 0 || s >= NumSpecies {
-		return false
-	}
-	for ch := 0; ch < int(NumChannels); ch++ {
-		if t.present[colChannels+ch*colsPerChannel+chSpecies+int(s)] {
-			return true
-		}
-	}
-	return false
 }

@@ -18,6 +18,14 @@ var update = flag.Bool("update", false, "rewrite testdata/yields/example_table.c
 
 const exampleTablePath = "../testdata/yields/example_table.csv"
 
+func mustSpecies(list string) SpeciesSet {
+	s, err := ParseSpeciesSet(list)
+	if err != nil {
+		panic(err)
+	}
+	return s
+}
+
 // exampleLayout is the grid of the shipped example table: 4 ages per decade
 // from 0.1 Myr to 13.8 Gyr, three metallicities, oxygen and iron.
 func exampleLayout() TableLayout {
@@ -29,7 +37,7 @@ func exampleLayout() TableLayout {
 	return TableLayout{
 		Ages:          ages,
 		Metallicities: []float64{0.001, 0.0134, 0.03},
-		Species:       SpeciesOf(Oxygen, Iron),
+		Species:       mustSpecies("O,Fe"),
 		Digits:        7,
 	}
 }
@@ -57,7 +65,7 @@ func TestTableRoundTrip(t *testing.T) {
 	p := newTestPopulation(t, Salpeter)
 	layout := exampleLayout()
 	layout.Digits = 0
-	layout.Species = 0
+	layout.Species = SpeciesSet{}
 	var buf bytes.Buffer
 	require.NoError(t, WriteTable(&buf, p, layout))
 	tab, err := ReadTable(&buf)

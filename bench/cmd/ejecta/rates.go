@@ -100,14 +100,14 @@ func runRates(args []string, stdout, stderr io.Writer) int {
 	}
 	var model yields.Model
 	label := ""
-	carries := func(yields.Species) bool { return true }
+	var carried yields.SpeciesSet
 	if *tablePath != "" {
 		t, err := yields.ReadTableFile(*tablePath)
 		if err != nil {
 			fmt.Fprintf(stderr, "ejecta rates: %v\n", err)
 			return 1
 		}
-		model, label, carries = t, "table:"+*tablePath, t.Carries
+		model, label, carried = t, "table:"+*tablePath, t.Carried()
 	} else {
 		form, err := yields.ParseIMFForm(*imfName)
 		if err != nil {
@@ -121,9 +121,9 @@ func runRates(args []string, stdout, stderr io.Writer) int {
 			fmt.Fprintf(stderr, "ejecta rates: %v\n", err)
 			return 1
 		}
-		model, label = p, form.String()
+		model, label, carried = p, form.String(), p.Species()
 	}
-	species, err := parseElements(*elements, carries)
+	species, err := parseElements(*elements, carried)
 	if err != nil {
 		fmt.Fprintf(stderr, "ejecta rates: -elements: %v\n", err)
 		return 2
@@ -150,54 +150,26 @@ func runRates(args []string, stdout, stderr io.Writer) int {
 	return 0
 }
 
-// parseElements reads the -elements list: element symbols (not "Z", the
-// total metals, which is always printed), each once, each one the model
-// carries; "all" is every element it carries.
-func parseElements(list string, carries func(yields.Species) bool) ([]yields.Species, error) {
-	if strings.TrimSpace(list) == "all" {
-		var out []yields.Species
-		for s := yields.Species(0); s < yields.NumSpecies; s++ {
-			if s != yields.Metals && carries(s) {
-				out = append(out, s)
-			}
-		}
-		return out, nil
+// parseElements reads the -elements list: chemical symbols (case
+// ignored; not "Z", the total metals, which are always printed), each once,
+// each one the model carries; "all" is every element it carries.
+func parseElements(list string, carried yields.SpeciesSet) ([]yields.Element, error) {
+	switch strings.TrimSpace(list) {
+	case "":
+		return nil, nil
+	case "all":
+		return carried.Elements(), nil
 	}
-	var out []yields.Species
-	seen := map[yields.Species]bool{}
-	for _, sym := range splitList(list) {
-		s, ok := speciesBySymbol(sym)
-		switch {
-		case !ok || s == yields.Metals:
-			return nil, fmt.Errorf("unknown element %q (the model tracks %s)", sym, knownElements(carries))
-		case seen[s]:
-			return nil, fmt.Errorf("element %s named twice", sym)
-		case !carries(s):
-			return nil, fmt.Errorf("the table has no columns for %s (it carries %s)", sym, knownElements(carries))
-		}
-		seen[s] = true
-		out = append(out, s)
+	set, err := yields.ParseSpeciesSet(list)
+	if err != nil {
+		return nil, err
 	}
-	return out, nil
-}
-
-func speciesBySymbol(sym string) (yields.Species, bool) {
-	for s := yields.Species(0); s < yields.NumSpecies; s++ {
-		if s.Symbol() == sym {
-			return s, true
+	for _, e := range set.Elements() {
+		if !carried.Has(e) {
+			return nil, fmt.Errorf("the model has no yields for %s (it carries %s)", e.Symbol(), carried)
 		}
 	}
-	return 0, false
-}
-
-func knownElements(carries func(yields.Species) bool) string {
-	var names []string
-	for s := yields.Species(0); s < yields.NumSpecies; s++ {
-		if s != yields.Metals && carries(s) {
-			names = append(names, s.Symbol())
-		}
-	}
-	return strings.Join(names, ", ")
+	return set.Elements(), nil
 }
 
 // coverageNotes says where the bins and metallicity fall outside what the
@@ -244,18 +216,25 @@ func rateEdges(perDecade int) []float64 {
 	return append(edges, yields.HubbleTime)
 }
 
-func buildRatesReport(m yields.Model, label string, z float64, perDecade int, elements []yields.Species) (ratesReport, error) {
+func buildRatesReport(m yields.Model, label string, z float64, perDecade int, elements []yields.Element) (ratesReport, error) {
 	rep := ratesReport{IMF: label, Metallicity: z, Elements: []string{}, Notes: []string{}}
-	for _, s := range elements {
-		rep.Elements = append(rep.Elements, s.Symbol())
+	layout := yields.ModelSpecies(m)
+	var slots []yields.Species
+	for _, e := range elements {
+		sp, ok := layout.Slot(e)
+		if !ok {
+			return rep, fmt.Errorf("the model's releases do not carry %s (they hold %s)", e.Symbol(), layout)
+		}
+		rep.Elements = append(rep.Elements, e.Symbol())
+		slots = append(slots, sp)
 	}
 	masses := func(t yields.Ejecta) map[string]float64 {
 		if len(elements) == 0 {
 			return nil
 		}
 		out := make(map[string]float64, len(elements))
-		for _, s := range elements {
-			out[s.Symbol()] = t.Species[s]
+		for i, e := range elements {
+			out[e.Symbol()] = t.Species[slots[i]]
 		}
 		return out
 	}

@@ -195,7 +195,7 @@ func TestRatesImfWithTableRefused(t *testing.T) {
 // -elements prints the ejected mass of each element asked for: per bin
 // they add up to the totals, and the elements are part of the metals.
 func TestRatesElements(t *testing.T) {
-	rep := runRatesJSON(t, "-elements", "O,Fe,C")
+	rep := runRatesJSON(t, "-elements", "O,fe,C")
 	assert.Equal(t, []string{"O", "Fe", "C"}, rep.Elements)
 	sum := map[string]float64{}
 	for _, b := range rep.Bins {
@@ -246,11 +246,12 @@ func TestRatesElementsErrors(t *testing.T) {
 		args []string
 		want string
 	}{
-		{[]string{"-elements", "O,Xx"}, `unknown element "Xx"`},
-		{[]string{"-elements", "Z"}, `unknown element "Z"`},
-		{[]string{"-elements", "o"}, `unknown element "o"`},
-		{[]string{"-elements", "O,Fe,O"}, "O named twice"},
-		{[]string{"-table", path, "-elements", "C"}, "the table has no columns for C (it carries H, He, O, Fe)"},
+		{[]string{"-elements", "O,Xx"}, `"Xx" is not a chemical symbol`},
+		{[]string{"-elements", "Z"}, "the total metals (Z) are always tracked"},
+		{[]string{"-elements", "O,Fe,o"}, "O named twice"},
+		{[]string{"-elements", "O,,Fe"}, "empty entry"},
+		{[]string{"-elements", "Ni"}, "the model has no yields for Ni (it carries H,He,C,N,O,Ne,Mg,Si,S,Ca,Fe)"},
+		{[]string{"-table", path, "-elements", "C"}, "the model has no yields for C (it carries H,He,O,Fe)"},
 	}
 	for _, tc := range tests {
 		code, stdout, stderr := runCLI(append([]string{"rates"}, tc.args...)...)
