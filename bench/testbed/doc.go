@@ -1,0 +1,45 @@
+// Package testbed is a three-dimensional hydrodynamics solver with
+// radiative cooling on which coupling schemes inject their supernova
+// through the library's real path, so that what a scheme delivers to the
+// gas once the remnant has evolved can be measured against the
+// one-dimensional reference of package remnant.
+//
+// # The solver
+//
+// Grid is a periodic cube of N^3 equal cells holding an ideal gas
+// (γ = 5/3 by default) with optically thin cooling. The Euler equations
+// are solved in finite volumes, dimensionally split in Strang's alternating
+// order (x y z, then z y x), each sweep a MUSCL–Hancock step of package
+// hydro: limited linear reconstruction of the primitive variables
+// (monotonized central by default), the Hancock half-step predictor and the
+// HLLC flux through every face, with the transverse velocities and the
+// metal mass fraction carried along. The flux through the face where a
+// periodic pencil closes on itself is computed once and used on both
+// sides, so mass, momentum and energy are conserved to round-off. After the
+// hydrodynamics, every cell's cooling is integrated exactly over the step
+// (cooling.Curve.Evolve, Townsend 2009), and the energy removed, net of
+// heating, is booked in the grid's Ledger: the total energy is the initial
+// energy plus what feedback injected minus what was radiated, to
+// round-off. The step is Courant × dx over the largest signal speed.
+//
+// # Parallel passes
+//
+// Every pass over the grid (a sweep along one axis, the cooling, a sum) is
+// cut into planes of N^2 cells; Workers goroutines take planes from a
+// shared counter. A sweep plane holds whole pencils, so no two workers
+// touch one cell, and every reduction is summed within a plane in cell
+// order, then over planes in plane order: the grid is bitwise the same for
+// any number of workers. Buffers are per worker and kept, so a step
+// allocates nothing.
+//
+// # Feedback through the host's path
+//
+// The grid's cells are the gas: Grid.Gas is a feedback.Gas whose columns
+// point at the solver's own arrays (mass, velocity, specific internal
+// energy, density, metal fraction, cell centres, IDs), so records are
+// applied in place. An Injector couples stars with a feedback.Coupler on a
+// neighbor.Tree of the cell centres and applies the records with
+// feedback.Apply; the grid then follows (Grid.AfterApply): densities from
+// the new masses, and a cell flagged feedback.FlagHoldCooling has its
+// cooling held until the time the record says.
+package testbed
