@@ -39,6 +39,13 @@ type Config struct {
 	// Box is the periodic box (zero for none), used for star-to-gas
 	// separations.
 	Box neighbor.Box
+	// Species is the species set the sources' species masses, the records
+	// and the gas species columns (Gas.Species slots) are laid out by: the
+	// user's choice of tracked elements; the zero value is
+	// yields.DefaultSpeciesSet. A gas column naming a slot the set does
+	// not use is refused; errors name species by the set's symbols. A
+	// Stepper fills it from its yields model.
+	Species yields.SpeciesSet
 }
 
 // DefaultNeighbors is the neighbor count used when Config.Neighbors is 0.
@@ -145,6 +152,9 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 	out.Undeposited = out.Undeposited[:0]
 	out.Ledger = Ledger{}
 	if err := gas.Validate(); err != nil {
+		return fmt.Errorf("couple: %w", err)
+	}
+	if err := checkGasSpecies(gas, c.cfg.Species); err != nil {
 		return fmt.Errorf("couple: %w", err)
 	}
 	if finder == nil {
@@ -303,7 +313,7 @@ func (c *Coupler) coupleOne(ws *workerScratch, gas *Gas, finder neighbor.Finder,
 
 // coupleInto does the work of coupleOne, appending records to *recs.
 func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder, src *Source, idx int, metals Column, hasMetals bool, recs *[]Record) (Ledger, error) {
-	if err := src.Validate(); err != nil {
+	if err := src.validateIn(c.cfg.Species); err != nil {
 		// A malformed release (NaN, negative) cannot be booked: nothing of
 		// it enters the ledger and the caller keeps it, told why.
 		return Ledger{Stars: 1, Skipped: 1}, err

@@ -11,10 +11,11 @@ import (
 // read; velocities, masses, specific internal energies and species mass
 // fractions are written by Apply.
 //
-// Species lists which species the host tracks, and SpeciesFractions holds one
-// mass-fraction column per entry, in the same order. A species the host does
-// not track is still released and booked in the ledger, but no column
-// receives it.
+// Species lists which species the host tracks, as slots of the species set
+// the releases are laid out by (Config.Species; the user's choice of
+// elements), and SpeciesFractions holds one mass-fraction column per entry,
+// in the same order. A species the host does not track is still released
+// and booked in the ledger, but no column receives it.
 type Gas struct {
 	// N is the number of gas elements.
 	N int
@@ -73,7 +74,7 @@ func (g *Gas) Validate() error {
 			return errorf(ErrInvalidArgument, "gas: species %d is not a known species", int(s))
 		}
 		if seen[s] {
-			return errorf(ErrInvalidArgument, "gas: species %s listed twice", s.Symbol())
+			return errorf(ErrInvalidArgument, "gas: species slot %d listed twice", s)
 		}
 		seen[s] = true
 		cols = append(cols, named{"species fraction", g.SpeciesFractions[i], true})
@@ -133,4 +134,16 @@ func (g *Gas) IDs(dst []int64) []int64 {
 		dst = append(dst, g.ID.Int(i))
 	}
 	return dst
+}
+
+// checkGasSpecies refuses gas species columns naming slots the species set
+// does not use.
+func checkGasSpecies(g *Gas, set yields.SpeciesSet) error {
+	for i, s := range g.Species {
+		if int(s) >= set.Slots() {
+			return errorf(ErrInvalidArgument, "gas: species column %d names slot %d, but the species set %s uses slots 0 (Z) to %d",
+				i, s, set, set.Slots()-1)
+		}
+	}
+	return nil
 }

@@ -128,7 +128,7 @@ func (l *Ledger) Balanced(rel float64) error {
 	}
 	for i := range imb.Species {
 		if s := scale(l.In.Species[i], l.Deposited.Species[i]); math.Abs(imb.Species[i]) > rel*s || math.IsNaN(imb.Species[i]) {
-			return errorf(ErrImbalance, "ledger: species %s imbalance %g of %g", yields.Species(i).Symbol(), imb.Species[i], s)
+			return errorf(ErrImbalance, "ledger: species slot %d imbalance %g of %g", i, imb.Species[i], s)
 		}
 	}
 	pscale := 0.0

@@ -48,8 +48,12 @@ type Source struct {
 }
 
 // Validate checks that the release is finite, non-negative and that no
-// species outweighs the ejected mass.
-func (s *Source) Validate() error {
+// species outweighs the ejected mass. Errors name species as in
+// yields.DefaultSpeciesSet; a Coupler names them by its Config.Species.
+func (s *Source) Validate() error { return s.validateIn(yields.SpeciesSet{}) }
+
+// validateIn is Validate with species named by set.
+func (s *Source) validateIn(set yields.SpeciesSet) error {
 	vals := [...]float64{s.Mass, s.Energy, s.Events, s.Photons, s.Duration, s.NewStellarMass, s.Dispersion,
 		s.Star.Mass, s.Star.Metallicity, s.Star.Age}
 	for _, v := range vals {
@@ -73,10 +77,10 @@ func (s *Source) Validate() error {
 	}
 	for sp, m := range s.Species {
 		if !finite(m) || m < 0 {
-			return errorf(ErrBadValue, "star %d: species %s mass %g is not finite and non-negative", s.Star.ID, yields.Species(sp).Symbol(), m)
+			return errorf(ErrBadValue, "star %d: species %s mass %g is not finite and non-negative", s.Star.ID, set.Symbol(yields.Species(sp)), m)
 		}
 		if m > s.Mass*(1+1e-12) {
-			return errorf(ErrBadValue, "star %d: species %s mass %g exceeds the ejected mass %g", s.Star.ID, yields.Species(sp).Symbol(), m, s.Mass)
+			return errorf(ErrBadValue, "star %d: species %s mass %g exceeds the ejected mass %g", s.Star.ID, set.Symbol(yields.Species(sp)), m, s.Mass)
 		}
 	}
 	return nil

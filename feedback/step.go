@@ -106,6 +106,16 @@ func NewStepper(cfg StepConfig) (*Stepper, error) {
 	if cfg.Model == nil {
 		return nil, errorf(ErrInvalidArgument, "stepper: no yields model")
 	}
+	// Releases, records and gas species columns are laid out by the
+	// model's species set.
+	ms := yields.ModelSpecies(cfg.Model)
+	switch {
+	case cfg.Coupling.Species.IsDefault():
+		cfg.Coupling.Species = ms
+	case cfg.Coupling.Species != ms:
+		return nil, errorf(ErrInvalidArgument, "stepper: coupling species set %s differs from the yields model's %s",
+			cfg.Coupling.Species, ms)
+	}
 	if cfg.MaxSupernovaePerStep == 0 {
 		cfg.MaxSupernovaePerStep = 10
 	}
