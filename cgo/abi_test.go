@@ -204,7 +204,7 @@ func TestGasDescriptorErrors(t *testing.T) {
 			assert.Equal(t, tc.want, entryBindGas(h, &g.desc))
 			assert.NotEmpty(t, lastError(h))
 			s := supernovae(1, 8, 1)
-			assert.Equal(t, codeNoGas, entryStep(h, &s[0], 1, modeOwnFinder, nil, nil), "a failed bind leaves no gas bound")
+			assert.Equal(t, codeNoGas, entryStep(h, &s[0], 1, 0, modeOwnFinder, nil, nil), "a failed bind leaves no gas bound")
 		})
 	}
 	assert.Equal(t, codeNullPointer, entryBindGas(h, nil))
@@ -230,16 +230,16 @@ func TestStepAndApplyErrors(t *testing.T) {
 		call func() int32
 		want int32
 	}{
-		{"null stars", func() int32 { return entryStep(h, nil, 1, modeOwnFinder, nil, nil) }, codeNullPointer},
-		{"zero stars", func() int32 { return entryStep(h, &good[0], 0, modeOwnFinder, nil, nil) }, codeInvalidArgument},
-		{"negative stars", func() int32 { return entryStep(h, &good[0], -2, modeOwnFinder, nil, nil) }, codeInvalidArgument},
-		{"unknown mode", func() int32 { return entryStep(h, &good[0], 1, 7, nil, nil) }, codeInvalidArgument},
-		{"NaN position", func() int32 { return entryStep(h, &nan[0], 1, modeOwnFinder, nil, nil) }, codeBadValue},
-		{"species above ejecta", func() int32 { return entryStep(h, &heavy[0], 1, modeOwnFinder, nil, nil) }, codeBadValue},
-		{"duplicate star IDs", func() int32 { return entryStep(h, &dup[0], 2, modeOwnFinder, nil, nil) }, codeInvalidArgument},
-		{"unknown channel", func() int32 { return entryStep(h, &badChannel[0], 1, modeOwnFinder, nil, nil) }, codeInvalidArgument},
-		{"rows without offsets", func() int32 { return entryStep(h, &good[0], 2, modeHostRows, nil, nil) }, codeNullPointer},
-		{"row naming one element twice", func() int32 { return entryStep(h, &good[0], 2, modeHostRows, &offs[0], &idx[0]) }, codeNeighbors},
+		{"null stars", func() int32 { return entryStep(h, nil, 1, 0, modeOwnFinder, nil, nil) }, codeNullPointer},
+		{"zero stars", func() int32 { return entryStep(h, &good[0], 0, 0, modeOwnFinder, nil, nil) }, codeInvalidArgument},
+		{"negative stars", func() int32 { return entryStep(h, &good[0], -2, 0, modeOwnFinder, nil, nil) }, codeInvalidArgument},
+		{"unknown mode", func() int32 { return entryStep(h, &good[0], 1, 0, 7, nil, nil) }, codeInvalidArgument},
+		{"NaN position", func() int32 { return entryStep(h, &nan[0], 1, 0, modeOwnFinder, nil, nil) }, codeBadValue},
+		{"species above ejecta", func() int32 { return entryStep(h, &heavy[0], 1, 0, modeOwnFinder, nil, nil) }, codeBadValue},
+		{"duplicate star IDs", func() int32 { return entryStep(h, &dup[0], 2, 0, modeOwnFinder, nil, nil) }, codeInvalidArgument},
+		{"unknown channel", func() int32 { return entryStep(h, &badChannel[0], 1, 0, modeOwnFinder, nil, nil) }, codeInvalidArgument},
+		{"rows without offsets", func() int32 { return entryStep(h, &good[0], 2, 0, modeHostRows, nil, nil) }, codeNullPointer},
+		{"row naming one element twice", func() int32 { return entryStep(h, &good[0], 2, 0, modeHostRows, &offs[0], &idx[0]) }, codeNeighbors},
 		{"apply before step", func() int32 { return entryApplyStepRecords(h, nil) }, codeInvalidArgument},
 		{"negative record count", func() int32 { return entryApplyRecords(h, nil, -1, locateByID, nil) }, codeInvalidArgument},
 		{"null records", func() int32 { return entryApplyRecords(h, nil, 3, locateByID, nil) }, codeNullPointer},
@@ -280,7 +280,7 @@ func TestUndepositedStarIsReported(t *testing.T) {
 	require.Equal(t, codeOK, entryBindGas(h, &g.desc))
 	stars := supernovae(2, 8, 5)
 	stars[1].Position = [3]float64{100, 100, 100}
-	require.Equal(t, codeUndeposited, entryStep(h, &stars[0], 2, modeOwnFinder, nil, nil))
+	require.Equal(t, codeUndeposited, entryStep(h, &stars[0], 2, 0, modeOwnFinder, nil, nil))
 	assert.Contains(t, lastError(h), "releases returned undeposited: 1 (of 2 stars)")
 	var l ledgerABI
 	require.Equal(t, codeOK, entryGetLedger(h, &l))
@@ -365,7 +365,7 @@ func TestRecordsFromAnotherRank(t *testing.T) {
 			require.Equal(t, codeOK, entryBindGas(a, &ga.desc))
 			require.Equal(t, codeOK, entryBindGas(b, &gb.desc))
 			stars := supernovae(20, 12, 8)
-			require.Equal(t, codeOK, entryStep(a, &stars[0], int64(len(stars)), modeOwnFinder, nil, nil), lastError(a))
+			require.Equal(t, codeOK, entryStep(a, &stars[0], int64(len(stars)), 0, modeOwnFinder, nil, nil), lastError(a))
 			var n, w int64
 			require.Equal(t, codeOK, entryRecordCount(a, &n))
 			recs := make([]recordABI, n)
@@ -491,7 +491,7 @@ func FuzzEntryPoints(f *testing.F) {
 		}
 		indices = append(indices, 0)
 		mode := int32(seed % 3)
-		code = entryStep(h, &stars[0], nStars, mode, &offsets[0], &indices[0])
+		code = entryStep(h, &stars[0], nStars, int64(seed%7)-1, mode, &offsets[0], &indices[0])
 		require.NotEqual(t, codeInternal, code, lastError(h))
 		if code == codeOK || code == codeUndeposited {
 			var l ledgerABI

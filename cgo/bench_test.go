@@ -77,8 +77,9 @@ func BenchmarkStepFromGo(b *testing.B) {
 		gas.Pos[a] = col(unsafe.Pointer(&e0.Pos[a]), feedback.Float64)
 		gas.Vel[a] = col(unsafe.Pointer(&e0.Vel[a]), feedback.Float64)
 	}
-	u := units.CodeUnits{LengthCm: 3.0856775814913673e18, MassG: 1.98841e33, VelocityCmPS: 1e5}
-	foe := 1e51 / (1.98841e33 * 1e10)
+	// The units of examples/host_common.h: pc, Msun, km/s.
+	u := units.CodeUnits{LengthCm: 3.0856775814913673e18, MassG: 1.988409870698051e33, VelocityCmPS: 1e5}
+	foe := 1e51 / (u.MassG * 1e10)
 	srcs := make([]feedback.Source, benchStars)
 	for s := range srcs {
 		src := &srcs[s]

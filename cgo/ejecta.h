@@ -35,7 +35,11 @@
  *   returns.
  * - Determinism: records, ledger and gas after ejecta_apply_* are bitwise the
  *   same for any worker_threads, any order of the stars, and (radius mode,
- *   with ghosts covering the coupling radius) any number of MPI ranks.
+ *   with ghosts covering the coupling radius) any number of MPI ranks. Every
+ *   random draw is keyed by what the host states (ejecta_config.seed, the
+ *   star ID and the step_index passed to the step), never by the history of
+ *   a context, so a run restarted from a checkpoint with a new context, or
+ *   a rank that skips a step for want of stars, draws the same numbers.
  * - Bad input (NULL pointers, counts <= 0, strides smaller than the element,
  *   unknown names, NaN values, a destroyed context) is reported with an
  *   error code and never crashes. ejecta cannot check that a pointer points
@@ -53,7 +57,7 @@ extern "C" {
 
 /* Version of this header's binary interface: bumped when a struct layout or
  * a function signature changes. */
-#define EJECTA_ABI_VERSION 1
+#define EJECTA_ABI_VERSION 2
 
 /* ---- error codes ---------------------------------------------------- */
 
@@ -199,12 +203,12 @@ typedef struct ejecta_config {
   double coupling_radius;
   /* Periodic box side per axis (code length); 0 leaves the axis open. */
   double box_size[3];
-  /* Seed of the counter-based random streams of stochastic schemes
-   * (stochastic-heating). Draws are keyed by (seed, star ID, step index),
-   * the step index being the number of ejecta_step calls the context has
-   * run before, so contexts on different ranks stepped in lockstep draw
-   * the same numbers for the same star. Population steps also key their
-   * supernova draws with this seed, and use the host's step_index. */
+  /* Seed of the counter-based random streams: the draws of stochastic
+   * schemes (stochastic-heating) and the supernovae of population steps.
+   * Every draw is keyed by (seed, star ID, the step_index the host passes
+   * to the step), never by how many calls a context has run, so a
+   * restarted context, or a rank that skipped a step because it had no
+   * stars, draws the same numbers for a star as one that ran through. */
   uint64_t seed;
   /* Count mode: each star couples to its neighbor_count nearest gas
    * elements (host rows: nearest of its row, which must be at least that
@@ -556,19 +560,25 @@ int ejecta_bind_gas(ejecta_context context, const ejecta_gas *gas);
  * ejecta_record_count / ejecta_copy_records / ejecta_get_ledger, apply them
  * with ejecta_apply_step_records or ejecta_apply_records). The gas is not
  * changed. Stars are copied; all are checked before anything is done.
+ * step_index (>= 0) is the host's step number: with the seed and the star
+ * ID it keys every random draw of the step (stochastic heating), so the
+ * records depend only on what the host states. Pass the same index for
+ * the same step on every rank and after a restart from a checkpoint; a
+ * rank without stars skips the call and changes nothing.
  * neighbor_mode is EJECTA_NEIGHBORS_OWN_FINDER (row_offsets and
  * row_indices ignored, may be NULL) or EJECTA_NEIGHBORS_HOST_ROWS:
  * row_offsets has n_stars+1 non-decreasing entries starting at 0 and
  * row_indices has row_offsets[n_stars] 0-based gas indices, no row naming
  * an element twice. Errors: EJECTA_ERR_NULL_POINTER,
- * EJECTA_ERR_INVALID_ARGUMENT (n_stars <= 0, unknown mode or channel),
+ * EJECTA_ERR_INVALID_ARGUMENT (n_stars <= 0, step_index < 0, unknown
+ * mode or channel, duplicate star IDs),
  * EJECTA_ERR_BAD_VALUE (NaN, infinite or negative star or release field,
  * a species mass above the ejected mass; nothing is done),
  * EJECTA_ERR_NO_GAS, EJECTA_ERR_NEIGHBORS (malformed rows, or the
  * positions or IDs of the gas unusable for the tree: NaN, duplicate IDs),
  * EJECTA_ERR_UNDEPOSITED (completed, some stars returned: see above). */
 int ejecta_step(ejecta_context context, const ejecta_star *stars,
-                int64_t n_stars, int32_t neighbor_mode,
+                int64_t n_stars, int64_t step_index, int32_t neighbor_mode,
                 const int64_t *row_offsets, const int64_t *row_indices);
 
 /* ejecta_record_count writes the number of records of the last step to
@@ -684,9 +694,9 @@ int ejecta_enable_population(ejecta_context context,
  * energy comes in whole events. The ledger sums the channels, so its
  * stars counts star-channel releases (6 per star); per channel see
  * ejecta_get_channel_ledger. Per-star results: ejecta_copy_star_results;
- * a smaller step: ejecta_suggested_step. step_index (>= 0) is the host's:
- * ranks stepping in lockstep pass the same index and draw the same
- * numbers for a star; it is separate from the count ejecta_step keeps.
+ * a smaller step: ejecta_suggested_step. step_index (>= 0) is the host's,
+ * as in ejecta_step: ranks stepping in lockstep pass the same index and
+ * draw the same numbers for a star, also after a restart.
  * neighbor_mode, row_offsets and row_indices are as in ejecta_step.
  * Stars are copied; all are checked before anything is done. Errors:
  * EJECTA_ERR_NULL_POINTER, EJECTA_ERR_INVALID_ARGUMENT (n_stars <= 0,

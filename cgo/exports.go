@@ -45,8 +45,8 @@ func ejecta_bind_gas(context C.ejecta_context, gas *C.ejecta_gas) C.int {
 }
 
 //export ejecta_step
-func ejecta_step(context C.ejecta_context, stars *C.ejecta_star, nStars C.int64_t, neighborMode C.int32_t, rowOffsets, rowIndices *C.int64_t) C.int {
-	return C.int(entryStep(uint64(context), (*starABI)(unsafe.Pointer(stars)), int64(nStars), int32(neighborMode),
+func ejecta_step(context C.ejecta_context, stars *C.ejecta_star, nStars, stepIndex C.int64_t, neighborMode C.int32_t, rowOffsets, rowIndices *C.int64_t) C.int {
+	return C.int(entryStep(uint64(context), (*starABI)(unsafe.Pointer(stars)), int64(nStars), int64(stepIndex), int32(neighborMode),
 		(*int64)(unsafe.Pointer(rowOffsets)), (*int64)(unsafe.Pointer(rowIndices))))
 }
 

@@ -237,7 +237,7 @@ func TestStepPopulationErrors(t *testing.T) {
 	assert.Equal(t, good[0].ID, res[0].ID)
 	// An ordinary step, or a new binding, leaves no population results.
 	sn := supernovae(1, 10, 3)
-	require.Equal(t, codeOK, entryStep(h, &sn[0], 1, modeOwnFinder, nil, nil), lastError(h))
+	require.Equal(t, codeOK, entryStep(h, &sn[0], 1, 0, modeOwnFinder, nil, nil), lastError(h))
 	require.Equal(t, codeOK, entryCopyStarResults(h, &res[0], 1, &w))
 	assert.Zero(t, w)
 	require.Equal(t, codeOK, entryGetChannelLedger(h, 0, &l))

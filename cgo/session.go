@@ -55,9 +55,6 @@ type session struct {
 	cfg     feedback.Config
 	seed    uint64
 	coupler *feedback.Coupler
-	// steps counts ejecta_step calls that ran; it is each step's index,
-	// which keys stochastic draws with the seed and star ID.
-	steps uint64
 
 	// gas is the binding of ejecta_bind_gas and what is derived from it.
 	gas binding

@@ -194,7 +194,7 @@ func (s *session) step(stars *starABI, a batchArgs) error {
 	var err error
 	s.batch.sources, err = convertStars(&s.batch, stars, a.n, s.batch.sources, func(st *starABI) (feedback.Source, int64, error) {
 		src, err := starSource(st)
-		src.Step = s.steps
+		src.Step = uint64(a.step)
 		return src, st.ID, err
 	})
 	if err != nil {
@@ -204,14 +204,13 @@ func (s *session) step(stars *starABI, a batchArgs) error {
 		if err := s.coupler.Couple(&s.gas.gas, f, s.batch.sources, &s.out); err != nil {
 			return failWith(codeInvalidArgument, err, "step")
 		}
-		s.steps++
 		return nil
 	})
 }
 
 // entryStep is behind ejecta_step.
-func entryStep(h uint64, stars *starABI, n int64, mode int32, offsets, indices *int64) int32 {
+func entryStep(h uint64, stars *starABI, n, step int64, mode int32, offsets, indices *int64) int32 {
 	return withSession(h, func(s *session) error {
-		return s.step(stars, batchArgs{n: n, mode: mode, offsets: offsets, indices: indices})
+		return s.step(stars, batchArgs{n: n, step: step, mode: mode, offsets: offsets, indices: indices})
 	})
 }

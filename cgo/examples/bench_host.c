@@ -17,6 +17,7 @@
 #include <time.h>
 
 #include "ejecta.h"
+#include "host_common.h"
 
 typedef struct bench_element {
   double pos[3];
@@ -28,28 +29,7 @@ typedef struct bench_element {
   int64_t id;
 } bench_element;
 
-/* splitmix64 of (i, k), mapped to [0, 1): identical in bench_test.go. */
-static double unit_hash(uint64_t i, uint64_t k) {
-  uint64_t z = i * 0x9E3779B97F4A7C15ull + k * 0xBF58476D1CE4E5B9ull + 0x94D049BB133111EBull;
-  z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ull;
-  z = (z ^ (z >> 27)) * 0x94D049BB133111EBull;
-  z ^= z >> 31;
-  return (double)(z >> 11) / 9007199254740992.0;
-}
-
-static ejecta_field col(void *p, int32_t t) {
-  ejecta_field f = {p, (int64_t)sizeof(bench_element), t, 0};
-  return f;
-}
-
-static void must(ejecta_context ctx, int code, const char *what) {
-  if (code != EJECTA_OK) {
-    char msg[512];
-    ejecta_last_error(ctx, msg, sizeof msg, NULL);
-    fprintf(stderr, "FAIL %s: code %d: %s\n", what, code, msg);
-    exit(2);
-  }
-}
+static ejecta_field col(void *p, int32_t t) { return strided(p, sizeof(bench_element), t); }
 
 int main(int argc, char **argv) {
   if (argc != 5) {
@@ -73,7 +53,6 @@ int main(int argc, char **argv) {
     gas[i].id = i + 1;
   }
   ejecta_star *stars = calloc((size_t)n_stars, sizeof *stars);
-  double foe = 1e51 / (1.98841e33 * 1e10);
   for (int64_t s = 0; s < n_stars; s++) {
     stars[s].id = s + 1;
     for (int a = 0; a < 3; a++) stars[s].position[a] = box * unit_hash((uint64_t)(n_gas + s), (uint64_t)a);
@@ -82,14 +61,12 @@ int main(int argc, char **argv) {
     stars[s].age = 5;
     stars[s].ejected_mass = 10;
     stars[s].species_mass[EJECTA_SPECIES_METALS] = 2;
-    stars[s].energy = foe;
+    stars[s].energy = FOE_CODE;
     stars[s].events = 1;
   }
   ejecta_config cfg;
   ejecta_config_defaults(&cfg);
-  cfg.length_cm = 3.0856775814913673e18;
-  cfg.mass_g = 1.98841e33;
-  cfg.velocity_cm_per_s = 1e5;
+  use_host_units(&cfg);
   cfg.neighbor_count = k;
   cfg.worker_threads = 1;
   for (int a = 0; a < 3; a++) cfg.box_size[a] = box;
@@ -117,12 +94,12 @@ int main(int argc, char **argv) {
   g.species_fraction = fractions;
   must(ctx, ejecta_bind_gas(ctx, &g), "bind");
   /* Untimed first step: builds the tree. */
-  must(ctx, ejecta_step(ctx, stars, n_stars, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL), "step");
+  must(ctx, ejecta_step(ctx, stars, n_stars, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL), "step");
   must(ctx, ejecta_apply_step_records(ctx, NULL), "apply");
   struct timespec t0, t1;
   clock_gettime(CLOCK_MONOTONIC, &t0);
   for (int i = 0; i < steps; i++) {
-    must(ctx, ejecta_step(ctx, stars, n_stars, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL), "step");
+    must(ctx, ejecta_step(ctx, stars, n_stars, 1 + i, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL), "step");
     must(ctx, ejecta_apply_step_records(ctx, NULL), "apply");
   }
   clock_gettime(CLOCK_MONOTONIC, &t1);

@@ -14,6 +14,7 @@
 #include <string.h>
 
 #include "ejecta.h"
+#include "host_common.h"
 
 #define SIDE 8             /* gas lattice side: SIDE^3 elements */
 #define N_GAS (SIDE * SIDE * SIDE)
@@ -31,31 +32,7 @@ typedef struct gas_element {
   int64_t id;
 } gas_element;
 
-static int failures = 0;
-
-#define CHECK(cond, ...)                                            \
-  do {                                                              \
-    if (!(cond)) {                                                  \
-      fprintf(stderr, "FAIL %s:%d: ", __FILE__, __LINE__);          \
-      fprintf(stderr, __VA_ARGS__);                                 \
-      fprintf(stderr, "\n");                                        \
-      failures++;                                                   \
-    }                                                               \
-  } while (0)
-
-static void must(ejecta_context ctx, int code, const char *what) {
-  if (code != EJECTA_OK) {
-    char msg[512];
-    ejecta_last_error(ctx, msg, sizeof msg, NULL);
-    fprintf(stderr, "FAIL %s: code %d: %s\n", what, code, msg);
-    exit(2);
-  }
-}
-
-static ejecta_field field(void *p, int32_t type) {
-  ejecta_field f = {p, (int64_t)sizeof(gas_element), type, 0};
-  return f;
-}
+static ejecta_field field(void *p, int32_t type) { return strided(p, sizeof(gas_element), type); }
 
 static void describe(gas_element *g, ejecta_gas *d, int32_t *species,
                      ejecta_field *fractions, int64_t n) {
@@ -131,22 +108,22 @@ static void bad_input(ejecta_context ctx, gas_element *gas) {
 
   ejecta_star s;
   memset(&s, 0, sizeof s);
-  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_NO_GAS, "step before bind");
+  CHECK(ejecta_step(other, &s, 1, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_NO_GAS, "step before bind");
   describe(gas, &d, species, fractions, N_GAS);
   must(other, ejecta_bind_gas(other, &d), "bind scratch");
-  CHECK(ejecta_step(other, NULL, 1, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_NULL_POINTER, "NULL stars");
-  CHECK(ejecta_step(other, &s, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "zero stars");
-  CHECK(ejecta_step(other, &s, -1, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "negative stars");
-  CHECK(ejecta_step(other, &s, 1, 9, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "unknown mode");
-  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBORS_HOST_ROWS, NULL, NULL) == EJECTA_ERR_NULL_POINTER, "rows NULL");
+  CHECK(ejecta_step(other, NULL, 1, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_NULL_POINTER, "NULL stars");
+  CHECK(ejecta_step(other, &s, 0, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "zero stars");
+  CHECK(ejecta_step(other, &s, -1, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "negative stars");
+  CHECK(ejecta_step(other, &s, 1, 0, 9, NULL, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "unknown mode");
+  CHECK(ejecta_step(other, &s, 1, 0, EJECTA_NEIGHBORS_HOST_ROWS, NULL, NULL) == EJECTA_ERR_NULL_POINTER, "rows NULL");
   s.energy = NAN;
-  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "NaN energy");
+  CHECK(ejecta_step(other, &s, 1, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "NaN energy");
   int64_t len = 0;
   CHECK(ejecta_last_error(other, msg, sizeof msg, &len) == EJECTA_OK && len > 0, "last error after NaN");
   printf("nan_error=%s\n", msg);
   s.energy = 1;
   s.ejected_mass = -1;
-  CHECK(ejecta_step(other, &s, 1, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "negative mass");
+  CHECK(ejecta_step(other, &s, 1, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL) == EJECTA_ERR_BAD_VALUE, "negative mass");
   CHECK(ejecta_apply_step_records(other, NULL) == EJECTA_ERR_INVALID_ARGUMENT, "apply without step");
   ejecta_record r;
   memset(&r, 0, sizeof r);
@@ -165,11 +142,11 @@ static void bad_input(ejecta_context ctx, gas_element *gas) {
   CHECK(ejecta_destroy(&other) == EJECTA_OK, "destroy(0) is a no-op");
   CHECK(ejecta_destroy(&stale) == EJECTA_ERR_INVALID_CONTEXT, "double destroy");
   CHECK(ejecta_bind_gas(stale, &d) == EJECTA_ERR_INVALID_CONTEXT, "bind on destroyed");
-  CHECK(ejecta_step(stale, &s, 1, 0, NULL, NULL) == EJECTA_ERR_INVALID_CONTEXT, "step on destroyed");
+  CHECK(ejecta_step(stale, &s, 1, 0, 0, NULL, NULL) == EJECTA_ERR_INVALID_CONTEXT, "step on destroyed");
   CHECK(ejecta_last_error(stale, msg, sizeof msg, NULL) == EJECTA_ERR_INVALID_CONTEXT, "last error on destroyed");
   printf("destroyed_error=%s\n", msg);
-  CHECK(ejecta_step(12345, &s, 1, 0, NULL, NULL) == EJECTA_ERR_INVALID_CONTEXT, "made-up handle");
-  CHECK(ejecta_step(0, &s, 1, 0, NULL, NULL) == EJECTA_ERR_INVALID_CONTEXT, "zero handle");
+  CHECK(ejecta_step(12345, &s, 1, 0, 0, NULL, NULL) == EJECTA_ERR_INVALID_CONTEXT, "made-up handle");
+  CHECK(ejecta_step(0, &s, 1, 0, 0, NULL, NULL) == EJECTA_ERR_INVALID_CONTEXT, "zero handle");
   (void)ctx;
 }
 
@@ -204,9 +181,7 @@ int main(void) {
 
   ejecta_config cfg;
   must(0, ejecta_config_defaults(&cfg), "defaults");
-  cfg.length_cm = 3.0856775814913673e18;
-  cfg.mass_g = 1.98841e33;
-  cfg.velocity_cm_per_s = 1e5;
+  use_host_units(&cfg);
   cfg.neighbor_count = 48;
   cfg.worker_threads = 2;
   for (int a = 0; a < 3; a++) cfg.box_size[a] = BOX;
@@ -228,7 +203,6 @@ int main(void) {
   ejecta_star stars[N_STARS];
   memset(stars, 0, sizeof stars);
   double where[N_STARS][3] = {{8.1, 7.9, 8.3}, {0.2, 15.9, 4.0}, {12.0, 3.3, 9.9}};
-  double foe = 1e51 / (1.98841e33 * 1e10); /* erg in Msun (km/s)^2 */
   for (int s = 0; s < N_STARS; s++) {
     stars[s].id = 50 - s;
     for (int a = 0; a < 3; a++) stars[s].position[a] = where[s][a];
@@ -240,10 +214,10 @@ int main(void) {
     stars[s].ejected_mass = 10.0;
     stars[s].species_mass[EJECTA_SPECIES_METALS] = 2.0;
     stars[s].species_mass[EJECTA_SPECIES_IRON] = 0.1;
-    stars[s].energy = foe;
+    stars[s].energy = FOE_CODE;
     stars[s].events = 1;
   }
-  must(ctx, ejecta_step(ctx, stars, N_STARS, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL), "step");
+  must(ctx, ejecta_step(ctx, stars, N_STARS, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL), "step");
 
   int64_t n_rec = 0, written = 0;
   must(ctx, ejecta_record_count(ctx, &n_rec), "record count");
@@ -324,10 +298,5 @@ int main(void) {
   bad_input(ctx, gas);
   must(ctx, ejecta_destroy(&ctx), "destroy");
   free(dm); free(dz); free(dp); free(recs); free(gas); free(before);
-  if (failures) {
-    printf("result fail (%d checks)\n", failures);
-    return 1;
-  }
-  printf("result pass\n");
-  return 0;
+  return verdict();
 }

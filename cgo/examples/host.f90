@@ -108,7 +108,7 @@ program ejecta_fortran_host
      stars(s)%energy = foe
      stars(s)%events = 1.0d0
   end do
-  call must(ctx, ejecta_step(ctx, stars, int(n_stars, c_int64_t), EJECTA_NEIGHBORS_OWN_FINDER, &
+  call must(ctx, ejecta_step(ctx, stars, int(n_stars, c_int64_t), 0_c_int64_t, EJECTA_NEIGHBORS_OWN_FINDER, &
        c_null_ptr, c_null_ptr), 'step')
   call must(ctx, ejecta_record_count(ctx, n_rec), 'record count')
   if (n_rec /= n_stars * k) call fail('record count')

@@ -18,6 +18,7 @@
 #include <string.h>
 
 #include "ejecta.h"
+#include "host_common.h"
 
 #define SIDE 8             /* gas lattice side: SIDE^3 elements */
 #define N_GAS (SIDE * SIDE * SIDE)
@@ -35,31 +36,7 @@ typedef struct gas_element {
   int64_t id;
 } gas_element;
 
-static int failures = 0;
-
-#define CHECK(cond, ...)                                            \
-  do {                                                              \
-    if (!(cond)) {                                                  \
-      fprintf(stderr, "FAIL %s:%d: ", __FILE__, __LINE__);          \
-      fprintf(stderr, __VA_ARGS__);                                 \
-      fprintf(stderr, "\n");                                        \
-      failures++;                                                   \
-    }                                                               \
-  } while (0)
-
-static void must(ejecta_context ctx, int code, const char *what) {
-  if (code != EJECTA_OK) {
-    char msg[512];
-    ejecta_last_error(ctx, msg, sizeof msg, NULL);
-    fprintf(stderr, "FAIL %s: code %d: %s\n", what, code, msg);
-    exit(2);
-  }
-}
-
-static ejecta_field field(void *p, int32_t type) {
-  ejecta_field f = {p, (int64_t)sizeof(gas_element), type, 0};
-  return f;
-}
+static ejecta_field field(void *p, int32_t type) { return strided(p, sizeof(gas_element), type); }
 
 static double gas_mass(const gas_element *g) {
   double m = 0;
@@ -145,9 +122,7 @@ int main(int argc, char **argv) {
 
   ejecta_config cfg;
   must(0, ejecta_config_defaults(&cfg), "defaults");
-  cfg.length_cm = 3.0856775814913673e18;
-  cfg.mass_g = 1.988409870698051e33;
-  cfg.velocity_cm_per_s = 1e5;
+  use_host_units(&cfg);
   cfg.seed = 12345;
   cfg.worker_threads = 2;
   for (int a = 0; a < 3; a++) cfg.box_size[a] = BOX;
@@ -182,7 +157,7 @@ int main(int argc, char **argv) {
   must(ctx, ejecta_enable_population(ctx, &pc), "enable population");
 
   /* Three clusters of different ages, 2e3-1e4 Msun formed. */
-  const double myr = 1.0 / 0.97779222; /* code time per Myr */
+  const double myr = CODE_TIME_PER_MYR;
   ejecta_star_particle stars[N_STARS];
   memset(stars, 0, sizeof stars);
   double where[N_STARS][3] = {{8.1, 7.9, 8.3}, {0.4, 15.6, 4.0}, {12.0, 3.3, 9.9}};
@@ -264,10 +239,5 @@ int main(int argc, char **argv) {
   bad_input(ctx, &stars[0]);
   must(ctx, ejecta_destroy(&ctx), "destroy");
   free(gas);
-  if (failures) {
-    printf("result fail (%d checks)\n", failures);
-    return 1;
-  }
-  printf("result pass\n");
-  return 0;
+  return verdict();
 }

@@ -18,7 +18,7 @@ module ejecta_mod
        EJECTA_ERR_BUSY = 10, EJECTA_ERR_UNDEPOSITED = 11, EJECTA_ERR_IMBALANCE = 12, &
        EJECTA_ERR_ALREADY_APPLIED = 13, EJECTA_ERR_NO_POPULATION = 14, EJECTA_ERR_YIELDS_TABLE = 15, &
        EJECTA_ERR_INTERNAL = 99
-  integer(c_int32_t), parameter, public :: EJECTA_ABI_VERSION = 1
+  integer(c_int32_t), parameter, public :: EJECTA_ABI_VERSION = 2
   ! Element types.
   integer(c_int32_t), parameter, public :: EJECTA_FLOAT64 = 1, EJECTA_FLOAT32 = 2, &
        EJECTA_INT64 = 3, EJECTA_INT32 = 4
@@ -183,14 +183,15 @@ module ejecta_mod
        type(ejecta_gas), intent(in) :: gas
      end function ejecta_bind_gas
 
+     ! step_index: the host's step number (>= 0), which keys the draws.
      ! row_offsets and row_indices: c_loc of int64 arrays, or c_null_ptr
      ! with EJECTA_NEIGHBORS_OWN_FINDER.
-     integer(c_int) function ejecta_step(context, stars, n_stars, neighbor_mode, row_offsets, row_indices) &
+     integer(c_int) function ejecta_step(context, stars, n_stars, step_index, neighbor_mode, row_offsets, row_indices) &
           bind(c, name='ejecta_step')
        import :: c_int, c_int64_t, c_int32_t, c_ptr, ejecta_star
        integer(c_int64_t), value :: context
        type(ejecta_star), intent(in) :: stars(*)
-       integer(c_int64_t), value :: n_stars
+       integer(c_int64_t), value :: n_stars, step_index
        integer(c_int32_t), value :: neighbor_mode
        type(c_ptr), value :: row_offsets, row_indices
      end function ejecta_step
