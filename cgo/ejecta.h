@@ -222,8 +222,9 @@ typedef struct ejecta_config {
   int32_t isotropy_correction;
   int32_t reserved;
   /* NUL-terminated names: scheme "thermal-dump", "kinetic",
-   * "terminal-momentum", "stochastic-heating", "stellar-winds",
-   * "radiation-pressure" or "photoionization"; remnant_fit
+   * "terminal-momentum", "stochastic-heating", "delayed-cooling" (a
+   * thermal dump whose records ask the host to hold cooling),
+   * "stellar-winds", "radiation-pressure" or "photoionization"; remnant_fit
    * (terminal-momentum and stellar-winds)
    * "kim-ostriker-2015" or "cioffi-mckee-bertschinger-1988"; weighting
    * "kernel-volume" or "solid-angle". An empty remnant_fit or weighting

@@ -19,7 +19,7 @@ type SchemeOptions struct {
 func SchemeNames() []string {
 	return []string{
 		ThermalDump{}.Name(), Kinetic{}.Name(), TerminalMomentum{}.Name(), StochasticHeating{}.Name(),
-		Winds{}.Name(), RadiationPressure{}.Name(), Photoionization{}.Name(),
+		DelayedCooling{}.Name(), Winds{}.Name(), RadiationPressure{}.Name(), Photoionization{}.Name(),
 		PhotoelectricHeating{}.Name(), DefaultKickedWinds().Name(), DefaultMomentumDrivenWinds().Name(),
 	}
 }
@@ -35,6 +35,8 @@ func SchemeByName(name string, o SchemeOptions) (Scheme, error) {
 		return TerminalMomentum{Fit: o.Fit}, nil
 	case StochasticHeating{}.Name():
 		return StochasticHeating{Seed: o.Seed, TemperatureJump: o.TemperatureJump}, nil
+	case DelayedCooling{}.Name():
+		return DelayedCooling{}, nil
 	case Winds{}.Name():
 		return Winds{Fit: o.Fit}, nil
 	case RadiationPressure{}.Name():

@@ -316,11 +316,8 @@ func (s *Stepper) delayCooling(gas *Gas, c int, recs []Record) {
 		if e <= 0 {
 			continue
 		}
-		rho := gas.Density.At(r.GasIndex)
-		n := hydrogenDensity(rho, u)
-		pk := 2.0 / 3 * rho * u.DensityGCm3() * gas.InternalEnergy.At(r.GasIndex) * u.SpecificEnergy() / units.Boltzmann
 		r.Flags |= FlagHoldCooling
-		r.HoldCoolingUntil = CoolingHoldTime(e*u.EnergyErg(), n, pk) / u.TimeS()
+		r.HoldCoolingUntil = holdCoolingTime(e, gas.Density.At(r.GasIndex), gas.InternalEnergy.At(r.GasIndex), u)
 	}
 }
 
