@@ -21,6 +21,6 @@ func Example() {
 	fmt.Printf("T: %.3g K -> %.3g K, radiated %.3g erg/cm^3\n", gas.Temperature(e0), gas.Temperature(e1), rho*(e0-e1))
 	fmt.Printf("equilibrium at n_H = 1: %.0f K\n", curve.EquilibriumTemperature(1))
 	// Output:
-	// T: 1e+06 K -> 9.25e+05 K, radiated 3.65e-11 erg/cm^3
+	// T: 1e+06 K -> 9.22e+05 K, radiated 3.65e-11 erg/cm^3
 	// equilibrium at n_H = 1: 5006 K
 }

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 
+	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
@@ -20,10 +21,13 @@ type Gas struct {
 	Gamma float64
 }
 
-// DefaultGas is MassPerHydrogen 1.4 (hydrogen and helium at He/H = 0.1 by
-// number; common practice), MeanMass 0.6 (the same gas fully ionized, where
-// remnants cool; common practice) and Gamma 5/3.
-func DefaultGas() Gas { return Gas{MassPerHydrogen: 1.4, MeanMass: 0.6, Gamma: 5.0 / 3} }
+// DefaultGas is MassPerHydrogen 1/X with X = yields.SolarHydrogen, the
+// solar hydrogen mass fraction the library uses everywhere (about 1.355,
+// the same conversion as feedback.MassPerHydrogen), MeanMass 0.6 (solar gas
+// fully ionized, where remnants cool; common practice) and Gamma 5/3.
+func DefaultGas() Gas {
+	return Gas{MassPerHydrogen: 1 / yields.SolarHydrogen, MeanMass: 0.6, Gamma: 5.0 / 3}
+}
 
 // Validate reports an error unless every field is finite and positive and
 // Gamma > 1.

@@ -113,7 +113,7 @@ func shellRun(t *testing.T, n float64, zones int) Point {
 // p_sf falls with density with an exponent near their -0.13.
 //
 // Known deviation: at n = 0.1 the shell forms later and heavier than the
-// fit (+32% in time and mass, within 10% in radius and momentum). There
+// fit (about 30% in time and mass, within 10% in radius and momentum). There
 // the post-shock gas is near 3e5 K when it cools, just above the
 // collisional-ionization peak that the built-in single power law (Draine
 // 2011, fitted from 1e5 K up) does not reproduce; Kim & Ostriker's tabulated

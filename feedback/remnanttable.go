@@ -1,0 +1,298 @@
+package feedback
+
+import (
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"strconv"
+	"strings"
+
+	"github.com/ejecta-dev/ejecta/yields/units"
+)
+
+// ErrRemnantTable marks a malformed remnant table; the message names the
+// line.
+var ErrRemnantTable = errors.New("malformed remnant table")
+
+// ErrOutsideRemnantTable marks a density or metallicity outside a remnant
+// table's grid when the table refuses to extrapolate.
+var ErrOutsideRemnantTable = errors.New("outside the remnant table")
+
+// RemnantTableHeader is the header row of the remnant table format: one
+// row per (metallicity, density) grid point, blocks of rising metallicity,
+// each with the same rising densities (at least one of each; two or more
+// to interpolate along an axis). Every row has the same energy. Units are
+// part of the column names and must be written exactly so.
+const RemnantTableHeader = "density[cm^-3],metallicity[solar],energy[erg]," +
+	"shell_time[kyr],shell_radius[pc],shell_mass[Msun],shell_momentum[Msun km/s]," +
+	"late_time[kyr],late_momentum[Msun km/s]"
+
+// RemnantTableRow is one grid point of a remnant table: a remnant of
+// Energy (erg) in gas of hydrogen density Density (cm^-3) and metallicity
+// Metallicity (solar units), its shell formation (time in kyr, radius in
+// pc, mass in Msun, radial momentum in Msun km/s) and its late state.
+type RemnantTableRow struct {
+	Density, Metallicity, Energy                               float64
+	ShellTime, ShellRadius, ShellMass, ShellMomentum, LateTime float64
+	LateMomentum                                               float64
+}
+
+func (r *RemnantTableRow) fields() []*float64 {
+	return []*float64{&r.Density, &r.Metallicity, &r.Energy, &r.ShellTime, &r.ShellRadius,
+		&r.ShellMass, &r.ShellMomentum, &r.LateTime, &r.LateMomentum}
+}
+
+// OutsideGrid says what a RemnantTable does with a density or metallicity
+// outside its grid.
+type OutsideGrid uint8
+
+const (
+	// RefuseOutsideGrid returns an ErrOutsideRemnantTable error.
+	RefuseOutsideGrid OutsideGrid = iota
+	// ClampToGrid uses the nearest edge of the grid along that axis.
+	ClampToGrid
+)
+
+// RemnantTable is a remnant fit read from a table, typically calibrated
+// with the 1D remnant solver (bench/remnant) for the cooling function a
+// simulation runs: the terminal momentum and cooling radius of a remnant
+// are the table's shell-formation momentum and radius, interpolated
+// bilinearly in log density and log metallicity (log values of both). A
+// remnant of energy E other than the table's E_t is scaled with the
+// energy exponents of Kim & Ostriker 2015 (ApJ 802, 99; from memory):
+// momentum × (E/E_t)^0.93, radius × (E/E_t)^0.29. An axis with a single
+// grid value is used as it is at any input along that axis only under
+// ClampToGrid. A RemnantTable is immutable and safe for concurrent use.
+type RemnantTable struct {
+	densities, logDensities []float64
+	zs, logZs               []float64
+	energy                  float64
+	logP, logR              []float64 // [iz*len(densities)+in]
+	rows                    []RemnantTableRow
+	outside                 OutsideGrid
+}
+
+// WithOutsideGrid returns a copy of the table that treats inputs outside
+// the grid by policy o.
+func (t *RemnantTable) WithOutsideGrid(o OutsideGrid) *RemnantTable {
+	c := *t
+	c.outside = o
+	return &c
+}
+
+// Rows returns a copy of the table's rows.
+func (t *RemnantTable) Rows() []RemnantTableRow { return append([]RemnantTableRow(nil), t.rows...) }
+
+// Energy is the table's explosion energy in erg.
+func (t *RemnantTable) Energy() float64 { return t.energy }
+
+// locate returns the bracketing indices and weight of v on grid g (log
+// values lg), or an error outside the grid under RefuseOutsideGrid.
+func (t *RemnantTable) locate(what string, v float64, g, lg []float64) (int, int, float64, error) {
+	n := len(g)
+	if !(v >= 0) || math.IsInf(v, 0) || (v == 0 && what == "density") {
+		return 0, 0, 0, errorf(ErrBadValue, "remnant table: %s %v: want finite and positive", what, v)
+	}
+	if v < g[0] || v > g[n-1] {
+		if t.outside == RefuseOutsideGrid {
+			return 0, 0, 0, errorf(ErrOutsideRemnantTable, "remnant table: %s %v outside the grid [%v, %v]", what, v, g[0], g[n-1])
+		}
+		if v < g[0] {
+			return 0, 0, 0, nil
+		}
+		return n - 1, n - 1, 0, nil
+	}
+	if n == 1 {
+		return 0, 0, 0, nil
+	}
+	j := 1
+	for j < n-1 && g[j] < v {
+		j++
+	}
+	w := (math.Log(v) - lg[j-1]) / (lg[j] - lg[j-1])
+	return j - 1, j, w, nil
+}
+
+// Remnant evaluates the table for energy e in erg, hydrogen density n in
+// cm^-3 and metallicity zeta in solar units.
+func (t *RemnantTable) Remnant(e, n, zeta float64) (Remnant, error) {
+	if !(e > 0) || math.IsInf(e, 0) {
+		return Remnant{}, errorf(ErrBadValue, "remnant table: energy %v erg: want finite > 0", e)
+	}
+	n0, n1, wn, err := t.locate("density", n, t.densities, t.logDensities)
+	if err != nil {
+		return Remnant{}, err
+	}
+	z0, z1, wz, err := t.locate("metallicity", zeta, t.zs, t.logZs)
+	if err != nil {
+		return Remnant{}, err
+	}
+	nd := len(t.densities)
+	bilinear := func(v []float64) float64 {
+		a := (1-wn)*v[z0*nd+n0] + wn*v[z0*nd+n1]
+		b := (1-wn)*v[z1*nd+n0] + wn*v[z1*nd+n1]
+		return (1-wz)*a + wz*b
+	}
+	le := math.Log(e / t.energy)
+	return Remnant{
+		TerminalMomentum: math.Exp(bilinear(t.logP) + 0.93*le),
+		CoolingRadius:    math.Exp(bilinear(t.logR) + 0.29*le),
+	}, nil
+}
+
+// ReadRemnantTableFile reads a remnant table from a file; errors name the
+// file and the line.
+func ReadRemnantTableFile(path string) (*RemnantTable, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("remnant table: %w", err)
+	}
+	defer f.Close()
+	t, err := ReadRemnantTable(f)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	return t, nil
+}
+
+func remnantLineError(line int, format string, args ...any) error {
+	return fmt.Errorf("remnant table line %d: %s: %w", line, fmt.Sprintf(format, args...), ErrRemnantTable)
+}
+
+// ReadRemnantTable reads a remnant table in the format of
+// RemnantTableHeader ('#' lines are comments). Any defect — a wrong
+// header, a field that is not a finite positive number (late values may be
+// zero when a run never got there), energies that differ, a grid that is
+// not a rectangle of rising densities within rising metallicities — is an
+// ErrRemnantTable error naming the line. The table refuses inputs outside
+// its grid (see WithOutsideGrid).
+func ReadRemnantTable(r io.Reader) (*RemnantTable, error) {
+	cr := csv.NewReader(r)
+	cr.Comment = '#'
+	cr.TrimLeadingSpace = true
+	header, err := cr.Read()
+	if err != nil {
+		var pe *csv.ParseError
+		switch {
+		case errors.Is(err, io.EOF):
+			return nil, fmt.Errorf("remnant table: empty, no header row: %w", ErrRemnantTable)
+		case errors.As(err, &pe):
+			return nil, remnantLineError(pe.Line, "%v", pe.Err)
+		}
+		return nil, fmt.Errorf("remnant table: %w", err)
+	}
+	line, _ := cr.FieldPos(0)
+	want := strings.Split(RemnantTableHeader, ",")
+	if len(header) != len(want) {
+		return nil, remnantLineError(line, "%d columns, want %d: %s", len(header), len(want), RemnantTableHeader)
+	}
+	for i, h := range header {
+		if strings.TrimSpace(h) != want[i] {
+			return nil, remnantLineError(line, "column %d is %q, want %q", i+1, h, want[i])
+		}
+	}
+	cr.FieldsPerRecord = len(want)
+	var rows []RemnantTableRow
+	var lines []int
+	for {
+		rec, err := cr.Read()
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		if err != nil {
+			var pe *csv.ParseError
+			if errors.As(err, &pe) {
+				return nil, remnantLineError(pe.Line, "%v", pe.Err)
+			}
+			return nil, fmt.Errorf("remnant table: %w", err)
+		}
+		line, _ := cr.FieldPos(0)
+		var row RemnantTableRow
+		for i, p := range row.fields() {
+			v, err := strconv.ParseFloat(strings.TrimSpace(rec[i]), 64)
+			if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+				return nil, remnantLineError(line, "column %q: %q is not a finite number", want[i], rec[i])
+			}
+			late := i >= 7
+			if v < 0 || (v == 0 && !late) {
+				return nil, remnantLineError(line, "column %q: %v, want > 0", want[i], v)
+			}
+			*p = v
+		}
+		rows = append(rows, row)
+		lines = append(lines, line)
+	}
+	if len(rows) == 0 {
+		return nil, remnantLineError(line, "no data rows")
+	}
+	t := &RemnantTable{energy: rows[0].Energy, rows: rows}
+	for i, row := range rows {
+		if row.Energy != t.energy {
+			return nil, remnantLineError(lines[i], "energy %v erg differs from %v on the first row: one energy per table", row.Energy, t.energy)
+		}
+		if i == 0 || row.Metallicity != rows[i-1].Metallicity {
+			if i > 0 && row.Metallicity < rows[i-1].Metallicity {
+				return nil, remnantLineError(lines[i], "metallicity %v after %v: blocks must rise in metallicity", row.Metallicity, rows[i-1].Metallicity)
+			}
+			t.zs = append(t.zs, row.Metallicity)
+		}
+	}
+	nd := len(rows) / len(t.zs)
+	if nd*len(t.zs) != len(rows) {
+		return nil, remnantLineError(lines[len(lines)-1], "%d rows do not split into %d metallicity blocks of equal size", len(rows), len(t.zs))
+	}
+	for i, row := range rows {
+		iz, in := i/nd, i%nd
+		if row.Metallicity != t.zs[iz] {
+			return nil, remnantLineError(lines[i], "metallicity %v: block %d of %d densities should be at %v", row.Metallicity, iz+1, nd, t.zs[iz])
+		}
+		if iz == 0 {
+			if in > 0 && !(row.Density > t.densities[in-1]) {
+				return nil, remnantLineError(lines[i], "density %v does not rise after %v", row.Density, t.densities[in-1])
+			}
+			t.densities = append(t.densities, row.Density)
+		} else if row.Density != t.densities[in] {
+			return nil, remnantLineError(lines[i], "density %v: metallicity %v has a different density grid (want %v)", row.Density, row.Metallicity, t.densities[in])
+		}
+		t.logP = append(t.logP, math.Log(row.ShellMomentum*units.MsunKms))
+		t.logR = append(t.logR, math.Log(row.ShellRadius*units.Parsec))
+	}
+	for _, d := range t.densities {
+		t.logDensities = append(t.logDensities, math.Log(d))
+	}
+	for _, z := range t.zs {
+		t.logZs = append(t.logZs, math.Log(z))
+	}
+	return t, nil
+}
+
+// WriteRemnantTable writes rows in the remnant table format, with the
+// comment lines given (each prefixed by "# ").
+func WriteRemnantTable(w io.Writer, comments []string, rows []RemnantTableRow) error {
+	for _, c := range comments {
+		for _, l := range strings.Split(c, "\n") {
+			if _, err := fmt.Fprintf(w, "# %s\n", l); err != nil {
+				return fmt.Errorf("remnant table: %w", err)
+			}
+		}
+	}
+	if _, err := fmt.Fprintln(w, RemnantTableHeader); err != nil {
+		return fmt.Errorf("remnant table: %w", err)
+	}
+	for _, r := range rows {
+		var sb strings.Builder
+		for i, p := range r.fields() {
+			if i > 0 {
+				sb.WriteByte(',')
+			}
+			sb.WriteString(strconv.FormatFloat(*p, 'g', -1, 64))
+		}
+		if _, err := fmt.Fprintln(w, sb.String()); err != nil {
+			return fmt.Errorf("remnant table: %w", err)
+		}
+	}
+	return nil
+}
