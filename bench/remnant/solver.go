@@ -66,6 +66,9 @@ type Solver struct {
 	history []Sample
 	nextRec int
 	recTime []float64
+
+	// cancel, when set, is asked every hundred steps whether to stop.
+	cancel func() error
 }
 
 // Point is the remnant's state at one instant.
@@ -455,6 +458,11 @@ type Result struct {
 func (s *Solver) Run() (*Result, error) {
 	leftGrid := false
 	for s.time < s.tEnd {
+		if s.cancel != nil && s.steps%100 == 0 {
+			if err := s.cancel(); err != nil {
+				return nil, fmt.Errorf("remnant: run stopped at %.4g kyr: %w", s.time/(1e3*units.JulianYear), err)
+			}
+		}
 		if err := s.Step(); err != nil {
 			return nil, err
 		}
