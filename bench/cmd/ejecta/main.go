@@ -19,6 +19,10 @@
 //	audit    check a host's own before/after feedback dump for conservation,
 //	         star-frame balance and out-of-range changes (-manifest FILE,
 //	         -tol, -isotropy-tol, -json); exit status 1 when a check fails
+//	remnant  follow one supernova remnant with the 1D spherical solver
+//	         (-density, -metallicity, -energy, -ejecta-mass, -cooling FILE,
+//	         -no-cooling, -json, -out DIR); -calibrate runs a grid of
+//	         -densities and -metallicities and writes a remnant table
 //	version  print the ejecta version
 //
 // The audit manifest is a JSON file naming NumPy .npy arrays, paths relative
@@ -62,6 +66,7 @@ func commands() []command {
 		{"bench", "compare coupling schemes on standard gas set-ups", runBench},
 		{"rates", "print what a stellar population releases, by age", runRates},
 		{"audit", "check a host's own feedback step for conservation", runAudit},
+		{"remnant", "follow one supernova remnant with the 1D solver, or calibrate a remnant table", runRemnant},
 	}
 }
 
