@@ -28,7 +28,7 @@ func ExampleRun() {
 	}
 	// Output:
 	// thermal-dump      m=1      p=0 (energy-conserving 5.3e+04, terminal 2.17e+05) Msun km/s
-	// terminal-momentum m=1      p=4.8e+04 (energy-conserving 5.3e+04, terminal 2.17e+05) Msun km/s
+	// terminal-momentum m=1      p=5.4e+04 (energy-conserving 5.3e+04, terminal 2.17e+05) Msun km/s
 	// thermal-dump      m=10000  p=0 (energy-conserving 4.2e+06, terminal 2.17e+05) Msun km/s
 	// terminal-momentum m=10000  p=2.2e+05 (energy-conserving 4.2e+06, terminal 2.17e+05) Msun km/s
 	// thermal-dump      isotropy residual below 1e-9: true

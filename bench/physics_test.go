@@ -72,14 +72,14 @@ func TestTerminalColumnFollowsKimOstriker(t *testing.T) {
 // The convergence picture of the terminal-momentum scheme. Well below the
 // shell-formation mass (coupled mass under M_sf/10, Kim & Ostriker 2015
 // from memory) the remnant is still energy conserving: the scheme hands
-// out between 85% and 100% of p_EC. It cannot exceed p_EC (each
-// neighbor's sweep-up momentum sqrt(2 m_j f e_j) sums to at most the
-// momentum of the whole swept mass, by Cauchy–Schwarz, with equality for
-// equal shares); it falls short because kernel-volume shares are unequal
-// and the far neighbors, with small shares, reach their share of the
-// terminal momentum first (measured: 0.89–0.91 on the lattice and glass).
-// Well above it (coupled mass over 10 M_sf) every neighbor is capped and
-// the total is the terminal momentum to 1e-6 (measured: round-off).
+// out the momentum of energy-conserving sweep-up of the coupled mass,
+// sqrt(2 E (M_ej + 0.28 M_sw)) with the Sedov–Taylor kinetic share
+// (Chevalier 1974, from memory), within 5% whatever the weighting (the
+// star's total is computed and shared; its sweep-up law meets the fit's
+// own shell-formation point, a kinetic share of 0.30, so it sits up to 3%
+// above the 0.28 form; measured 1.01–1.02). Well above it (coupled mass
+// over 10 M_sf) the total is the terminal momentum to 1e-6 (measured:
+// round-off) and every neighbor is flagged capped.
 func TestTerminalMomentumConvergence(t *testing.T) {
 	res := runQuick(t, "uniform-lattice", "glass")
 	below, above := 0, 0
@@ -89,8 +89,7 @@ func TestTerminalMomentumConvergence(t *testing.T) {
 		case r.CoupledMassMsun <= msf/10:
 			below++
 			ratio := r.RadialMomentumMsunKms / r.EnergyConservingMsunKm
-			assert.GreaterOrEqual(t, ratio, 0.85, "%s n=%g m=%g", r.Setup, r.DensityCm3, r.GasMassMsun)
-			assert.LessOrEqual(t, ratio, 1+1e-9, "%s n=%g m=%g", r.Setup, r.DensityCm3, r.GasMassMsun)
+			assert.InDelta(t, 1, ratio, 0.05, "%s n=%g m=%g", r.Setup, r.DensityCm3, r.GasMassMsun)
 		case r.CoupledMassMsun >= 10*msf:
 			above++
 			assert.InEpsilon(t, r.TerminalMsunKms, r.RadialMomentumMsunKms, 1e-6, "%s n=%g m=%g", r.Setup, r.DensityCm3, r.GasMassMsun)

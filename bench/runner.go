@@ -471,7 +471,7 @@ func measure(scheme string, c *Case, sources []feedback.Source, out *feedback.Ou
 			if metals >= 0 {
 				z = gas.Fractions[metals][i]
 			}
-			pt += w * TerminalFit.Remnant(SupernovaEnergyErg, n, z/feedback.SolarMetallicity).TerminalMomentum
+			pt += w * TerminalFit.Remnant(SupernovaEnergyErg, n, z).TerminalMomentum
 			kinetic += rec.Energy - rec.Heat
 			thermal += rec.Heat
 			if rec.Flags&feedback.FlagCapped != 0 {

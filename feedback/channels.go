@@ -48,17 +48,23 @@ func hydrogenDensity(rho float64, u units.CodeUnits) float64 {
 }
 
 // Winds couples continuous stellar winds (massive stars and AGB stars).
-// Neighbor j receives its share of the wind's mass and species and a radial
-// momentum: the energy-conserving momentum of the loaded mass (as for
-// supernovae, see TerminalMomentum) while that stays below the neighbor's
-// share of the terminal momentum the step's wind energy would reach
-// (Fit); otherwise the wind is radiative and the neighbor gets the larger
-// of that terminal share and its share of the wind's own momentum M v
-// (momentum-conserving coupling, v = sqrt(2 E / M) the wind speed the
-// release states), keeping no heat beyond what the kick leaves: the rest is
-// booked as radiated.
+// Neighbor j receives its share of the wind's mass and species, and the
+// wind's energy is coupled like supernovae (see TerminalMomentum): as
+// E / EventEnergy remnants of the chosen Fit, each of energy EventEnergy,
+// so that the momentum grows in proportion to the wind energy and does not
+// depend on how the wind is cut into steps. The wind's own momentum M v
+// (v = sqrt(2 E / M), the wind speed the release states) is the least it
+// delivers. While the coupled mass is below the cooling mass of those
+// remnants the wind bubble conserves energy and the neighbors keep the
+// heat the kicks leave; past it the heat falls as for a cooled remnant and
+// the rest is booked as radiated.
 type Winds struct {
 	Fit RemnantFit
+	// EventEnergy is the energy, in erg, of one remnant the wind energy is
+	// counted in; zero means one supernova's, units.FOE (1e51 erg): a
+	// wind then delivers the radiative remnant momentum per unit energy of
+	// a supernova.
+	EventEnergy float64
 }
 
 // Name is "stellar-winds".
@@ -66,22 +72,14 @@ func (Winds) Name() string { return "stellar-winds" }
 
 // Deposit implements Scheme.
 func (s Winds) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
-	src := nb.Source
-	u := nb.Units
-	eErg := src.Energy * u.EnergyErg()
-	pWind := math.Sqrt(2 * src.Mass * src.Energy) // M v with v = sqrt(2E/M)
-	for j := range nb.Momentum {
-		pec, rem, capped := nb.sweepUp(j, s.Fit, eErg)
-		nb.Momentum[j] = pec
-		nb.HeatCap[j] = math.Inf(1)
-		if !capped {
-			continue
-		}
-		w := nb.Weight[j]
-		nb.Momentum[j] = math.Max(w*rem.TerminalMomentum/u.MomentumGCmPS(), w*pWind)
-		nb.HeatCap[j] = 0
-		nb.MarkCapped()
+	ev := s.EventEnergy
+	if ev == 0 {
+		ev = units.FOE
 	}
+	if !(ev > 0) || math.IsInf(ev, 0) {
+		return 0, fmt.Errorf("stellar winds: event energy %g erg must be positive and finite", ev)
+	}
+	nb.remnantShares(s.Fit, nb.Source.Energy*nb.Units.EnergyErg()/ev)
 	return nb.CoupleRadial(out), nil
 }
 

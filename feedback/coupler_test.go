@@ -89,7 +89,7 @@ func TestTerminalMomentumUnresolved(t *testing.T) {
 		g := uniformGas(1, 400, 1e4, 1, u)
 		out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.TerminalMomentum{Fit: fit}, Neighbors: 64},
 			[]feedback.Source{supernova(1, u)})
-		want := fit.Remnant(units.FOE, 1, 0.0134/feedback.SolarMetallicity).TerminalMomentum / units.MsunKms
+		want := fit.Remnant(units.FOE, 1, 0.0134).TerminalMomentum / units.MsunKms
 		assert.InEpsilon(t, want, out.Ledger.RadialMomentum, 1e-6, "%v", fit)
 		assert.Equal(t, 1, out.Ledger.Capped)
 		assert.Greater(t, out.Ledger.Radiated, 0.5*units.FOE/u.EnergyErg(), "an unresolved remnant radiates most of its energy")

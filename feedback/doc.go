@@ -54,11 +54,14 @@
 // A Scheme decides how much of each neighbor's share becomes radial
 // momentum and how much heat it keeps: ThermalDump (all heat), Kinetic (a
 // fixed kinetic fraction), TerminalMomentum (energy-conserving sweep-up
-// while the cooling radius is resolved, capped at the terminal momentum of
+// while the cooling radius is resolved, switching at the fit's own
+// shell-formation or snowplough-onset point to the radiative momentum of
 // a published fit — Kim & Ostriker 2015 or Cioffi, McKee & Bertschinger
 // 1988 — once it is not, with the post-cooling heat of Thornton et al.
-// 1998 and the rest booked as radiated). Users write their own Scheme and
-// check it with package feedbacktest.
+// 1998 and the rest booked as radiated; the star's total is computed from
+// the coupled mass and then shared, so it does not depend on the
+// weighting, and N supernovae in a step are N remnants). Users write their
+// own Scheme and check it with package feedbacktest.
 //
 // # Frames and energy
 //

@@ -34,34 +34,55 @@ const SolarMetallicity = 0.0134
 // photoionization balance are written in.
 const MassPerHydrogen = 1 / yields.SolarHydrogen
 
-// Remnant describes a supernova remnant at the end of its energy-conserving
-// phase: the momentum it ends with once radiative (terminal momentum) and
-// the radius at which it cools (shell formation).
+// CioffiSolarMetallicity is the metal mass fraction Cioffi, McKee &
+// Bertschinger 1988 (ApJ 334, 252) mean by solar metallicity, zeta = 1:
+// they scale their cooling function with the metal abundance relative to
+// the solar abundances of their time, a metal mass fraction of about 0.02
+// (from memory), not the present-day 0.0134.
+const CioffiSolarMetallicity = 0.02
+
+// Remnant describes one supernova remnant as a fit gives it: the point at
+// which it stops conserving energy (shell formation or the onset of the
+// pressure-driven snowplough), the momentum it has there, and how its
+// momentum grows from there to the terminal momentum it ends with.
 type Remnant struct {
-	// TerminalMomentum in g cm/s.
-	TerminalMomentum float64
-	// CoolingRadius in cm.
+	// CoolingRadius in cm: the radius at which the remnant turns radiative.
 	CoolingRadius float64
+	// SwitchMass in g: the swept mass at that point.
+	SwitchMass float64
+	// SwitchMomentum in g cm/s: the fit's momentum at that point.
+	SwitchMomentum float64
+	// TerminalMomentum in g cm/s: the most momentum the remnant reaches.
+	TerminalMomentum float64
+	// GrowthExponent: past the switch, the momentum grows as the swept mass
+	// to this power until it reaches TerminalMomentum.
+	GrowthExponent float64
 }
 
-// RemnantFit gives the terminal momentum and cooling radius of a remnant of
-// energy e (erg) in gas of hydrogen number density n (cm^-3) and
-// metallicity z (in solar units).
+// RemnantFit gives a remnant of energy e (erg) in gas of hydrogen number
+// density n (cm^-3) and metal mass fraction z.
 type RemnantFit uint8
 
 const (
 	// KimOstriker2015 is the shell-formation fit of Kim & Ostriker 2015
 	// (ApJ 802, 99; from memory) for a uniform medium:
 	//   p_sf = 2.17e5 Msun km/s E51^0.93 n0^-0.13,
-	//   R_sf = 22.1 pc E51^0.29 n0^-0.42.
-	// The fit has no metallicity dependence.
+	//   R_sf = 22.1 pc E51^0.29 n0^-0.42,
+	//   M_sf = 1.54e3 Msun E51^0.87 n0^-0.26.
+	// The remnant switches at M_sf with p_sf and keeps p_sf as its terminal
+	// momentum. The fit has no metallicity dependence.
 	KimOstriker2015 RemnantFit = iota
-	// CioffiMcKeeBertschinger1988 is the pressure-driven-snowplough
-	// solution of Cioffi, McKee & Bertschinger 1988 (ApJ 334, 252; from
-	// memory, normalization to be checked against the paper):
-	//   p_t = 4.8e5 Msun km/s E51^(13/14) n0^(-1/7) zeta^(-3/14),
-	//   R_PDS = 14 pc E51^(2/7) n0^(-3/7) zeta^(-1/7),
-	// with zeta the metallicity in solar units.
+	// CioffiMcKeeBertschinger1988 is the pressure-driven snowplough of
+	// Cioffi, McKee & Bertschinger 1988 (ApJ 334, 252; from memory), with
+	// zeta = z / CioffiSolarMetallicity:
+	//   R_PDS = 14.0 pc E51^(2/7) n0^(-3/7) zeta^(-1/7),
+	//   t_PDS = 13.3 kyr E51^(3/14) n0^(-4/7) zeta^(-5/14),
+	//   p_t = 4.8e5 Msun km/s E51^(13/14) n0^(-1/7) zeta^(-3/14).
+	// The remnant switches at the onset of the snowplough, M_PDS = (4 pi /
+	// 3) rho R_PDS^3, with its momentum there, M_PDS v_PDS, v_PDS = (2/5)
+	// R_PDS / t_PDS (about 413 km/s at n0 = 1); in the snowplough their
+	// R = R_PDS (4 t / 3 t_PDS - 1/3)^(3/10) makes the momentum grow as
+	// M^(2/9), up to p_t.
 	CioffiMcKeeBertschinger1988
 )
 
@@ -91,30 +112,82 @@ func ParseRemnantFit(s string) (RemnantFit, error) {
 const metallicityFloor = 1e-3
 
 // Remnant evaluates the fit for energy e in erg, hydrogen number density n
-// in cm^-3 and metallicity zeta in solar units.
-func (f RemnantFit) Remnant(e, n, zeta float64) Remnant {
+// in cm^-3 and metal mass fraction z; the gas mass density is n
+// MassPerHydrogen m_p.
+func (f RemnantFit) Remnant(e, n, z float64) Remnant {
 	e51 := e / units.FOE
 	le, ln := math.Log(e51), math.Log(n)
+	rho := n * MassPerHydrogen * units.ProtonMass
 	switch f {
 	case CioffiMcKeeBertschinger1988:
-		lz := math.Log(math.Max(zeta, metallicityFloor))
-		return Remnant{
-			TerminalMomentum: 4.8e5 * units.MsunKms * math.Exp(13.0/14*le-1.0/7*ln-3.0/14*lz),
-			CoolingRadius:    14 * units.Parsec * math.Exp(2.0/7*le-3.0/7*ln-1.0/7*lz),
-		}
+		lz := math.Log(math.Max(z/CioffiSolarMetallicity, metallicityFloor))
+		r := 14.0 * units.Parsec * math.Exp(2.0/7*le-3.0/7*ln-1.0/7*lz)
+		t := 13.3e3 * units.JulianYear * math.Exp(3.0/14*le-4.0/7*ln-5.0/14*lz)
+		m := 4 * math.Pi / 3 * rho * r * r * r
+		ps := m * 0.4 * r / t
+		pt := 4.8e5 * units.MsunKms * math.Exp(13.0/14*le-1.0/7*ln-3.0/14*lz)
+		return Remnant{CoolingRadius: r, SwitchMass: m, SwitchMomentum: ps,
+			TerminalMomentum: math.Max(pt, ps), GrowthExponent: 2.0 / 9}
 	default:
+		p := 2.17e5 * units.MsunKms * math.Exp(0.93*le-0.13*ln)
 		return Remnant{
-			TerminalMomentum: 2.17e5 * units.MsunKms * math.Exp(0.93*le-0.13*ln),
 			CoolingRadius:    22.1 * units.Parsec * math.Exp(0.29*le-0.42*ln),
+			SwitchMass:       1.54e3 * units.SolarMass * math.Exp(0.87*le-0.26*ln),
+			SwitchMomentum:   p,
+			TerminalMomentum: p,
 		}
 	}
 }
 
 // CoolingMass is the gas mass in g inside the cooling radius for gas of
-// mass density rho (g/cm^3): the swept-up mass at which the remnant turns
-// radiative.
+// mass density rho (g/cm^3).
 func (r Remnant) CoolingMass(rho float64) float64 {
 	return 4 * math.Pi / 3 * rho * r.CoolingRadius * r.CoolingRadius * r.CoolingRadius
+}
+
+// MomentumAt is the radial momentum (g cm/s) of a remnant of energy e
+// (erg) and ejecta mass mej (g) once it has swept up the gas mass m (g),
+// and the largest fraction of e it keeps as heat, from free expansion
+// through the energy-conserving phase to the fit's switch and beyond. It
+// is continuous in m, in momentum and in heat:
+//
+//   - up to the switch mass M_s, p^2 = p_ej^2 + (p_s^2 - p_ej^2) m / M_s,
+//     with p_ej = sqrt(2 mej e) the free ejecta's momentum and p_s the
+//     fit's momentum at the switch: energy-conserving sweep-up, p^2 growing
+//     linearly with the swept mass, joined to the fit's own point (its
+//     kinetic share, p_s^2 / 2 e (M_s + mej), is 0.30 for Kim & Ostriker
+//     2015, next to the Sedov–Taylor 0.28 of Chevalier 1974). Nothing is
+//     radiated: the heat is whatever the kicks leave (keep = +Inf).
+//   - past it, p = p_s (m / M_s)^a up to the terminal momentum (a is the
+//     fit's GrowthExponent), and the heat kept is what the remnant had at
+//     the switch, 1 - p_s^2 / 2 e (M_s + mej) of e, falling as (R /
+//     R_s)^-6.5 = (m / M_s)^(-6.5/3) (Thornton et al. 1998).
+//
+// Where the free ejecta's momentum exceeds the fit's (ejecta-dominated
+// releases), the momentum never drops below p_ej.
+func (r Remnant) MomentumAt(e, mej, m float64) (p, keep float64, radiative bool) {
+	pej2 := 2 * mej * e
+	ps2 := r.SwitchMomentum * r.SwitchMomentum
+	if !(m > r.SwitchMass) {
+		frac := 0.0
+		if r.SwitchMass > 0 {
+			frac = m / r.SwitchMass
+		}
+		return math.Sqrt(pej2 + math.Max(ps2-pej2, 0)*frac), math.Inf(1), false
+	}
+	ratio := m / r.SwitchMass
+	p = r.SwitchMomentum
+	if r.GrowthExponent != 0 {
+		p = math.Min(p*math.Exp(r.GrowthExponent*math.Log(ratio)), r.TerminalMomentum)
+	}
+	p = math.Max(p, math.Sqrt(pej2))
+	ps2 = math.Max(ps2, pej2)
+	keepAtSwitch := 0.0
+	if d := 2 * e * (r.SwitchMass + mej); d > 0 {
+		keepAtSwitch = math.Max(1-ps2/d, 0)
+	}
+	keep = keepAtSwitch * math.Exp(PostCoolingThermalExponent/3*math.Log(ratio))
+	return p, keep, true
 }
 
 // FreeEjectaMomentum is sqrt(2 M E), the momentum of ejecta of mass m

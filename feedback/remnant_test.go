@@ -19,28 +19,33 @@ func TestFreeEjectaMomentum(t *testing.T) {
 
 func TestRemnantFits(t *testing.T) {
 	cases := []struct {
-		fit  RemnantFit
-		n    float64
-		zeta float64
+		fit RemnantFit
+		n   float64
+		z   float64 // metal mass fraction
 		// want in Msun km/s and pc, from the published formulas quoted in
 		// the fit's doc comment (from memory).
 		p, r float64
 	}{
 		// Kim & Ostriker 2015, ApJ 802, 99: p_sf = 2.17e5 n^-0.13,
-		// R_sf = 22.1 pc n^-0.42 for E51 = 1.
-		{KimOstriker2015, 1, 1, 2.17e5, 22.1},
-		{KimOstriker2015, 10, 1, 2.17e5 * math.Pow(10, -0.13), 22.1 * math.Pow(10, -0.42)},
-		{KimOstriker2015, 100, 1, 2.17e5 * math.Pow(100, -0.13), 22.1 * math.Pow(100, -0.42)},
+		// R_sf = 22.1 pc n^-0.42 for E51 = 1, whatever the metallicity.
+		{KimOstriker2015, 1, 0.0134, 2.17e5, 22.1},
+		{KimOstriker2015, 10, 0.02, 2.17e5 * math.Pow(10, -0.13), 22.1 * math.Pow(10, -0.42)},
+		{KimOstriker2015, 100, 0.001, 2.17e5 * math.Pow(100, -0.13), 22.1 * math.Pow(100, -0.42)},
 		// Cioffi, McKee & Bertschinger 1988, ApJ 334, 252 (from memory):
-		// p_t = 4.8e5 n^(-1/7) zeta^(-3/14), R_PDS = 14 pc n^(-3/7) zeta^(-1/7).
-		{CioffiMcKeeBertschinger1988, 1, 1, 4.8e5, 14},
-		{CioffiMcKeeBertschinger1988, 10, 1, 4.8e5 * math.Pow(10, -1.0/7), 14 * math.Pow(10, -3.0/7)},
-		{CioffiMcKeeBertschinger1988, 100, 0.1, 4.8e5 * math.Pow(100, -1.0/7) * math.Pow(0.1, -3.0/14), 14 * math.Pow(100, -3.0/7) * math.Pow(0.1, -1.0/7)},
+		// p_t = 4.8e5 n^(-1/7) zeta^(-3/14), R_PDS = 14 pc n^(-3/7)
+		// zeta^(-1/7), zeta in units of their solar metallicity, a metal mass
+		// fraction of 0.02 (from memory).
+		{CioffiMcKeeBertschinger1988, 1, 0.02, 4.8e5, 14},
+		{CioffiMcKeeBertschinger1988, 10, 0.02, 4.8e5 * math.Pow(10, -1.0/7), 14 * math.Pow(10, -3.0/7)},
+		{CioffiMcKeeBertschinger1988, 100, 0.002, 4.8e5 * math.Pow(100, -1.0/7) * math.Pow(0.1, -3.0/14), 14 * math.Pow(100, -3.0/7) * math.Pow(0.1, -1.0/7)},
+		// Present-day solar gas, Z = 0.0134 (Asplund et al. 2009), is
+		// zeta = 0.67 in their units.
+		{CioffiMcKeeBertschinger1988, 1, 0.0134, 4.8e5 * math.Pow(0.67, -3.0/14), 14 * math.Pow(0.67, -1.0/7)},
 	}
 	for _, c := range cases {
-		rem := c.fit.Remnant(units.FOE, c.n, c.zeta)
-		assert.InEpsilon(t, c.p, rem.TerminalMomentum/units.MsunKms, 1e-12, "%v n=%g", c.fit, c.n)
-		assert.InEpsilon(t, c.r, rem.CoolingRadius/units.Parsec, 1e-12, "%v n=%g", c.fit, c.n)
+		rem := c.fit.Remnant(units.FOE, c.n, c.z)
+		assert.InEpsilon(t, c.p, rem.TerminalMomentum/units.MsunKms, 1e-12, "%v n=%g z=%g", c.fit, c.n, c.z)
+		assert.InEpsilon(t, c.r, rem.CoolingRadius/units.Parsec, 1e-12, "%v n=%g z=%g", c.fit, c.n, c.z)
 	}
 	// The fits at n = 1, 10, 100 as numbers (Kim & Ostriker 2015 table of
 	// the fit, from memory: 2.17e5, 1.61e5, 1.20e5 Msun km/s).
@@ -97,4 +102,71 @@ func TestSchemeByName(t *testing.T) {
 	assert.Equal(t, TerminalMomentum{Fit: CioffiMcKeeBertschinger1988}, s)
 	_, err = SchemeByName("nonsense", SchemeOptions{})
 	assert.ErrorContains(t, err, "terminal-momentum")
+}
+
+func TestFitsSwitchAtTheirOwnPoint(t *testing.T) {
+	for _, n := range []float64{0.1, 1, 10, 100} {
+		rho := n * MassPerHydrogen * units.ProtonMass
+		// Kim & Ostriker 2015 (ApJ 802, 99; from memory): the remnant turns
+		// radiative at M_sf = 1.54e3 Msun n^-0.26 with p_sf; their mass and
+		// radius fits agree with each other, (4 pi/3) rho R_sf^3 = M_sf,
+		// within a few per cent.
+		ko := KimOstriker2015.Remnant(units.FOE, n, 0.0134)
+		assert.InEpsilon(t, 1.54e3*math.Pow(n, -0.26), ko.SwitchMass/units.SolarMass, 1e-12, "n=%g", n)
+		assert.InEpsilon(t, ko.SwitchMass, ko.CoolingMass(rho), 0.05, "n=%g", n)
+		assert.InEpsilon(t, 2.17e5*math.Pow(n, -0.13), ko.SwitchMomentum/units.MsunKms, 1e-12, "n=%g", n)
+		assert.Equal(t, ko.SwitchMomentum, ko.TerminalMomentum)
+
+		// Cioffi, McKee & Bertschinger 1988 (ApJ 334, 252; from memory):
+		// the snowplough begins at R_PDS with the shell moving at v_PDS =
+		// 413 km/s n^(1/7) zeta^(3/14); with the mass inside R_PDS that is
+		// the momentum at the switch.
+		for _, zeta := range []float64{0.1, 1} {
+			c := CioffiMcKeeBertschinger1988.Remnant(units.FOE, n, zeta*CioffiSolarMetallicity)
+			assert.InEpsilon(t, c.CoolingMass(rho), c.SwitchMass, 1e-12)
+			v := c.SwitchMomentum / c.SwitchMass / units.Kilometre
+			assert.InEpsilon(t, 413*math.Pow(n, 1.0/7)*math.Pow(zeta, 3.0/14), v, 0.01, "n=%g zeta=%g", n, zeta)
+			assert.Greater(t, c.TerminalMomentum, c.SwitchMomentum)
+		}
+	}
+}
+
+func TestMomentumLawIsContinuousAtTheSwitch(t *testing.T) {
+	// Just below the switch the remnant conserves energy and keeps as heat
+	// what the kinetic energy p^2 / 2 (m + M_ej) leaves; just above it, the
+	// law's momentum and kept heat must be the same (continuity, by
+	// derivation), for both fits, for a supernova and for an
+	// ejecta-dominated release.
+	for _, fit := range []RemnantFit{KimOstriker2015, CioffiMcKeeBertschinger1988} {
+		for _, c := range []struct{ e, mej, n float64 }{
+			{units.FOE, 10 * units.SolarMass, 1},
+			{units.FOE, 3 * units.SolarMass, 100},
+			{1e49, 50 * units.SolarMass, 1}, // a wind-like release
+		} {
+			rem := fit.Remnant(c.e, c.n, 0.0134)
+			ms := rem.SwitchMass
+			pb, kb, radb := rem.MomentumAt(c.e, c.mej, ms*(1-1e-9))
+			pa, ka, rada := rem.MomentumAt(c.e, c.mej, ms*(1+1e-9))
+			require.False(t, radb)
+			require.True(t, rada)
+			assert.InEpsilon(t, pb, pa, 1e-6, "%v momentum", fit)
+			heatBelow := 1 - pb*pb/(2*c.e*(ms+c.mej))
+			assert.InDelta(t, heatBelow, ka, 1e-6, "%v heat", fit)
+			assert.True(t, math.IsInf(kb, 1))
+			// The free ejecta's momentum at zero swept mass.
+			p0, _, _ := rem.MomentumAt(c.e, c.mej, 0)
+			assert.InEpsilon(t, math.Sqrt(2*c.e*c.mej), p0, 1e-12)
+		}
+	}
+	// Past the switch the snowplough of Cioffi et al. 1988 grows as
+	// M^(2/9) (their R = R_PDS (4t/3t_PDS - 1/3)^(3/10), derivation) up to
+	// the terminal momentum, and the heat kept falls as (R/R_s)^-6.5
+	// (Thornton et al. 1998, from memory).
+	c := CioffiMcKeeBertschinger1988.Remnant(units.FOE, 1, 0.02)
+	p8, k8, _ := c.MomentumAt(units.FOE, 10*units.SolarMass, 8*c.SwitchMass)
+	p1, k1, _ := c.MomentumAt(units.FOE, 10*units.SolarMass, c.SwitchMass*(1+1e-12))
+	assert.InEpsilon(t, math.Pow(8, 2.0/9), p8/p1, 1e-9)
+	assert.InEpsilon(t, math.Pow(2, -6.5), k8/k1, 1e-9)
+	pInf, _, _ := c.MomentumAt(units.FOE, 10*units.SolarMass, 1e6*c.SwitchMass)
+	assert.InEpsilon(t, c.TerminalMomentum, pInf, 1e-12)
 }

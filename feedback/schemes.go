@@ -60,87 +60,165 @@ func (s Kinetic) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
 }
 
 // TerminalMomentum couples the momentum a remnant really delivers whether
-// or not the host resolves its cooling radius.
+// or not the host resolves its cooling radius. It follows the
+// vector-weighted coupling of Hopkins et al. 2018 (MNRAS 477, 1578, "How
+// to model supernovae in simulations of star and galaxy formation"):
+// mass, metals and energy are shared with weights whose unit directions
+// balance (here the isotropy correction), and the momentum is that of
+// energy-conserving sweep-up of the coupled mass while the host resolves
+// the remnant's cooling, and the terminal momentum of a radiative remnant
+// once the coupled mass exceeds the cooling mass.
 //
-// Neighbor j, of mass m_j, receives ejecta dm_j = w_j M and energy share
-// e_j = w_j E (w_j its isotropy-corrected weight). While the cooling radius
-// is resolved, it gets the momentum of energy-conserving sweep-up,
+// The momentum is computed for the star as a whole and then shared, so
+// that it does not depend on the weighting: summing each neighbor's own
+// sweep-up momentum sqrt(2 f (m_j + dm_j) e_j) gives the momentum of the
+// coupled mass only when the energy shares e_j follow the masses (by
+// Cauchy–Schwarz it falls short otherwise, by a third with kernel-volume
+// weights). The star's N events (Source.Events; at least one) are N
+// remnants of energy E/N and ejecta M/N, each sweeping an equal part
+// M_c/N of the coupled mass M_c = sum_j m_j, and the total radial momentum
+// is N p_1(M_c/N), with p_1 the chosen Fit's momentum law
+// (Remnant.MomentumAt, evaluated with the fit's quantities averaged over
+// the neighbors by weight, each at its own density and metallicity). In
+// the energy-conserving phase this equals the momentum of one blast of
+// the summed energy, sqrt(2 E (M + f M_c)); once radiative it is N times
+// the single-event momentum, so that correlated supernovae each deliver
+// nearly the single-supernova momentum (Kim & Ostriker 2015, ApJ 802,
+// 99), and the momentum of a population does not depend on how many steps
+// its supernovae are spread over wherever the coupled mass exceeds the
+// cooling mass of each step's events (M_c > N M_s).
 //
-//	p_j = sqrt(2 (m_j + dm_j) f_K e_j),  f_K = (dm_j + 0.28 m_j) / (dm_j + m_j),
-//
-// which grows as the square root of the mass loaded: f_K interpolates (our
-// own choice) between free expansion, where the ejecta carry all the energy
-// as kinetic energy and p_j = w_j sqrt(2 M E), and the Sedov–Taylor phase,
-// where 28% of the energy is kinetic (Chevalier 1974). Once the loaded
-// mass passes the cooling mass, p_j exceeds the neighbor's share of the
-// terminal momentum, w_j p_t(E, n_j, Z_j), from the chosen Fit at the
-// neighbor's own hydrogen density and metallicity, and is capped there.
-// A capped neighbor keeps only the heat of a cooled remnant: the
-// Sedov–Taylor thermal share 0.72 e_j scaled by (R_j / R_cool)^-6.5 (Thornton
-// et al. 1998), with R_j the radius of a sphere of the neighbor's density
-// holding (m_j + dm_j) / w_j, the mass the whole remnant would have swept at
-// this neighbor's loading. The rest of its energy share is booked as
-// radiated. Several simultaneous supernovae from one star are treated as one
-// remnant of their summed energy (common practice).
+// The total is shared as p_j proportional to sqrt((m_j + dm_j) e_j), which
+// gives every neighbor the same kinetic fraction of its energy share and
+// reduces to mass-proportional momenta when the shares follow the masses;
+// with unequal shares that fraction, and so the kinetic energy handed out,
+// is larger than for equal shares (the price of delivering the full
+// momentum), and the heat is the rest. Once radiative, each neighbor keeps
+// at most the heat the law allows (the remnant's heat at the switch,
+// falling as (R/R_s)^-6.5, Thornton et al. 1998) and the rest of its
+// energy share is booked as radiated. Momentum and heat are continuous in
+// the coupled mass across the switch.
 type TerminalMomentum struct {
-	// Fit is the terminal momentum and cooling radius fit.
+	// Fit is the remnant fit.
 	Fit RemnantFit
 }
 
 // Name is "terminal-momentum".
 func (TerminalMomentum) Name() string { return "terminal-momentum" }
 
-// sweepUp is neighbor j's energy-conserving momentum (the loaded mass
-// m_j + dm_j taking the kinetic share f_K of its energy share), the remnant
-// of the release's energy eErg (erg) in the neighbor's gas, and whether
-// that momentum exceeds the neighbor's share of the terminal momentum.
-func (nb *Neighborhood) sweepUp(j int, fit RemnantFit, eErg float64) (float64, Remnant, bool) {
-	src := nb.Source
-	w := nb.Weight[j]
-	m, dm := nb.Mass[j], w*src.Mass
-	mt := m + dm
-	fk := (dm + SedovKineticFraction*m) / mt
-	pec := math.Sqrt(2 * mt * fk * nb.EnergyWeight[j] * src.Energy)
-	if eErg <= 0 || w <= 0 {
-		return pec, Remnant{}, false
-	}
-	rem := fit.Remnant(eErg, hydrogenDensity(nb.Density[j], nb.Units), nb.Metallicity[j]/SolarMetallicity)
-	return pec, rem, pec > w*rem.TerminalMomentum/nb.Units.MomentumGCmPS()
-}
-
 // Deposit implements Scheme.
 func (s TerminalMomentum) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
-	src := nb.Source
-	u := nb.Units
-	eErg := src.Energy * u.EnergyErg()
-	rhoUnit := u.DensityGCm3()
-	pUnit := u.MomentumGCmPS()
-	mUnit := u.MassG
-	for j := range nb.Momentum {
-		w := nb.Weight[j]
-		e := nb.EnergyWeight[j] * src.Energy
-		pec, rem, capped := nb.sweepUp(j, s.Fit, eErg)
-		nb.HeatCap[j] = math.Inf(1)
-		nb.Momentum[j] = pec
-		if !capped {
-			continue
-		}
-		nb.Momentum[j] = w * rem.TerminalMomentum / pUnit
-		nb.MarkCapped()
-		// (R_j / R_cool)^-6.5 with R_j^3 / R_cool^3 = swept / cooling mass.
-		swept := (nb.Mass[j] + w*src.Mass) / w * mUnit
-		ratio := swept / rem.CoolingMass(nb.Density[j]*rhoUnit)
-		keep := SedovThermalFraction
-		if ratio > 1 {
-			keep *= math.Exp(PostCoolingThermalExponent / 3 * math.Log(ratio))
-		}
-		nb.HeatCap[j] = keep * e
-	}
+	nb.remnantShares(s.Fit, math.Max(nb.Source.Events, 1))
 	rad := nb.CoupleRadial(out)
-	for j := range out {
-		if nb.HeatCap[j] < math.Inf(1) {
+	if nb.capped {
+		for j := range out {
 			out[j].Flags |= FlagCapped
 		}
 	}
 	return rad, nil
+}
+
+// remnantShares fills nb.Momentum and nb.HeatCap for the source's energy
+// coupled as events remnants of the fit (see TerminalMomentum), and marks
+// the star capped when they are radiative.
+func (nb *Neighborhood) remnantShares(fit RemnantFit, events float64) {
+	src := nb.Source
+	u := nb.Units
+	for j := range nb.Momentum {
+		nb.Momentum[j] = 0
+		nb.HeatCap[j] = math.Inf(1)
+	}
+	if !(src.Energy > 0) || !(events > 0) {
+		return
+	}
+	e1 := src.Energy / events * u.EnergyErg() // erg per event
+	var avg Remnant
+	mc := 0.0
+	for j, w := range nb.Weight {
+		mc += nb.Mass[j]
+		if w == 0 {
+			continue
+		}
+		r := fit.Remnant(e1, hydrogenDensity(nb.Density[j], u), nb.Metallicity[j])
+		avg.CoolingRadius += w * r.CoolingRadius
+		avg.SwitchMass += w * r.SwitchMass
+		avg.SwitchMomentum += w * r.SwitchMomentum
+		avg.TerminalMomentum += w * r.TerminalMomentum
+		avg.GrowthExponent = r.GrowthExponent
+	}
+	p1, keep, radiative := avg.MomentumAt(e1, src.Mass/events*u.MassG, mc/events*u.MassG)
+	p := events * p1 / u.MomentumGCmPS()
+	nb.shareEnergyForMomentum(p)
+	sum := 0.0
+	for j := range nb.Momentum {
+		sj := math.Sqrt((nb.Mass[j] + nb.Weight[j]*src.Mass) * nb.EnergyWeight[j])
+		nb.Momentum[j] = sj
+		sum += sj
+	}
+	if !(sum > 0) {
+		return
+	}
+	for j := range nb.Momentum {
+		nb.Momentum[j] *= p / sum
+		if radiative {
+			nb.HeatCap[j] = keep * nb.EnergyWeight[j] * src.Energy
+		}
+	}
+	if radiative {
+		nb.MarkCapped()
+	}
+}
+
+// maxKineticShare is the largest kinetic fraction of its energy share the
+// remnant momentum may ask of a neighbor before the energy shares are
+// moved toward the masses; the margin leaves room for the isotropy
+// correction, which changes the momenta a little (our choice).
+const maxKineticShare = 0.9
+
+// shareEnergyForMomentum makes sure the energy shares can pay for the
+// radial momentum p (code units) shared as p_j proportional to
+// sqrt(mt_j e_j), mt_j = m_j + dm_j: that sharing asks every neighbor for
+// the kinetic fraction c^2 = p^2 / (2 E (sum_j sqrt(mt_j e_j))^2) of its
+// share e_j, which is smallest, p^2 / 2 E M_t, when the shares follow the
+// loaded masses and grows as they depart from them. When c^2 would exceed
+// maxKineticShare, the energy shares are moved toward the mass shares,
+// e_j = (1 - l) w_j + l mt_j / M_t, by the least l that brings it back
+// (bisection; the sum is concave in l, so the kinetic fraction falls
+// monotonically), or all the way when even mass shares cannot.
+func (nb *Neighborhood) shareEnergyForMomentum(p float64) {
+	src := nb.Source
+	mt := 0.0
+	for j := range nb.Mass {
+		mt += nb.Mass[j] + nb.Weight[j]*src.Mass
+	}
+	if !(p > 0) || !(mt > 0) || !(src.Energy > 0) {
+		return
+	}
+	need := p * p / (2 * src.Energy * mt) // the kinetic fraction with mass shares
+	eta2 := func(l float64) float64 {
+		s := 0.0
+		for j := range nb.Mass {
+			m := nb.Mass[j] + nb.Weight[j]*src.Mass
+			s += math.Sqrt(m * ((1-l)*nb.EnergyWeight[j] + l*m/mt))
+		}
+		return s * s / mt
+	}
+	if need <= maxKineticShare*eta2(0) {
+		return
+	}
+	lo, hi := 0.0, 1.0
+	if need < maxKineticShare {
+		for it := 0; it < 40; it++ {
+			mid := 0.5 * (lo + hi)
+			if need > maxKineticShare*eta2(mid) {
+				lo = mid
+			} else {
+				hi = mid
+			}
+		}
+	}
+	for j := range nb.EnergyWeight {
+		m := nb.Mass[j] + nb.Weight[j]*src.Mass
+		nb.EnergyWeight[j] = (1-hi)*nb.EnergyWeight[j] + hi*m/mt
+	}
 }
