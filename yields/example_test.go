@@ -2,6 +2,7 @@ package yields_test
 
 import (
 	"fmt"
+	"math"
 	"strings"
 
 	"github.com/ejecta-dev/ejecta/yields"
@@ -64,4 +65,38 @@ func ExamplePoisson() {
 	fmt.Println(n == yields.Poisson(&again, expected))
 	// Output:
 	// true
+}
+
+// The light of a young Kroupa population at solar metallicity: bolometric,
+// hydrogen-ionizing photons and far ultraviolet (6–13.6 eV), per Msun
+// formed, and the far-ultraviolet energy of its first Myr.
+func ExamplePopulation_FarUltravioletLuminosity() {
+	pop, err := yields.NewPopulation(yields.DefaultConfig())
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	l, _ := pop.Luminosity(1, 0.0134)
+	q, _ := pop.IonizingRate(1, 0.0134)
+	fuv, _ := pop.FarUltravioletLuminosity(1, 0.0134)
+	fmt.Printf("L = %.0f Lsun, Q = %.2e /s, L_FUV = %.0f Lsun per Msun\n", l, q, fuv)
+	r, _ := pop.Release(0, 1, 0.0134)
+	fmt.Printf("far-ultraviolet energy in the first Myr: %.2e erg per Msun\n", r.FarUltravioletEnergy)
+	// Output:
+	// L = 829 Lsun, Q = 4.56e+46 /s, L_FUV = 350 Lsun per Msun
+	// far-ultraviolet energy in the first Myr: 4.23e+49 erg per Msun
+}
+
+// A 40 Msun star on the zero-age main sequence at Z = 0.02 (Tout et al.
+// 1996 fits) and the photons of a blackbody at its effective temperature.
+func ExampleZAMS() {
+	ms, err := yields.NewZAMS(0.02)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Printf("log L = %.2f, R = %.1f Rsun, Teff = %.0f K, log Q = %.2f\n",
+		math.Log10(ms.Luminosity(40)), ms.Radius(40), ms.EffectiveTemperature(40), math.Log10(ms.IonizingRate(40)))
+	// Output:
+	// log L = 5.35, R = 9.3 Rsun, Teff = 41246 K, log Q = 49.10
 }

@@ -223,28 +223,35 @@ func (p *Population) buildTables() error {
 		if err != nil {
 			return err
 		}
-		// Integrands, per unit mass: the light of the living stars (a rate),
-		// the light of stars that have died (emitted over their whole life)
-		// and the wind rate of living massive stars.
-		alive := func(m float64) starLight { return ms.light(m).scale(p.imf.Density(m)) }
-		dead := func(m float64) starLight { return ms.light(m).scale(lt.Lifetime(m) * p.imf.Density(m)) }
-		aliveW := func(m float64) starLight {
-			if m < wlo {
-				return starLight{}
+		// Integrands, per unit mass, sharing one evaluation of a star's
+		// light: the light of the living stars (a rate), the light of stars
+		// that have died (emitted over their whole life) and the wind rate
+		// of living massive stars.
+		terms := func(m float64) tableTerms {
+			f := p.imf.Density(m)
+			tau := lt.Lifetime(m)
+			l := ms.light(m)
+			t := tableTerms{alive: l.scale(f), dead: l.scale(tau * f)}
+			if m >= wlo {
+				t.wind = p.windTo * m * (m - p.remnant(m)) / tau * f
 			}
-			return starLight{p.windTo * m * (m - p.remnant(m)) / lt.Lifetime(m) * p.imf.Density(m), 0, 0}
+			return t
 		}
 		edges := p.edges(lt.VertexMass(), wlo)
 		ne := len(edges) - 1 // sub-intervals
 		sufD := make([]starLight, ne+1)
 		preA := make([]starLight, ne+1)
 		preW := make([]float64, ne+1)
+		full := make([]tableTerms, ne)
+		for j := range full {
+			full[j] = integrateLogMass(p.gx, p.gw, terms, edges[j], edges[j+1])
+		}
 		for j := ne - 1; j >= 0; j-- {
-			sufD[j] = sufD[j+1].add(p.gl(dead, edges[j], edges[j+1]))
+			sufD[j] = sufD[j+1].add(full[j].dead)
 		}
 		for j := 0; j < ne; j++ {
-			preA[j+1] = preA[j].add(p.gl(alive, edges[j], edges[j+1]))
-			preW[j+1] = preW[j] + p.gl(aliveW, edges[j], edges[j+1]).lum
+			preA[j+1] = preA[j].add(full[j].alive)
+			preW[j+1] = preW[j] + full[j].wind
 		}
 		for it, t := range p.tabT {
 			x := math.Min(lt.TurnoffMass(t), hi)
@@ -260,9 +267,13 @@ func (p *Population) buildTables() error {
 				if edges[j] == x {
 					d, a, aW = sufD[j], preA[j], preW[j]
 				} else {
-					d = p.gl(dead, x, edges[j]).add(sufD[j])
-					a = preA[j-1].add(p.gl(alive, edges[j-1], x))
-					aW = preW[j-1] + p.gl(aliveW, edges[j-1], x).lum
+					// The stars in (x, edges[j]] have died; the living ones
+					// of the cell are the cell minus them.
+					part := integrateLogMass(p.gx, p.gw, terms, x, edges[j])
+					d = part.dead.add(sufD[j])
+					a = preA[j].add(part.alive.scale(-1))
+					a = starLight{math.Max(a.lum, 0), math.Max(a.ionizing, 0), math.Max(a.fuv, 0)}
+					aW = math.Max(preW[j]-part.wind, 0)
 				}
 			}
 			// The rates are the light of the living stars and the wind of the
@@ -291,18 +302,33 @@ func (p *Population) buildTables() error {
 	return nil
 }
 
-// gl integrates g over [a, b] in ln m with the Gauss–Legendre rule; [a, b]
-// lies inside one smooth piece of g.
-func (p *Population) gl(g func(float64) starLight, a, b float64) starLight {
+// tableTerms are the integrands over mass of the light and wind tables.
+type tableTerms struct {
+	alive, dead starLight
+	wind        float64
+}
+
+func (a tableTerms) add(b tableTerms) tableTerms {
+	return tableTerms{a.alive.add(b.alive), a.dead.add(b.dead), a.wind + b.wind}
+}
+
+func (a tableTerms) scale(f float64) tableTerms {
+	return tableTerms{a.alive.scale(f), a.dead.scale(f), a.wind * f}
+}
+
+// integrateLogMass integrates g over [a, b] in ln m with the Gauss–Legendre
+// nodes gx and weights gw on [−1, 1]; [a, b] lies inside one smooth piece
+// of g.
+func integrateLogMass(gx, gw []float64, g func(float64) tableTerms, a, b float64) tableTerms {
+	var s tableTerms
 	if !(a < b) {
-		return starLight{}
+		return s
 	}
 	la, lb := math.Log(a), math.Log(b)
 	h := (lb - la) / 2
-	var s starLight
-	for j, x := range p.gx {
+	for j, x := range gx {
 		m := math.Exp(la + h*(x+1))
-		s = s.add(g(m).scale(h * p.gw[j] * m))
+		s = s.add(g(m).scale(h * gw[j] * m))
 	}
 	return s
 }
@@ -668,10 +694,10 @@ func (p *Population) lightAt(age, z float64) (starLight, error) {
 		return starLight{}, err
 	}
 	x := math.Min(life.TurnoffMass(age), p.imf.MaxMass())
-	alive := func(m float64) starLight { return ms.light(m).scale(p.imf.Density(m)) }
-	var s starLight
+	alive := func(m float64) tableTerms { return tableTerms{alive: ms.light(m).scale(p.imf.Density(m))} }
+	var s tableTerms
 	for j := 0; j+1 < len(p.lightEdges) && p.lightEdges[j] < x; j++ {
-		s = s.add(p.gl(alive, p.lightEdges[j], math.Min(x, p.lightEdges[j+1])))
+		s = s.add(integrateLogMass(p.gx, p.gw, alive, p.lightEdges[j], math.Min(x, p.lightEdges[j+1])))
 	}
-	return s, nil
+	return s.alive, nil
 }
