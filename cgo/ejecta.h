@@ -119,8 +119,14 @@ extern "C" {
 #define EJECTA_INT32 4
 
 /* Species codes: index into every species_mass array, and values for the
- * species list of ejecta_gas. EJECTA_SPECIES_METALS is the total metal mass
- * (everything heavier than helium). */
+ * species list of ejecta_gas. EJECTA_SPECIES_METALS (0) is always the
+ * total metal mass (everything heavier than helium); codes 1, 2, ... are
+ * the elements of the context's species set, in its order. Which elements
+ * are tracked is the host's choice (ejecta_choose_species, up to
+ * EJECTA_NUM_SPECIES - 1 elements by chemical symbol); the codes below are
+ * those of the default set, H, He, C, N, O, Ne, Mg, Si, S, Ca, Fe: the
+ * elements that dominate radiative cooling (Wiersma, Schaye & Smith 2009,
+ * MNRAS 393, 99). ejecta_species_symbol names the codes of any set. */
 #define EJECTA_SPECIES_METALS 0
 #define EJECTA_SPECIES_HYDROGEN 1
 #define EJECTA_SPECIES_HELIUM 2
@@ -133,7 +139,7 @@ extern "C" {
 #define EJECTA_SPECIES_SULFUR 9
 #define EJECTA_SPECIES_CALCIUM 10
 #define EJECTA_SPECIES_IRON 11
-#define EJECTA_NUM_SPECIES 12
+#define EJECTA_NUM_SPECIES 12 /* the room in every species_mass array */
 
 /* Release channels (ejecta_star.channel, ejecta_record.channel). */
 #define EJECTA_CHANNEL_CORE_COLLAPSE 0
@@ -726,6 +732,35 @@ int ejecta_step_population(ejecta_context context,
 int ejecta_copy_star_results(ejecta_context context,
                              ejecta_star_result *results, int64_t capacity,
                              int64_t *written);
+
+/* ejecta_choose_species sets which elements the context tracks: elements
+ * is a NUL-terminated, comma-separated list of chemical symbols (case
+ * ignored), e.g. "Fe,O", given the species codes 1, 2, ... in that order
+ * (code 0 stays the total metals); NULL or "" restores the default set.
+ * Every species_mass array, record and gas species code of the context is
+ * then laid out by that set, and a population releases in it (the built-in
+ * population has yields for the default set's elements; a yields table
+ * must carry every element chosen). Call it after ejecta_create and before
+ * ejecta_bind_gas and ejecta_enable_population.
+ * Errors: EJECTA_ERR_INVALID_CONTEXT, EJECTA_ERR_INVALID_ARGUMENT (an
+ * unknown symbol, an element named twice, an empty entry, more than
+ * EJECTA_NUM_SPECIES - 1 elements, "Z" listed, no NUL within 1024 bytes,
+ * gas already bound or a population enabled). Nothing changes on error. */
+int ejecta_choose_species(ejecta_context context, const char *elements);
+
+/* ejecta_species_count writes to *count the number of species codes of
+ * the context's set: 1 (the total metals) plus its elements.
+ * Errors: EJECTA_ERR_NULL_POINTER, EJECTA_ERR_INVALID_CONTEXT. */
+int ejecta_species_count(ejecta_context context, int32_t *count);
+
+/* ejecta_species_symbol writes the symbol of species code (0 ..
+ * count - 1) of the context's set, NUL-terminated: "Z" for the total
+ * metals, else the element's chemical symbol.
+ * Errors: EJECTA_ERR_INVALID_CONTEXT, EJECTA_ERR_INVALID_ARGUMENT (code
+ * outside the set, capacity < 0), EJECTA_ERR_NULL_POINTER (buffer NULL
+ * with capacity > 0), EJECTA_ERR_BUFFER_TOO_SMALL (truncated). */
+int ejecta_species_symbol(ejecta_context context, int32_t code, char *buffer,
+                          int64_t capacity);
 
 /* ejecta_suggested_step writes to *dt a smaller step (code time) when, in
  * the last population step, some star expected more supernovae than

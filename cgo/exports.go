@@ -124,3 +124,18 @@ func ejecta_suggested_step(context C.ejecta_context, dt *C.double) C.int {
 func ejecta_get_channel_ledger(context C.ejecta_context, channel C.int32_t, ledger *C.ejecta_ledger) C.int {
 	return C.int(entryGetChannelLedger(uint64(context), int32(channel), (*ledgerABI)(unsafe.Pointer(ledger))))
 }
+
+//export ejecta_choose_species
+func ejecta_choose_species(context C.ejecta_context, elements *C.char) C.int {
+	return C.int(entryChooseSpecies(uint64(context), (*byte)(unsafe.Pointer(elements))))
+}
+
+//export ejecta_species_count
+func ejecta_species_count(context C.ejecta_context, count *C.int32_t) C.int {
+	return C.int(entrySpeciesCount(uint64(context), (*int32)(unsafe.Pointer(count))))
+}
+
+//export ejecta_species_symbol
+func ejecta_species_symbol(context C.ejecta_context, code C.int32_t, buffer *C.char, capacity C.int64_t) C.int {
+	return C.int(entrySpeciesSymbol(uint64(context), int32(code), (*byte)(unsafe.Pointer(buffer)), int64(capacity)))
+}

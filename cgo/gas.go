@@ -152,10 +152,11 @@ func (s *session) bind(g *gasABI) error {
 		fields := unsafe.Slice(g.SpeciesFraction, k)
 		for i := 0; i < k; i++ {
 			sp := yields.Species(codes[i])
-			if sp < 0 || sp >= yields.NumSpecies {
-				return fail(codeInvalidArgument, "gas species[%d] = %d is not a species code", i, codes[i])
+			if sp < 0 || int(sp) >= s.cfg.Species.Slots() {
+				return fail(codeInvalidArgument, "gas species[%d] = %d is not a species code of the set %s (0..%d)",
+					i, codes[i], s.cfg.Species, s.cfg.Species.Slots()-1)
 			}
-			c, err := column("species_fraction["+sp.Symbol()+"]", &fields[i], n, true)
+			c, err := column("species_fraction["+s.cfg.Species.Symbol(sp)+"]", &fields[i], n, true)
 			if err != nil {
 				return err
 			}

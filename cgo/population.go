@@ -107,7 +107,7 @@ func switchOn(name string, v int32) (bool, error) {
 
 // populationModel builds the yields model a population config names: the
 // table at its path, else the built-in population with its IMF.
-func populationModel(c *populationConfigABI) (yields.Model, error) {
+func populationModel(c *populationConfigABI, species yields.SpeciesSet) (yields.Model, error) {
 	imfName, err := cName("imf", &c.IMF)
 	if err != nil {
 		return nil, fmt.Errorf("population: %w", err)
@@ -142,8 +142,9 @@ func populationModel(c *populationConfigABI) (yields.Model, error) {
 		if err != nil {
 			return nil, fail(codeYieldsTable, "population yields_table: %w", err)
 		}
-		return t, nil
+		return layoutModel(t, species)
 	}
+	ycfg.Species = species
 	p, err := yields.NewPopulation(ycfg)
 	if err != nil {
 		return nil, fail(codeInvalidArgument, "population: %w", err)
@@ -176,7 +177,7 @@ func (s *session) enablePopulation(c *populationConfigABI) error {
 	if err != nil {
 		return err
 	}
-	model, err := populationModel(c)
+	model, err := populationModel(c, s.cfg.Species)
 	if err != nil {
 		return err
 	}

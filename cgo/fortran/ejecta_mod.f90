@@ -136,7 +136,8 @@ module ejecta_mod
   end type ejecta_star_result
 
   public :: ejecta_population_defaults, ejecta_enable_population, ejecta_step_population, &
-       ejecta_copy_star_results, ejecta_suggested_step, ejecta_get_channel_ledger, ejecta_c_string
+       ejecta_copy_star_results, ejecta_suggested_step, ejecta_get_channel_ledger, ejecta_c_string, &
+       ejecta_choose_species, ejecta_species_count, ejecta_species_symbol
   public :: ejecta_version, ejecta_config_defaults, ejecta_create, ejecta_destroy, &
        ejecta_last_error, ejecta_bind_gas, ejecta_step, ejecta_record_count, ejecta_copy_undeposited, &
        ejecta_copy_records, ejecta_get_ledger, ejecta_apply_step_records, &
@@ -291,6 +292,29 @@ module ejecta_mod
        integer(c_int64_t), value :: capacity
        integer(c_int64_t), intent(out) :: written
      end function ejecta_copy_star_results
+
+     ! Which elements the context tracks: a NUL-terminated, comma-separated
+     ! list of chemical symbols (e.g. ejecta_c_string('Fe,O')); species codes
+     ! 1, 2, ... in that order, 0 the total metals. Before ejecta_bind_gas.
+     integer(c_int) function ejecta_choose_species(context, elements) bind(c, name='ejecta_choose_species')
+       import :: c_int, c_int64_t, c_char
+       integer(c_int64_t), value :: context
+       character(kind=c_char), intent(in) :: elements(*)
+     end function ejecta_choose_species
+
+     integer(c_int) function ejecta_species_count(context, count) bind(c, name='ejecta_species_count')
+       import :: c_int, c_int64_t, c_int32_t
+       integer(c_int64_t), value :: context
+       integer(c_int32_t), intent(out) :: count
+     end function ejecta_species_count
+
+     integer(c_int) function ejecta_species_symbol(context, code, buffer, capacity) bind(c, name='ejecta_species_symbol')
+       import :: c_int, c_int64_t, c_int32_t, c_char
+       integer(c_int64_t), value :: context
+       integer(c_int32_t), value :: code
+       character(kind=c_char), intent(out) :: buffer(*)
+       integer(c_int64_t), value :: capacity
+     end function ejecta_species_symbol
 
      integer(c_int) function ejecta_suggested_step(context, dt) bind(c, name='ejecta_suggested_step')
        import :: c_int, c_int64_t, c_double
