@@ -28,21 +28,26 @@ var ErrOutsideRemnantTable = errors.New("outside the remnant table")
 // part of the column names and must be written exactly so.
 const RemnantTableHeader = "density[cm^-3],metallicity[solar],energy[erg]," +
 	"shell_time[kyr],shell_radius[pc],shell_mass[Msun],shell_momentum[Msun km/s]," +
-	"late_time[kyr],late_momentum[Msun km/s]"
+	"late_time[kyr],late_mass[Msun],late_momentum[Msun km/s]"
 
 // RemnantTableRow is one grid point of a remnant table: a remnant of
 // Energy (erg) in gas of hydrogen density Density (cm^-3) and metallicity
 // Metallicity (solar units), its shell formation (time in kyr, radius in
-// pc, mass in Msun, radial momentum in Msun km/s) and its late state.
+// pc, mass in Msun, radial momentum in Msun km/s) and its late state (time,
+// mass inside the shock, radial momentum).
 type RemnantTableRow struct {
-	Density, Metallicity, Energy                               float64
-	ShellTime, ShellRadius, ShellMass, ShellMomentum, LateTime float64
-	LateMomentum                                               float64
+	Density, Metallicity, Energy                     float64
+	ShellTime, ShellRadius, ShellMass, ShellMomentum float64
+	LateTime, LateMass, LateMomentum                 float64
 }
+
+// lateColumns is the index of the first late column: late values may be
+// zero (a run that never got there).
+const lateColumns = 7
 
 func (r *RemnantTableRow) fields() []*float64 {
 	return []*float64{&r.Density, &r.Metallicity, &r.Energy, &r.ShellTime, &r.ShellRadius,
-		&r.ShellMass, &r.ShellMomentum, &r.LateTime, &r.LateMomentum}
+		&r.ShellMass, &r.ShellMomentum, &r.LateTime, &r.LateMass, &r.LateMomentum}
 }
 
 // OutsideGrid says what a RemnantTable does with a density or metallicity
@@ -216,7 +221,7 @@ func ReadRemnantTable(r io.Reader) (*RemnantTable, error) {
 			if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
 				return nil, remnantLineError(line, "column %q: %q is not a finite number", want[i], rec[i])
 			}
-			late := i >= 7
+			late := i >= lateColumns
 			if v < 0 || (v == 0 && !late) {
 				return nil, remnantLineError(line, "column %q: %v, want > 0", want[i], v)
 			}

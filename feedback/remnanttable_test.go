@@ -22,7 +22,7 @@ func testRemnantRows() []RemnantTableRow {
 				Density: n, Metallicity: z, Energy: 1e51,
 				ShellTime: 44 * math.Pow(n, -0.55), ShellRadius: 22 * math.Pow(n, -0.42) * math.Pow(z, -0.1),
 				ShellMass: 1500 * math.Pow(n, -0.26), ShellMomentum: 2e5 * math.Pow(n, -0.13) * math.Pow(z, -0.2),
-				LateTime: 440 * math.Pow(n, -0.55), LateMomentum: 2.6e5 * math.Pow(n, -0.13),
+				LateTime: 440 * math.Pow(n, -0.55), LateMass: 9000 * math.Pow(n, -0.26), LateMomentum: 2.6e5 * math.Pow(n, -0.13),
 			})
 		}
 	}
@@ -92,7 +92,7 @@ func TestRemnantTableErrors(t *testing.T) {
 	h := RemnantTableHeader + "\n"
 	row := func(n, z, e float64) string {
 		var sb strings.Builder
-		_ = WriteRemnantTable(&sb, nil, []RemnantTableRow{{Density: n, Metallicity: z, Energy: e, ShellTime: 1, ShellRadius: 1, ShellMass: 1, ShellMomentum: 1, LateTime: 1, LateMomentum: 1}})
+		_ = WriteRemnantTable(&sb, nil, []RemnantTableRow{{Density: n, Metallicity: z, Energy: e, ShellTime: 1, ShellRadius: 1, ShellMass: 1, ShellMomentum: 1, LateTime: 1, LateMass: 1, LateMomentum: 1}})
 		return strings.SplitN(sb.String(), "\n", 2)[1]
 	}
 	cases := []struct{ name, text, want string }{
@@ -100,10 +100,10 @@ func TestRemnantTableErrors(t *testing.T) {
 		{"wrong header", "density[cm^-3],metallicity[solar]\n", "line 1: 2 columns"},
 		{"wrong unit", strings.Replace(h, "shell_radius[pc]", "shell_radius[kpc]", 1), `line 1: column 5 is "shell_radius[kpc]"`},
 		{"no rows", "# c\n" + h, "no data rows"},
-		{"not a number", h + "1,1,1e51,x,1,1,1,1,1\n", `line 2: column "shell_time[kyr]": "x"`},
-		{"zero momentum", h + "1,1,1e51,1,1,1,0,1,1\n", `line 2: column "shell_momentum[Msun km/s]": 0`},
-		{"negative late", h + "1,1,1e51,1,1,1,1,1,-1\n", "line 2:"},
-		{"field count", h + "1,1,1e51,1,1,1,1,1\n", "line 2:"},
+		{"not a number", h + "1,1,1e51,x,1,1,1,1,1,1\n", `line 2: column "shell_time[kyr]": "x"`},
+		{"zero momentum", h + "1,1,1e51,1,1,1,0,1,1,1\n", `line 2: column "shell_momentum[Msun km/s]": 0`},
+		{"negative late", h + "1,1,1e51,1,1,1,1,1,1,-1\n", "line 2:"},
+		{"field count", h + "1,1,1e51,1,1,1,1,1,1\n", "line 2:"},
 		{"energies differ", h + row(1, 1, 1e51) + row(2, 1, 2e51), "line 3: energy 2e+51"},
 		{"density falls", h + row(2, 1, 1e51) + row(1, 1, 1e51), "line 3: density 1 does not rise"},
 		{"metallicity falls", h + row(1, 1, 1e51) + row(1, 0.5, 1e51), "line 3: metallicity 0.5 after 1"},

@@ -161,6 +161,7 @@ func TableRows(cases []Case) []feedback.RemnantTableRow {
 			ShellMass:     sf.Mass / units.SolarMass,
 			ShellMomentum: sf.Momentum / units.MsunKms,
 			LateTime:      r.Late.Time / (1e3 * units.JulianYear),
+			LateMass:      r.Late.Mass / units.SolarMass,
 			LateMomentum:  r.Late.Momentum / units.MsunKms,
 		}
 	}
