@@ -161,20 +161,5 @@ func (g IdealGas) InternalEnergy(w Prim) float64 { return w.P / ((g.Gamma - 1) *
 
 // Flux is the physical flux of w through an x-normal face.
 func (g IdealGas) Flux(w Prim) Cons {
-	u := g.Cons(w)
-	return g.flux(w, u)
-}
-
-func (g IdealGas) flux(w Prim, u Cons) Cons {
-	f := Cons{
-		Mass:   u.MomX,
-		MomX:   u.MomX*w.Vx + w.P,
-		MomY:   u.MomY * w.Vx,
-		MomZ:   u.MomZ * w.Vx,
-		Energy: (u.Energy + w.P) * w.Vx,
-	}
-	for i, s := range u.Scalar {
-		f.Scalar[i] = s * w.Vx
-	}
-	return f
+	return physicalFlux(w, g.Cons(w).Energy)
 }

@@ -58,9 +58,6 @@ func TestSedovTaylor(t *testing.T) {
 	cfg.ZonesPerShellRadius = 300
 	cfg.DomainShellRadii = 1.3
 	cfg.EndShellTimes = 1
-	if testing.Short() {
-		cfg.ZonesPerShellRadius = 150
-	}
 	s, err := New(cfg)
 	require.NoError(t, err)
 	rho := s.ambient.Rho
@@ -199,4 +196,26 @@ func TestResolutionConvergence(t *testing.T) {
 		t.Logf("%dx zones: p_sf changes by %+.2f%%", k, 100*(p/base-1))
 		assert.InEpsilon(t, base, p, 0.05, "p_sf at %dx zones", k)
 	}
+}
+
+// A step allocates nothing, and two runs of the same configuration are
+// bitwise the same.
+func TestStepAllocationFreeAndDeterministic(t *testing.T) {
+	cfg := DefaultConfig()
+	cfg.ZonesPerShellRadius = 30
+	cfg.DomainShellRadii = 1.6
+	cfg.EndShellTimes = 0.3
+	s, err := New(cfg)
+	require.NoError(t, err)
+	allocs := testing.AllocsPerRun(50, func() {
+		if err := s.Step(); err != nil {
+			t.Fatal(err)
+		}
+	})
+	assert.Zero(t, allocs)
+	a, err := Run(cfg)
+	require.NoError(t, err)
+	b, err := Run(cfg)
+	require.NoError(t, err)
+	assert.Equal(t, a, b)
 }
