@@ -77,7 +77,12 @@ func parseConfig(c *configABI) (feedback.Config, error) {
 	if !(c.KineticFraction >= 0 && c.KineticFraction <= 1) {
 		return cfg, fail(codeInvalidArgument, "config kinetic_fraction %g outside [0, 1]", c.KineticFraction)
 	}
-	sch, err := feedback.SchemeByName(scheme, feedback.SchemeOptions{Fit: fit, KineticFraction: c.KineticFraction, Seed: c.Seed})
+	opts := feedback.DefaultSchemeOptions()
+	opts.Fit, opts.Seed = fit, c.Seed
+	if c.KineticFraction != 0 { // ejecta.h: 0 means the Sedov-Taylor value
+		opts.KineticFraction = c.KineticFraction
+	}
+	sch, err := feedback.SchemeByName(scheme, opts)
 	if err != nil {
 		return cfg, fail(codeUnknownName, "config: %w", err)
 	}

@@ -15,9 +15,8 @@ import (
 // by abiMismatches).
 const (
 	// pathCapacity bounds the length of a yields table path, NUL included.
-	pathCapacity      = 4096
-	numStepChannels   = int(yields.NumAllChannels)
-	defaultMaxPerStep = 10
+	pathCapacity    = 4096
+	numStepChannels = int(yields.NumAllChannels)
 )
 
 // Go mirrors of the population structs of ejecta.h.
@@ -72,7 +71,7 @@ type population struct {
 func defaultPopulationConfig() populationConfigABI {
 	c := populationConfigABI{
 		LightestStarMass: yields.DefaultLightestStarMass, HeaviestStarMass: yields.DefaultHeaviestStarMass,
-		MaxSupernovaePerStep: defaultMaxPerStep,
+		MaxSupernovaePerStep: feedback.DefaultMaxSupernovaePerStep,
 		Winds:                1, RadiationPressure: 1, Photoionization: 1,
 	}
 	copy(c.IMF[:], yields.Kroupa.String())
@@ -181,11 +180,14 @@ func (s *session) enablePopulation(c *populationConfigABI) error {
 	if err != nil {
 		return err
 	}
-	st, err := feedback.NewStepper(feedback.StepConfig{
-		Coupling: s.cfg, Model: model, Seed: s.seed,
-		SkipWinds: !winds, SkipRadiation: !radiation, SkipPhotoionization: !ionization,
-		DelayedCooling: cooling, MaxSupernovaePerStep: c.MaxSupernovaePerStep,
-	})
+	cfg := feedback.DefaultStepConfig(s.cfg, model)
+	cfg.Seed = s.seed
+	cfg.SkipWinds, cfg.SkipRadiation, cfg.SkipPhotoionization = !winds, !radiation, !ionization
+	cfg.DelayedCooling = cooling
+	if c.MaxSupernovaePerStep != 0 { // ejecta.h: 0 means the default
+		cfg.MaxSupernovaePerStep = c.MaxSupernovaePerStep
+	}
+	st, err := feedback.NewStepper(cfg)
 	if err != nil {
 		return fail(codeInvalidArgument, "population: %w", err)
 	}

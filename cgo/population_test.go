@@ -308,8 +308,8 @@ func runPopulation(t *testing.T, scheme string, workers int32, model yields.Mode
 		expected := (rel.Channels[yields.CoreCollapse].Events + rel.Channels[yields.TypeIa].Events) * formed
 		var suggested float64
 		require.Equal(t, codeOK, entrySuggestedStep(h, &suggested))
-		if expected > defaultMaxPerStep {
-			assert.InEpsilon(t, dt*defaultMaxPerStep/expected, suggested, 1e-9, "step %d", k)
+		if expected > feedback.DefaultMaxSupernovaePerStep {
+			assert.InEpsilon(t, dt*feedback.DefaultMaxSupernovaePerStep/expected, suggested, 1e-9, "step %d", k)
 			run.suggested++
 		} else {
 			assert.Zero(t, suggested, "step %d", k)

@@ -107,11 +107,11 @@ func BenchmarkCouple(b *testing.B) {
 		release func(feedback.Source) feedback.Source
 	}{
 		{feedback.ThermalDump{}, nil},
-		{feedback.Kinetic{}, nil},
+		{feedback.DefaultKinetic(), nil},
 		{feedback.TerminalMomentum{Fit: feedback.KimOstriker2015}, nil},
-		{feedback.StochasticHeating{Seed: 1}, nil},
-		{feedback.Winds{}, wind},
-		{feedback.RadiationPressure{}, light},
+		{feedback.DefaultStochasticHeating(1), nil},
+		{feedback.DefaultWinds(feedback.KimOstriker2015), wind},
+		{feedback.DefaultRadiationPressure(), light},
 		{feedback.Photoionization{}, photons},
 	}
 	b.Run(fmt.Sprintf("touch/k=%d", k), func(b *testing.B) {

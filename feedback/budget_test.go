@@ -47,10 +47,10 @@ func TestInfraredBoostIsBounded(t *testing.T) {
 		sigma float64
 		want  float64 // in units of L dt / c
 	}{
-		{"default bound", feedback.RadiationPressure{}, 100, 3},
-		{"configured bound", feedback.RadiationPressure{MaxInfraredBoost: 1.5}, 100, 1.5},
-		{"unbounded on request", feedback.RadiationPressure{MaxInfraredBoost: math.Inf(1)}, 100, 501},
-		{"below the bound", feedback.RadiationPressure{}, 0.2, 2},
+		{"default bound", feedback.DefaultRadiationPressure(), 100, 3},
+		{"configured bound", boosted(1.5), 100, 1.5},
+		{"unbounded on request", boosted(math.Inf(1)), 100, 501},
+		{"below the bound", feedback.DefaultRadiationPressure(), 0.2, 2},
 	}
 	for _, c := range cases {
 		assert.InEpsilon(t, c.want, c.rp.Momentum(e, c.sigma, 1, u)/lc, 1e-9, c.name)
@@ -59,17 +59,22 @@ func TestInfraredBoostIsBounded(t *testing.T) {
 	// tau_IR = 1 gets 3 L/c, not (1 + tau_IR) L/c.
 	g := uniformGas(12, 400, 1e4, 1e4, u)
 	src := feedback.Source{Star: feedback.Star{ID: 2}, Channel: yields.RadiationPressure, Energy: e}
-	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.RadiationPressure{}, Neighbors: 64}, []feedback.Source{src})
+	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.DefaultRadiationPressure(), Neighbors: 64}, []feedback.Source{src})
 	assert.InEpsilon(t, 3*lc, out.Ledger.RadialMomentum, 1e-6)
-	// A bound below 1 is refused.
-	c, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: feedback.RadiationPressure{MaxInfraredBoost: 0.5}})
-	require.NoError(t, err)
-	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-	require.NoError(t, err)
-	var o feedback.Output
-	require.NoError(t, c.Couple(g.View(), f, []feedback.Source{src}, &o))
-	require.Len(t, o.Problems, 1)
-	assert.ErrorContains(t, o.Problems[0].Err, "at least 1")
+	// A bound below 1 (zero included) is refused when the coupler is made.
+	for _, b := range []float64{0.5, 0} {
+		_, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: boosted(b)})
+		assert.ErrorContains(t, err, "at least 1")
+		assert.ErrorIs(t, err, feedback.ErrInvalidArgument)
+	}
+}
+
+// boosted is the default radiation pressure with another bound on the
+// infrared boost.
+func boosted(b float64) feedback.RadiationPressure {
+	rp := feedback.DefaultRadiationPressure()
+	rp.MaxInfraredBoost = b
+	return rp
 }
 
 func TestPhotoheatingIsPaidFromTheLight(t *testing.T) {
@@ -97,9 +102,8 @@ func TestPhotoheatingIsPaidFromTheLight(t *testing.T) {
 		{"no photoionization", feedback.StepConfig{SkipPhotoionization: true}, true, false},
 		{"no radiation pressure", feedback.StepConfig{SkipRadiation: true}, false, true},
 	} {
-		cfg := c.cfg
-		cfg.Coupling = feedback.Config{Units: u}
-		cfg.Model = pop
+		cfg := feedback.DefaultStepConfig(feedback.Config{Units: u}, pop)
+		cfg.SkipPhotoionization, cfg.SkipRadiation = c.cfg.SkipPhotoionization, c.cfg.SkipRadiation
 		cfg.Seed = 1
 		st, err := feedback.NewStepper(cfg)
 		require.NoError(t, err)

@@ -1,7 +1,6 @@
 package feedback
 
 import (
-	"fmt"
 	"math"
 
 	"github.com/ejecta-dev/ejecta/yields"
@@ -61,10 +60,22 @@ func hydrogenDensity(rho float64, u units.CodeUnits) float64 {
 type Winds struct {
 	Fit RemnantFit
 	// EventEnergy is the energy, in erg, of one remnant the wind energy is
-	// counted in; zero means one supernova's, units.FOE (1e51 erg): a
-	// wind then delivers the radiative remnant momentum per unit energy of
-	// a supernova.
+	// counted in, positive and finite. DefaultWinds uses one supernova's,
+	// units.FOE (1e51 erg): a wind then delivers the radiative remnant
+	// momentum per unit energy of a supernova.
 	EventEnergy float64
+}
+
+// DefaultWinds is the wind scheme with remnant fit fit and one
+// supernova's energy, units.FOE, per remnant.
+func DefaultWinds(fit RemnantFit) Winds { return Winds{Fit: fit, EventEnergy: units.FOE} }
+
+// Validate checks the event energy (positive and finite).
+func (s Winds) Validate() error {
+	if !(s.EventEnergy > 0) || math.IsInf(s.EventEnergy, 0) {
+		return errorf(ErrInvalidArgument, "stellar winds: event energy %g erg must be positive and finite", s.EventEnergy)
+	}
+	return nil
 }
 
 // Name is "stellar-winds".
@@ -72,13 +83,10 @@ func (Winds) Name() string { return "stellar-winds" }
 
 // Deposit implements Scheme.
 func (s Winds) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
+	if err := s.Validate(); err != nil {
+		return 0, err
+	}
 	ev := s.EventEnergy
-	if ev == 0 {
-		ev = units.FOE
-	}
-	if !(ev > 0) || math.IsInf(ev, 0) {
-		return 0, fmt.Errorf("stellar winds: event energy %g erg must be positive and finite", ev)
-	}
 	nb.remnantShares(s.Fit, nb.Source.Energy*nb.Units.EnergyErg()/ev)
 	return nb.CoupleRadial(out), nil
 }
@@ -107,14 +115,28 @@ func (s Winds) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
 // in the infrared).
 type RadiationPressure struct {
 	// UVOpacity and IROpacity are the dust opacities at solar metallicity
-	// in cm^2 per gram of gas; zero means 1000 and 5 (from memory: Draine
-	// 2011 order of magnitude for the UV, Semenov et al. 2003 Rosseland
-	// means for the IR; common practice).
+	// in cm^2 per gram of gas, non-negative (zero: no absorption in that
+	// band).
 	UVOpacity, IROpacity float64
-	// MaxInfraredBoost bounds the infrared trapping factor (1 + tau_IR);
-	// zero means DefaultMaxInfraredBoost, +Inf leaves it unbounded (limited
-	// only by the light's energy), and a finite value must be at least 1.
+	// MaxInfraredBoost bounds the infrared trapping factor (1 + tau_IR):
+	// at least 1, +Inf leaving it unbounded (limited only by the light's
+	// energy).
 	MaxInfraredBoost float64
+}
+
+// Default dust opacities of RadiationPressure at solar metallicity, cm^2
+// per gram of gas (from memory: Draine 2011 order of magnitude for the
+// ultraviolet, Semenov et al. 2003 Rosseland means for the infrared;
+// common practice).
+const (
+	DefaultUVOpacity = 1000.0
+	DefaultIROpacity = 5.0
+)
+
+// DefaultRadiationPressure is radiation pressure with DefaultUVOpacity,
+// DefaultIROpacity and DefaultMaxInfraredBoost.
+func DefaultRadiationPressure() RadiationPressure {
+	return RadiationPressure{UVOpacity: DefaultUVOpacity, IROpacity: DefaultIROpacity, MaxInfraredBoost: DefaultMaxInfraredBoost}
 }
 
 // DefaultMaxInfraredBoost is the default bound on the infrared trapping
@@ -124,46 +146,35 @@ type RadiationPressure struct {
 // from memory). A later benchmark may revise it.
 const DefaultMaxInfraredBoost = 3.0
 
+// Validate checks the opacities (non-negative) and the boost bound (at
+// least 1).
+func (s RadiationPressure) Validate() error {
+	if !(s.UVOpacity >= 0) || !(s.IROpacity >= 0) {
+		return errorf(ErrInvalidArgument, "radiation pressure: opacities %g, %g must be non-negative", s.UVOpacity, s.IROpacity)
+	}
+	if !(s.MaxInfraredBoost >= 1) {
+		return errorf(ErrInvalidArgument, "radiation pressure: infrared boost bound %g must be at least 1", s.MaxInfraredBoost)
+	}
+	return nil
+}
+
 // Name is "radiation-pressure".
 func (RadiationPressure) Name() string { return "radiation-pressure" }
-
-func (s RadiationPressure) opacities() (uv, ir float64) {
-	uv, ir = s.UVOpacity, s.IROpacity
-	if uv == 0 {
-		uv = 1000
-	}
-	if ir == 0 {
-		ir = 5
-	}
-	return uv, ir
-}
-
-func (s RadiationPressure) maxBoost() float64 {
-	if s.MaxInfraredBoost == 0 {
-		return DefaultMaxInfraredBoost
-	}
-	return s.MaxInfraredBoost
-}
 
 // Momentum is the momentum (code units) the scheme hands out for light
 // energy e (code units) through a gas column sigma (g/cm^2) of
 // metallicity zeta (solar units).
 func (s RadiationPressure) Momentum(e, sigma, zeta float64, u units.CodeUnits) float64 {
-	uv, ir := s.opacities()
-	tauUV := uv * zeta * sigma
-	tauIR := ir * zeta * sigma
+	tauUV := s.UVOpacity * zeta * sigma
+	tauIR := s.IROpacity * zeta * sigma
 	c := units.SpeedOfLight / u.VelocityCmPS
-	return e / c * -math.Expm1(-tauUV) * math.Min(1+tauIR, s.maxBoost())
+	return e / c * -math.Expm1(-tauUV) * math.Min(1+tauIR, s.MaxInfraredBoost)
 }
 
 // Deposit implements Scheme.
 func (s RadiationPressure) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
-	uv, ir := s.opacities()
-	if !(uv >= 0) || !(ir >= 0) {
-		return 0, fmt.Errorf("radiation pressure: opacities %g, %g must be non-negative", uv, ir)
-	}
-	if b := s.maxBoost(); !(b >= 1) {
-		return 0, fmt.Errorf("radiation pressure: infrared boost bound %g must be at least 1", b)
+	if err := s.Validate(); err != nil {
+		return 0, err
 	}
 	u := nb.Units
 	mass, rmax, zsum := 0.0, 0.0, 0.0
@@ -284,11 +295,29 @@ func (Photoionization) Deposit(nb *Neighborhood, out []Deposit) (float64, error)
 // ΔT. Mass, species and the ejecta's momentum are shared by weight as in a
 // thermal dump.
 type StochasticHeating struct {
-	// TemperatureJump in K; zero means 10^7.5 K (the value Dalla Vecchia &
-	// Schaye 2012 recommend, from memory).
+	// TemperatureJump in K, positive and finite; DefaultStochasticHeating
+	// uses DefaultTemperatureJump.
 	TemperatureJump float64
 	// Seed keys the draws.
 	Seed uint64
+}
+
+// DefaultTemperatureJump is 10^7.5 K, the temperature jump Dalla Vecchia &
+// Schaye 2012 recommend (from memory).
+const DefaultTemperatureJump = 31622776.601683792
+
+// DefaultStochasticHeating is stochastic heating by DefaultTemperatureJump
+// with draws keyed by seed.
+func DefaultStochasticHeating(seed uint64) StochasticHeating {
+	return StochasticHeating{TemperatureJump: DefaultTemperatureJump, Seed: seed}
+}
+
+// Validate checks the temperature jump (positive and finite).
+func (s StochasticHeating) Validate() error {
+	if !(s.TemperatureJump > 0) || math.IsInf(s.TemperatureJump, 0) {
+		return errorf(ErrInvalidArgument, "stochastic heating: temperature jump %g K must be positive and finite", s.TemperatureJump)
+	}
+	return nil
 }
 
 // Name is "stochastic-heating".
@@ -296,13 +325,10 @@ func (StochasticHeating) Name() string { return "stochastic-heating" }
 
 // Deposit implements Scheme.
 func (s StochasticHeating) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
+	if err := s.Validate(); err != nil {
+		return 0, err
+	}
 	dT := s.TemperatureJump
-	if dT == 0 {
-		dT = math.Pow(10, 7.5)
-	}
-	if !(dT > 0) || math.IsInf(dT, 0) {
-		return 0, fmt.Errorf("stochastic heating: temperature jump %g K must be positive", dT)
-	}
 	src := nb.Source
 	du := specificEnergyAt(dT, IonizedMeanMolecularWeight) / nb.Units.SpecificEnergy()
 	total := 0.0

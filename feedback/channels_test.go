@@ -95,10 +95,10 @@ func TestRadiationPressureMomentum(t *testing.T) {
 	l := 1e6 * units.SolarLuminosity
 	e := l * units.Megayear / u.EnergyErg()
 	want := l * units.Megayear / units.SpeedOfLight / u.MomentumGCmPS()
-	rp := feedback.RadiationPressure{UVOpacity: 1e9, IROpacity: 1e-300}
+	rp := feedback.RadiationPressure{UVOpacity: 1e9, IROpacity: 1e-300, MaxInfraredBoost: math.Inf(1)}
 	assert.InEpsilon(t, want, rp.Momentum(e, 1, 1, u), 1e-12)
 	// With infrared trapping the momentum grows by (1 + tau_IR).
-	rp2 := feedback.RadiationPressure{UVOpacity: 1e9, IROpacity: 5}
+	rp2 := feedback.RadiationPressure{UVOpacity: 1e9, IROpacity: 5, MaxInfraredBoost: math.Inf(1)}
 	assert.InEpsilon(t, want*(1+5*0.2), rp2.Momentum(e, 0.2, 1, u), 1e-12)
 
 	// Through the coupler, in dense gas that absorbs everything.
@@ -130,14 +130,16 @@ func TestChannelSchemesPassTheHarness(t *testing.T) {
 		scheme  feedback.Scheme
 		release func(feedback.Star) feedback.Source
 	}{
-		{"winds", feedback.Winds{}, wind},
-		{"radiation-pressure", feedback.RadiationPressure{}, light},
+		{"winds", feedback.DefaultWinds(feedback.KimOstriker2015), wind},
+		{"radiation-pressure", feedback.DefaultRadiationPressure(), light},
 		{"photoionization", feedback.Photoionization{}, photons},
-		{"stochastic-heating", feedback.StochasticHeating{Seed: 5}, nil},
+		{"stochastic-heating", feedback.DefaultStochasticHeating(5), nil},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			feedbacktest.Check(t, c.scheme, feedbacktest.Options{Release: c.release, Seeds: []uint64{1, 2}})
+			opts := feedbacktest.DefaultOptions()
+			opts.Release, opts.Seeds = c.release, []uint64{1, 2}
+			feedbacktest.Check(t, c.scheme, opts)
 		})
 	}
 }
@@ -168,7 +170,9 @@ func TestStepperSingleStarHundredMyr(t *testing.T) {
 	const seeds = 12
 	for seed := uint64(1); seed <= seeds; seed++ {
 		g := uniformGas(seed, 600, 200, 1, u)
-		st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u, Neighbors: 32}, Model: pop, Seed: seed})
+		cfg := feedback.DefaultStepConfig(feedback.Config{Units: u, Neighbors: 32}, pop)
+		cfg.Seed = seed
+		st, err := feedback.NewStepper(cfg)
 		require.NoError(t, err)
 		f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 		require.NoError(t, err)
@@ -204,7 +208,9 @@ func TestStepperSuggestsSmallerStep(t *testing.T) {
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
 	g := uniformGas(3, 200, 100, 1, u)
-	st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u}, Model: pop, MaxSupernovaePerStep: 5})
+	cfg := feedback.DefaultStepConfig(feedback.Config{Units: u}, pop)
+	cfg.MaxSupernovaePerStep = 5
+	st, err := feedback.NewStepper(cfg)
 	require.NoError(t, err)
 	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 	require.NoError(t, err)
@@ -221,7 +227,10 @@ func TestStepperDelayedCoolingFlags(t *testing.T) {
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
 	g := uniformGas(4, 300, 100, 1, u)
-	st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u}, Model: pop, DelayedCooling: true, Seed: 3})
+	cfg := feedback.DefaultStepConfig(feedback.Config{Units: u}, pop)
+	cfg.DelayedCooling = true
+	cfg.Seed = 3
+	st, err := feedback.NewStepper(cfg)
 	require.NoError(t, err)
 	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 	require.NoError(t, err)
@@ -254,7 +263,9 @@ func TestStepperTypeIaIronAndWindEnergy(t *testing.T) {
 	g := uniformGas(21, 400, 1e4, 1, u)
 	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 	require.NoError(t, err)
-	st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u}, Model: pop, Seed: 8})
+	cfg := feedback.DefaultStepConfig(feedback.Config{Units: u}, pop)
+	cfg.Seed = 8
+	st, err := feedback.NewStepper(cfg)
 	require.NoError(t, err)
 	myr := units.Megayear / u.TimeS()
 	const formed = 1e6
@@ -295,7 +306,9 @@ func TestStepperBitwiseForAnyWorkerCount(t *testing.T) {
 	for _, workers := range []int{1, 2, 3} {
 		for _, radius := range []float64{0, 12} {
 			g := base.Clone()
-			st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u, Workers: workers, Radius: radius}, Model: pop, Seed: 4})
+			cfg := feedback.DefaultStepConfig(feedback.Config{Units: u, Workers: workers, Radius: radius}, pop)
+			cfg.Seed = 4
+			st, err := feedback.NewStepper(cfg)
 			require.NoError(t, err)
 			f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 			require.NoError(t, err)
@@ -339,7 +352,9 @@ func BenchmarkStep(b *testing.B) {
 		stars = append(stars, feedback.StarParticle{Star: feedback.Star{ID: int64(s + 1), Mass: 1e4, Metallicity: 0.0134,
 			Pos: [3]float64{g.Pos[0][i], g.Pos[1][i] + 0.2, g.Pos[2][i]}, Age: float64(1+s%30) * myr}, FormedMass: 1e4})
 	}
-	st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u, Neighbors: 64}, Model: pop, Seed: 1})
+	cfg := feedback.DefaultStepConfig(feedback.Config{Units: u, Neighbors: 64}, pop)
+	cfg.Seed = 1
+	st, err := feedback.NewStepper(cfg)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -367,7 +382,9 @@ func TestStepperKeepsReturnedReleasesInTheStarsFrame(t *testing.T) {
 	g := uniformGas(41, 50, 10, 1, u)
 	rows, err := neighbor.NewHostLists(g.Packed(), g.ID, neighbor.Box{}, []int{0, 0}, nil)
 	require.NoError(t, err)
-	st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u, Radius: 10}, Model: pop, Seed: 2})
+	cfg := feedback.DefaultStepConfig(feedback.Config{Units: u, Radius: 10}, pop)
+	cfg.Seed = 2
+	st, err := feedback.NewStepper(cfg)
 	require.NoError(t, err)
 	myr := units.Megayear / u.TimeS()
 	star := feedback.StarParticle{Star: feedback.Star{ID: 9, Mass: 1e5, Metallicity: 0.0134, Age: 10 * myr, Vel: [3]float64{100, 0, 0}}, FormedMass: 1e5}
@@ -388,7 +405,7 @@ func TestStepperRejectsUnusableStars(t *testing.T) {
 	g := uniformGas(42, 50, 10, 1, u)
 	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 	require.NoError(t, err)
-	st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u}, Model: pop})
+	st, err := feedback.NewStepper(feedback.DefaultStepConfig(feedback.Config{Units: u}, pop))
 	require.NoError(t, err)
 	for _, bad := range []func(s *feedback.StarParticle){
 		func(s *feedback.StarParticle) { s.Vel[0] = 1e200 }, // v^2 overflows

@@ -17,7 +17,8 @@ type Config struct {
 	// Units are the host's code units.
 	Units units.CodeUnits
 	// Scheme splits each release; nil means TerminalMomentum with the
-	// Kim & Ostriker 2015 fit.
+	// Kim & Ostriker 2015 fit. A scheme with a Validate() error method
+	// (the built-in ones with settings) is checked by NewCoupler.
 	Scheme Scheme
 	// Weighting shares the release among neighbors before the isotropy
 	// correction.
@@ -112,6 +113,11 @@ func NewCoupler(cfg Config) (*Coupler, error) {
 	}
 	if cfg.Workers < 0 || cfg.Workers > 4096 {
 		return nil, errorf(ErrInvalidArgument, "coupler: worker count %d outside 1..4096", cfg.Workers)
+	}
+	if v, ok := cfg.Scheme.(interface{ Validate() error }); ok {
+		if err := v.Validate(); err != nil {
+			return nil, fmt.Errorf("coupler: scheme %s: %w", cfg.Scheme.Name(), err)
+		}
 	}
 	if cfg.Weighting != KernelVolume && cfg.Weighting != SolidAngle {
 		return nil, errorf(ErrInvalidArgument, "coupler: unknown weighting %d", cfg.Weighting)

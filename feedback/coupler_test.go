@@ -129,7 +129,7 @@ func TestSedovSplitOfKineticScheme(t *testing.T) {
 	// memory).
 	u := pcMsunKms()
 	g := uniformGas(3, 400, 100, 1, u)
-	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.Kinetic{}, Neighbors: 64}, []feedback.Source{supernova(1, u)})
+	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.DefaultKinetic(), Neighbors: 64}, []feedback.Source{supernova(1, u)})
 	heat, total := 0.0, 0.0
 	for _, r := range out.Records {
 		heat += r.Heat

@@ -12,8 +12,11 @@ import (
 )
 
 func TestDelayedCoolingConserves(t *testing.T) {
-	feedbacktest.Check(t, feedback.DelayedCooling{}, feedbacktest.Options{Seeds: []uint64{1, 2}})
-	feedbacktest.Check(t, feedback.DelayedCooling{Scheme: feedback.Kinetic{}}, feedbacktest.Options{Seeds: []uint64{1}})
+	opts := feedbacktest.DefaultOptions()
+	opts.Seeds = []uint64{1, 2}
+	feedbacktest.Check(t, feedback.DelayedCooling{}, opts)
+	opts.Seeds = []uint64{1}
+	feedbacktest.Check(t, feedback.DelayedCooling{Scheme: feedback.DefaultKinetic()}, opts)
 }
 
 func TestDelayedCoolingFlagsTheInnerDeposit(t *testing.T) {

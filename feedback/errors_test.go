@@ -131,7 +131,7 @@ func TestErrorKinds(t *testing.T) {
 		{"star particle with negative mass", func(t *testing.T) error {
 			pop, err := yields.NewPopulation(yields.DefaultConfig())
 			require.NoError(t, err)
-			st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u}, Model: pop})
+			st, err := feedback.NewStepper(feedback.DefaultStepConfig(feedback.Config{Units: u}, pop))
 			require.NoError(t, err)
 			g := uniformGas(1, 40, 10, 1, u)
 			f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})

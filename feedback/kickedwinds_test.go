@@ -310,7 +310,9 @@ func TestKickedWindsPassTheHarness(t *testing.T) {
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			c.scheme.Seed = 17
-			feedbacktest.Check(t, c.scheme, feedbacktest.Options{Release: c.release, IsotropyBound: -1, ShortfallBound: c.shortfall, Seeds: []uint64{1, 2}})
+			opts := feedbacktest.DefaultOptions()
+			opts.Release, opts.IsotropyBound, opts.ShortfallBound, opts.Seeds = c.release, math.Inf(1), c.shortfall, []uint64{1, 2}
+			feedbacktest.Check(t, c.scheme, opts)
 		})
 	}
 }

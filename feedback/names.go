@@ -6,13 +6,19 @@ import "strings"
 type SchemeOptions struct {
 	// Fit is the terminal momentum fit (terminal-momentum, stellar-winds).
 	Fit RemnantFit
-	// KineticFraction is the kinetic scheme's fraction (0 means the
-	// Sedov–Taylor 0.28).
+	// KineticFraction is the kinetic scheme's fraction.
 	KineticFraction float64
 	// Seed keys the draws of stochastic heating and kicked winds;
-	// TemperatureJump sets stochastic heating (0 means 10^7.5 K).
+	// TemperatureJump (K) sets stochastic heating.
 	Seed            uint64
 	TemperatureJump float64
+}
+
+// DefaultSchemeOptions are the published defaults: the Kim & Ostriker 2015
+// fit, the Sedov–Taylor kinetic fraction SedovKineticFraction and
+// DefaultTemperatureJump, with seed 0.
+func DefaultSchemeOptions() SchemeOptions {
+	return SchemeOptions{Fit: KimOstriker2015, KineticFraction: SedovKineticFraction, TemperatureJump: DefaultTemperatureJump}
 }
 
 // SchemeNames lists the built-in schemes' names, as Name returns them.
@@ -24,23 +30,27 @@ func SchemeNames() []string {
 	}
 }
 
-// SchemeByName builds a built-in scheme from its name and options.
+// SchemeByName builds a built-in scheme from its name and options (start
+// from DefaultSchemeOptions); radiation pressure takes its defaults
+// (DefaultRadiationPressure). The scheme is checked (Validate).
 func SchemeByName(name string, o SchemeOptions) (Scheme, error) {
 	switch name {
 	case ThermalDump{}.Name():
 		return ThermalDump{}, nil
 	case Kinetic{}.Name():
-		return Kinetic{KineticFraction: o.KineticFraction}, nil
+		k := Kinetic{KineticFraction: o.KineticFraction}
+		return k, k.Validate()
 	case TerminalMomentum{}.Name():
 		return TerminalMomentum{Fit: o.Fit}, nil
 	case StochasticHeating{}.Name():
-		return StochasticHeating{Seed: o.Seed, TemperatureJump: o.TemperatureJump}, nil
+		sh := StochasticHeating{Seed: o.Seed, TemperatureJump: o.TemperatureJump}
+		return sh, sh.Validate()
 	case DelayedCooling{}.Name():
 		return DelayedCooling{}, nil
 	case Winds{}.Name():
-		return Winds{Fit: o.Fit}, nil
+		return DefaultWinds(o.Fit), nil
 	case RadiationPressure{}.Name():
-		return RadiationPressure{}, nil
+		return DefaultRadiationPressure(), nil
 	case Photoionization{}.Name():
 		return Photoionization{}, nil
 	case PhotoelectricHeating{}.Name():

@@ -184,14 +184,17 @@ func TestPhotoelectricHeatingPassesTheHarness(t *testing.T) {
 		return feedback.Source{Star: s, Energy: 3e5 * units.SolarLuminosity * 0.1 * units.Megayear / u.EnergyErg(),
 			Duration: 0.1 * units.Megayear / u.TimeS()}
 	}
-	feedbacktest.Check(t, feedback.DefaultPhotoelectricHeating(), feedbacktest.Options{Release: light, Seeds: []uint64{1, 2}})
+	opts := feedbacktest.DefaultOptions()
+	opts.Release, opts.Seeds = light, []uint64{1, 2}
+	feedbacktest.Check(t, feedback.DefaultPhotoelectricHeating(), opts)
 	// With the supernova's ejecta too (mass shared as in a thermal dump).
 	withEjecta := func(s feedback.Star) feedback.Source {
 		src := feedbacktest.SupernovaRelease(s)
 		src.Duration = 0.1 * units.Megayear / u.TimeS()
 		return src
 	}
-	feedbacktest.Check(t, feedback.DefaultPhotoelectricHeating(), feedbacktest.Options{Release: withEjecta, Seeds: []uint64{3}})
+	opts.Release, opts.Seeds = withEjecta, []uint64{3}
+	feedbacktest.Check(t, feedback.DefaultPhotoelectricHeating(), opts)
 }
 
 func TestPhotoelectricHeatingRefusesBadInput(t *testing.T) {
@@ -211,6 +214,11 @@ func TestPhotoelectricHeatingRefusesBadInput(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			cp, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: c.scheme, Neighbors: 8})
+			if c.kind == feedback.ErrInvalidArgument {
+				// A bad setting is refused when the coupler is made.
+				require.ErrorIs(t, err, c.kind)
+				return
+			}
 			require.NoError(t, err)
 			f := treeOf(t, g)
 			var out feedback.Output

@@ -108,7 +108,8 @@ func TestStepperRecoversWorkerPanics(t *testing.T) {
 	for _, workers := range []int{1, 4} {
 		for _, c := range cases {
 			t.Run(fmt.Sprintf("%s/workers=%d", c.name, workers), func(t *testing.T) {
-				cfg := feedback.StepConfig{Coupling: feedback.Config{Units: u, Workers: workers}, Model: pop, Seed: 2}
+				cfg := feedback.DefaultStepConfig(feedback.Config{Units: u, Workers: workers}, pop)
+				cfg.Seed = 2
 				c.cfg(&cfg)
 				st, err := feedback.NewStepper(cfg)
 				require.NoError(t, err)

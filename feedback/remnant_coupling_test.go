@@ -129,8 +129,9 @@ func TestPopulationMomentumDoesNotDependOnStepSize(t *testing.T) {
 		g, _ := latticeOfMass(2e5, 1, u)
 		f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 		require.NoError(t, err)
-		st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u, Neighbors: 32}, Model: pop, Seed: 11,
-			SkipRadiation: true, SkipPhotoionization: true})
+		cfg := feedback.DefaultStepConfig(feedback.Config{Units: u, Neighbors: 32}, pop)
+		cfg.Seed, cfg.SkipRadiation, cfg.SkipPhotoionization = 11, true, true
+		st, err := feedback.NewStepper(cfg)
 		require.NoError(t, err)
 		const formed = 1e6
 		star := feedback.StarParticle{Star: feedback.Star{ID: 3, Mass: formed, Metallicity: 0.0134, Pos: [3]float64{0.1, 0.05, 0.02}}, FormedMass: formed}

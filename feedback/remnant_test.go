@@ -93,14 +93,18 @@ func TestParseRemnantFit(t *testing.T) {
 
 func TestSchemeByName(t *testing.T) {
 	for _, name := range SchemeNames() {
-		s, err := SchemeByName(name, SchemeOptions{Fit: CioffiMcKeeBertschinger1988, Seed: 3})
+		o := DefaultSchemeOptions()
+		o.Fit, o.Seed = CioffiMcKeeBertschinger1988, 3
+		s, err := SchemeByName(name, o)
 		require.NoError(t, err)
 		assert.Equal(t, name, s.Name())
 	}
-	s, err := SchemeByName("terminal-momentum", SchemeOptions{Fit: CioffiMcKeeBertschinger1988})
+	o := DefaultSchemeOptions()
+	o.Fit = CioffiMcKeeBertschinger1988
+	s, err := SchemeByName("terminal-momentum", o)
 	require.NoError(t, err)
 	assert.Equal(t, TerminalMomentum{Fit: CioffiMcKeeBertschinger1988}, s)
-	_, err = SchemeByName("nonsense", SchemeOptions{})
+	_, err = SchemeByName("nonsense", DefaultSchemeOptions())
 	assert.ErrorContains(t, err, "terminal-momentum")
 }
 

@@ -1,7 +1,6 @@
 package feedback
 
 import (
-	"fmt"
 	"math"
 )
 
@@ -30,26 +29,33 @@ func (ThermalDump) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
 // in the star's frame is KineticFraction times its share,
 // p_j = sqrt(2 (m_j + dm_j) f e_j).
 type Kinetic struct {
-	// KineticFraction in [0, 1]; the zero value means SedovKineticFraction.
+	// KineticFraction in [0, 1]: zero gives no kicks (a thermal dump),
+	// one gives all the energy as kicks. DefaultKinetic uses
+	// SedovKineticFraction.
 	KineticFraction float64
+}
+
+// DefaultKinetic is the kinetic scheme with the Sedov–Taylor kinetic
+// fraction, SedovKineticFraction.
+func DefaultKinetic() Kinetic { return Kinetic{KineticFraction: SedovKineticFraction} }
+
+// Validate checks the kinetic fraction (in [0, 1]).
+func (s Kinetic) Validate() error {
+	if !(s.KineticFraction >= 0 && s.KineticFraction <= 1) {
+		return errorf(ErrInvalidArgument, "kinetic scheme: kinetic fraction %g outside [0, 1]", s.KineticFraction)
+	}
+	return nil
 }
 
 // Name is "kinetic".
 func (Kinetic) Name() string { return "kinetic" }
 
-func (s Kinetic) fraction() float64 {
-	if s.KineticFraction == 0 {
-		return SedovKineticFraction
-	}
-	return s.KineticFraction
-}
-
 // Deposit implements Scheme.
 func (s Kinetic) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
-	f := s.fraction()
-	if !(f >= 0 && f <= 1) {
-		return 0, fmt.Errorf("kinetic scheme: kinetic fraction %g outside [0, 1]", f)
+	if err := s.Validate(); err != nil {
+		return 0, err
 	}
+	f := s.KineticFraction
 	src := nb.Source
 	for j := range nb.Momentum {
 		w := nb.Weight[j]

@@ -35,8 +35,9 @@ func TestStepperWithChosenSpecies(t *testing.T) {
 	g.Fractions = [][]float64{make([]float64, n), make([]float64, n), make([]float64, n)}
 	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 	require.NoError(t, err)
-	st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u}, Model: pop, Seed: 3,
-		SkipRadiation: true, SkipPhotoionization: true})
+	sc := feedback.DefaultStepConfig(feedback.Config{Units: u}, pop)
+	sc.Seed, sc.SkipRadiation, sc.SkipPhotoionization = 3, true, true
+	st, err := feedback.NewStepper(sc)
 	require.NoError(t, err)
 
 	myr := units.Megayear / u.TimeS()
@@ -65,8 +66,9 @@ func TestStepperWithChosenSpecies(t *testing.T) {
 	// the same supernova draws) takes in the same iron and oxygen, in the
 	// Iron and Oxygen slots.
 	g2 := uniformGas(11, 400, 1e4, 1, u)
-	st2, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u}, Model: ref, Seed: 3,
-		SkipRadiation: true, SkipPhotoionization: true})
+	cfg2 := feedback.DefaultStepConfig(feedback.Config{Units: u}, ref)
+	cfg2.Seed, cfg2.SkipRadiation, cfg2.SkipPhotoionization = 3, true, true
+	st2, err := feedback.NewStepper(cfg2)
 	require.NoError(t, err)
 	var out2 feedback.StepOutput
 	require.NoError(t, st2.Step(g2.View(), f, []feedback.StarParticle{star}, 0, 30*myr, &out2))
@@ -93,7 +95,7 @@ func TestChosenSpeciesMismatches(t *testing.T) {
 	// A coupling set that is not the model's is refused.
 	other, err := yields.ParseSpeciesSet("O,Fe")
 	require.NoError(t, err)
-	_, err = feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u, Species: other}, Model: pop})
+	_, err = feedback.NewStepper(feedback.DefaultStepConfig(feedback.Config{Units: u, Species: other}, pop))
 	require.ErrorIs(t, err, feedback.ErrInvalidArgument)
 	assert.Contains(t, err.Error(), "differs from the yields model's Fe,O")
 

@@ -30,10 +30,11 @@ type StepConfig struct {
 	Model yields.Model
 	// Seed keys the supernova draws.
 	Seed uint64
-	// Winds couples stellar winds; nil means Winds with the supernova
+	// Winds couples stellar winds; nil means DefaultWinds with the supernova
 	// scheme's fit (Kim & Ostriker 2015 if none).
 	Winds Scheme
-	// Radiation couples radiation pressure; nil means RadiationPressure{}.
+	// Radiation couples radiation pressure; nil means
+	// DefaultRadiationPressure().
 	Radiation Scheme
 	// Photoionization heats ionized gas; nil means Photoionization{}.
 	Photoionization Scheme
@@ -43,14 +44,35 @@ type StepConfig struct {
 	// cooling switched off for the blast-wave time of CoolingHoldTime.
 	DelayedCooling bool
 	// MaxSupernovaePerStep: a step in which some star expects more
-	// supernovae than this suggests a smaller step; 0 means 10.
+	// supernovae than this suggests a smaller step; positive (+Inf never
+	// suggests one).
 	MaxSupernovaePerStep float64
 	// PhotoheatingPerPhoton is the heat one ionizing photon can deposit,
 	// in erg, paid out of the star's radiant energy (radiation pressure
-	// couples the rest of the light); 0 means 3 eV (from memory: the mean
+	// couples the rest of the light); finite and non-negative.
+	PhotoheatingPerPhoton float64
+}
+
+// Defaults of StepConfig.
+const (
+	// DefaultMaxSupernovaePerStep is the expected supernova count of one
+	// star in one step above which a smaller step is suggested: 10, our
+	// choice (a step should resolve the explosions of a star particle
+	// into several steps' worth).
+	DefaultMaxSupernovaePerStep = 10.0
+	// DefaultPhotoheatingPerPhoton is 3 eV in erg (from memory: the mean
 	// photoelectron energy of a young cluster's spectrum, Osterbrock &
 	// Ferland 2006 order of magnitude).
-	PhotoheatingPerPhoton float64
+	DefaultPhotoheatingPerPhoton = 3 * electronVolt
+)
+
+// DefaultStepConfig is the step configuration with the given coupling and
+// model, seed 0, every channel on, DefaultMaxSupernovaePerStep and
+// DefaultPhotoheatingPerPhoton; the schemes of winds, radiation and
+// photoionization are their defaults (nil).
+func DefaultStepConfig(coupling Config, model yields.Model) StepConfig {
+	return StepConfig{Coupling: coupling, Model: model,
+		MaxSupernovaePerStep: DefaultMaxSupernovaePerStep, PhotoheatingPerPhoton: DefaultPhotoheatingPerPhoton}
 }
 
 // eV in erg (CODATA 2018: 1.602176634e-19 J, exact in the 2019 SI).
@@ -116,27 +138,21 @@ func NewStepper(cfg StepConfig) (*Stepper, error) {
 		return nil, errorf(ErrInvalidArgument, "stepper: coupling species set %s differs from the yields model's %s",
 			cfg.Coupling.Species, ms)
 	}
-	if cfg.MaxSupernovaePerStep == 0 {
-		cfg.MaxSupernovaePerStep = 10
-	}
 	if !(cfg.MaxSupernovaePerStep > 0) {
-		return nil, errorf(ErrInvalidArgument, "stepper: max supernovae per step %g must be positive", cfg.MaxSupernovaePerStep)
+		return nil, errorf(ErrInvalidArgument, "stepper: max supernovae per step %g must be positive (DefaultStepConfig gives %g)", cfg.MaxSupernovaePerStep, DefaultMaxSupernovaePerStep)
 	}
-	if cfg.PhotoheatingPerPhoton == 0 {
-		cfg.PhotoheatingPerPhoton = 3 * electronVolt
-	}
-	if !(cfg.PhotoheatingPerPhoton > 0) || math.IsInf(cfg.PhotoheatingPerPhoton, 0) {
-		return nil, errorf(ErrInvalidArgument, "stepper: photoheating per photon %g erg must be positive", cfg.PhotoheatingPerPhoton)
+	if !(cfg.PhotoheatingPerPhoton >= 0) || math.IsInf(cfg.PhotoheatingPerPhoton, 0) {
+		return nil, errorf(ErrInvalidArgument, "stepper: photoheating per photon %g erg must be finite and non-negative", cfg.PhotoheatingPerPhoton)
 	}
 	fit := KimOstriker2015
 	if tm, ok := cfg.Coupling.Scheme.(TerminalMomentum); ok {
 		fit = tm.Fit
 	}
 	if cfg.Winds == nil {
-		cfg.Winds = Winds{Fit: fit}
+		cfg.Winds = DefaultWinds(fit)
 	}
 	if cfg.Radiation == nil {
-		cfg.Radiation = RadiationPressure{}
+		cfg.Radiation = DefaultRadiationPressure()
 	}
 	if cfg.Photoionization == nil {
 		cfg.Photoionization = Photoionization{}

@@ -24,7 +24,9 @@ func ExampleStepper_Step() {
 	if err != nil {
 		panic(err)
 	}
-	stepper, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u}, Model: pop, Seed: 1})
+	cfg := feedback.DefaultStepConfig(feedback.Config{Units: u}, pop)
+	cfg.Seed = 1
+	stepper, err := feedback.NewStepper(cfg)
 	if err != nil {
 		panic(err)
 	}

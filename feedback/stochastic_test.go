@@ -36,7 +36,7 @@ func TestStochasticHeatingGivesTheJump(t *testing.T) {
 		g := uniformGas(21, 300, c.gasMass, 1, u)
 		f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 		require.NoError(t, err)
-		cp, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: feedback.StochasticHeating{Seed: 4}, Neighbors: 32})
+		cp, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: feedback.DefaultStochasticHeating(4), Neighbors: 32})
 		require.NoError(t, err)
 		view := g.View()
 		var out feedback.Output

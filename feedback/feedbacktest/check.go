@@ -11,21 +11,21 @@ import (
 	"github.com/ejecta-dev/ejecta/neighbor"
 )
 
-// Options tune the checks. The zero value is the standard strict set.
+// Options tune the checks. DefaultOptions is the standard strict set;
+// every value means what it says.
 type Options struct {
-	// Seeds are the random seeds to build scenarios with; nil means 1, 2, 3.
+	// Seeds are the random seeds to build scenarios with.
 	Seeds []uint64
-	// Tolerance is the relative round-off allowed in every balance; 0
-	// means 1e-12.
+	// Tolerance is the relative round-off allowed in every balance.
 	Tolerance float64
 	// IsotropyBound is the largest radial net momentum allowed, as a
 	// fraction of the radial momentum handed out, in scenarios whose gas
-	// surrounds the star; 0 means 1e-8. Negative skips the isotropy check
-	// (for schemes that make no isotropy claim).
+	// surrounds the star; +Inf skips the isotropy check (for schemes that
+	// make no isotropy claim).
 	IsotropyBound float64
 	// ShortfallBound is the largest energy shortfall (feedback.ApplyReport)
 	// allowed where several stars overlap, as a fraction of the energy
-	// released; 0 means 0.1. Single stars must have none.
+	// released. Single stars must have none.
 	ShortfallBound float64
 	// Release, when set, replaces each scenario star's supernova release
 	// (to check schemes for winds, radiation or photoionization).
@@ -35,27 +35,34 @@ type Options struct {
 	SkipIsotropyCorrection bool
 }
 
-func (o Options) withDefaults() Options {
-	if o.Seeds == nil {
-		o.Seeds = []uint64{1, 2, 3}
+// DefaultOptions is the standard strict set: seeds 1, 2 and 3, balances to
+// 1e-12, a radial net momentum below 1e-8 of what is handed out, and an
+// energy shortfall of overlapping stars below a tenth of their release,
+// with kernel-volume weights and the isotropy correction.
+func DefaultOptions() Options {
+	return Options{Seeds: []uint64{1, 2, 3}, Tolerance: 1e-12, IsotropyBound: 1e-8, ShortfallBound: 0.1}
+}
+
+// validate refuses options no check can use.
+func (o Options) validate() error {
+	if len(o.Seeds) == 0 {
+		return fmt.Errorf("feedbacktest: no seeds (start from DefaultOptions)")
 	}
-	if o.Tolerance == 0 {
-		o.Tolerance = 1e-12
+	for _, v := range []float64{o.Tolerance, o.IsotropyBound, o.ShortfallBound} {
+		if !(v >= 0) {
+			return fmt.Errorf("feedbacktest: tolerance or bound %g must be non-negative (start from DefaultOptions)", v)
+		}
 	}
-	if o.ShortfallBound == 0 {
-		o.ShortfallBound = 0.1
-	}
-	if o.IsotropyBound == 0 {
-		o.IsotropyBound = 1e-8
-	}
-	return o
+	return nil
 }
 
 // Check runs every scenario for every seed as a subtest of t and reports
 // each violated property as a test error.
 func Check(t *testing.T, scheme feedback.Scheme, opts Options) {
 	t.Helper()
-	opts = opts.withDefaults()
+	if err := opts.validate(); err != nil {
+		t.Fatal(err)
+	}
 	for _, seed := range opts.Seeds {
 		for _, sc := range Scenarios(seed) {
 			t.Run(fmt.Sprintf("%s/seed=%d", sc.Name, seed), func(t *testing.T) {
@@ -70,7 +77,9 @@ func Check(t *testing.T, scheme feedback.Scheme, opts Options) {
 // Run checks every scenario and seed without a testing.T and returns the
 // violations found, each naming its scenario.
 func Run(scheme feedback.Scheme, opts Options) []error {
-	opts = opts.withDefaults()
+	if err := opts.validate(); err != nil {
+		return []error{err}
+	}
 	var errs []error
 	for _, seed := range opts.Seeds {
 		for _, sc := range Scenarios(seed) {
@@ -118,7 +127,9 @@ func couple(scheme feedback.Scheme, sc Scenario, opts Options, workers int, sour
 
 // CheckScenario runs one scenario and returns every violated property.
 func CheckScenario(scheme feedback.Scheme, sc Scenario, opts Options) []error {
-	opts = opts.withDefaults()
+	if err := opts.validate(); err != nil {
+		return []error{err}
+	}
 	if opts.Release != nil {
 		srcs := make([]feedback.Source, len(sc.Sources))
 		for i, s := range sc.Sources {
@@ -201,7 +212,7 @@ func CheckScenario(scheme feedback.Scheme, sc Scenario, opts Options) []error {
 		if iso.net > tol*math.Max(iso.total, 1e-300)*10 && iso.total > 0 {
 			fail("star %d: net star-frame momentum %g of %g handed out", iso.star, iso.net, iso.total)
 		}
-		if sc.Balanced && opts.IsotropyBound > 0 && iso.radialTotal > 0 && iso.radialNet > opts.IsotropyBound*iso.radialTotal {
+		if sc.Balanced && iso.radialTotal > 0 && iso.radialNet > opts.IsotropyBound*iso.radialTotal {
 			fail("star %d: radial momentum not isotropic: net %g of %g (bound %g)", iso.star, iso.radialNet, iso.radialTotal, opts.IsotropyBound)
 		}
 	}

@@ -24,7 +24,7 @@ func TestBuiltInSchemesPass(t *testing.T) {
 		bound  [2]float64 // kernel-volume, solid-angle
 	}{
 		{"thermal-dump", feedback.ThermalDump{}, [2]float64{1e-9, 1e-9}},
-		{"kinetic-sedov", feedback.Kinetic{}, [2]float64{0.01, 0.3}},
+		{"kinetic-sedov", feedback.DefaultKinetic(), [2]float64{0.01, 0.3}},
 		{"kinetic-pure", feedback.Kinetic{KineticFraction: 1}, [2]float64{0.01, 0.8}},
 		{"terminal-ko15", feedback.TerminalMomentum{Fit: feedback.KimOstriker2015}, [2]float64{0.1, 0.1}},
 		{"terminal-cmb88", feedback.TerminalMomentum{Fit: feedback.CioffiMcKeeBertschinger1988}, [2]float64{0.1, 0.3}},
@@ -32,7 +32,9 @@ func TestBuiltInSchemesPass(t *testing.T) {
 	for _, s := range schemes {
 		for i, w := range []feedback.Weighting{feedback.KernelVolume, feedback.SolidAngle} {
 			t.Run(s.name+"/"+w.String(), func(t *testing.T) {
-				feedbacktest.Check(t, s.scheme, feedbacktest.Options{Weighting: w, Seeds: []uint64{1, 2, 3, 4}, ShortfallBound: s.bound[i]})
+				opts := feedbacktest.DefaultOptions()
+				opts.Weighting, opts.Seeds, opts.ShortfallBound = w, []uint64{1, 2, 3, 4}, s.bound[i]
+				feedbacktest.Check(t, s.scheme, opts)
 			})
 		}
 	}
@@ -103,13 +105,15 @@ func TestBrokenSchemesFail(t *testing.T) {
 		want   string
 	}{
 		{losesMass{}, "mass"},
-		{wrongFrame{}, "momentum"},
+		{wrongFrame{feedback.DefaultKinetic()}, "momentum"},
 		{oneSided{}, "momentum"},
 		{unbalancedRadial{}, "momentum"},
 	}
 	for _, c := range cases {
 		t.Run(c.scheme.Name(), func(t *testing.T) {
-			errs := feedbacktest.Run(c.scheme, feedbacktest.Options{Seeds: []uint64{1}})
+			opts := feedbacktest.DefaultOptions()
+			opts.Seeds = []uint64{1}
+			errs := feedbacktest.Run(c.scheme, opts)
 			require.NotEmpty(t, errs, "a broken scheme must fail the harness")
 			found := false
 			for _, e := range errs {
@@ -123,7 +127,9 @@ func TestBrokenSchemesFail(t *testing.T) {
 }
 
 func TestUncorrectedWeightsFailIsotropy(t *testing.T) {
-	errs := feedbacktest.Run(feedback.Kinetic{}, feedbacktest.Options{Seeds: []uint64{1}, SkipIsotropyCorrection: true})
+	opts := feedbacktest.DefaultOptions()
+	opts.Seeds, opts.SkipIsotropyCorrection = []uint64{1}, true
+	errs := feedbacktest.Run(feedback.DefaultKinetic(), opts)
 	found := false
 	for _, e := range errs {
 		if strings.Contains(e.Error(), "isotropic") {
@@ -131,4 +137,15 @@ func TestUncorrectedWeightsFailIsotropy(t *testing.T) {
 		}
 	}
 	require.True(t, found, "uncorrected radial kicks in clustered gas must exceed the isotropy bound")
+}
+
+// The zero Options are not the defaults: no seeds and zero tolerances are
+// refused with a pointer to DefaultOptions.
+func TestZeroOptionsAreRefused(t *testing.T) {
+	errs := feedbacktest.Run(feedback.ThermalDump{}, feedbacktest.Options{})
+	require.Len(t, errs, 1)
+	require.ErrorContains(t, errs[0], "DefaultOptions")
+	opts := feedbacktest.DefaultOptions()
+	opts.Tolerance = -1
+	require.Len(t, feedbacktest.Run(feedback.ThermalDump{}, opts), 1)
 }

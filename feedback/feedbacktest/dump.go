@@ -24,7 +24,7 @@ func Dump(scheme feedback.Scheme, scenario string, seed uint64) (before, after *
 	if sc == nil {
 		return nil, nil, nil, fmt.Errorf("dump: no scenario %q", scenario)
 	}
-	r, err := couple(scheme, *sc, Options{}.withDefaults(), 1, sc.Sources)
+	r, err := couple(scheme, *sc, DefaultOptions(), 1, sc.Sources)
 	if err != nil {
 		return nil, nil, nil, fmt.Errorf("dump: %w", err)
 	}

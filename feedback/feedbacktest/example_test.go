@@ -9,7 +9,9 @@ import (
 
 // Run the harness on a scheme outside go test (inside a test, use Check).
 func ExampleRun() {
-	errs := feedbacktest.Run(feedback.TerminalMomentum{Fit: feedback.KimOstriker2015}, feedbacktest.Options{Seeds: []uint64{1}})
+	opts := feedbacktest.DefaultOptions()
+	opts.Seeds = []uint64{1}
+	errs := feedbacktest.Run(feedback.TerminalMomentum{Fit: feedback.KimOstriker2015}, opts)
 	fmt.Println("violations:", len(errs))
 	// Output:
 	// violations: 0

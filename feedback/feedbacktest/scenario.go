@@ -9,7 +9,7 @@
 // order.
 //
 //	func TestMyScheme(t *testing.T) {
-//		feedbacktest.Check(t, MyScheme{}, feedbacktest.Options{})
+//		feedbacktest.Check(t, MyScheme{}, feedbacktest.DefaultOptions())
 //	}
 package feedbacktest
 

@@ -1,0 +1,80 @@
+package feedback_test
+
+import (
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/neighbor"
+	"github.com/ejecta-dev/ejecta/yields"
+	"github.com/ejecta-dev/ejecta/yields/units"
+)
+
+// Zero is a setting like any other: a zero kinetic fraction gives no
+// kicks (it once gave the Sedov-Taylor 28%), zero opacities absorb no
+// light, zero photoheating heats nothing, and settings for which zero has
+// no meaning are refused; the defaults come from the Default functions.
+func TestZeroSettingsMeanZero(t *testing.T) {
+	u := pcMsunKms()
+	radial := func(t *testing.T, s feedback.Scheme) float64 {
+		g := uniformGas(14, 200, 100, 1, u)
+		out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: s, Neighbors: 32}, []feedback.Source{supernova(1, u)})
+		return out.Ledger.RadialMomentum
+	}
+	t.Run("kinetic fraction", func(t *testing.T) {
+		assert.Zero(t, radial(t, feedback.Kinetic{KineticFraction: 0}))
+		assert.Positive(t, radial(t, feedback.DefaultKinetic()))
+		assert.Equal(t, feedback.SedovKineticFraction, feedback.DefaultKinetic().KineticFraction)
+		k, err := feedback.SchemeByName("kinetic", feedback.SchemeOptions{})
+		require.NoError(t, err)
+		assert.Equal(t, feedback.Kinetic{}, k)
+		k, err = feedback.SchemeByName("kinetic", feedback.DefaultSchemeOptions())
+		require.NoError(t, err)
+		assert.Equal(t, feedback.DefaultKinetic(), k)
+	})
+	t.Run("opacities", func(t *testing.T) {
+		e := 1e6 * units.SolarLuminosity * units.Megayear / u.EnergyErg()
+		rp := feedback.RadiationPressure{MaxInfraredBoost: feedback.DefaultMaxInfraredBoost}
+		assert.Zero(t, rp.Momentum(e, 100, 1, u))
+		assert.Positive(t, feedback.DefaultRadiationPressure().Momentum(e, 100, 1, u))
+	})
+	t.Run("settings without a zero", func(t *testing.T) {
+		for _, s := range []feedback.Scheme{feedback.StochasticHeating{}, feedback.RadiationPressure{}} {
+			_, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: s})
+			assert.ErrorIs(t, err, feedback.ErrInvalidArgument, s.Name())
+		}
+		_, err := feedback.SchemeByName("stochastic-heating", feedback.SchemeOptions{})
+		assert.ErrorIs(t, err, feedback.ErrInvalidArgument)
+		pop, err := yields.NewPopulation(yields.DefaultConfig())
+		require.NoError(t, err)
+		cfg := feedback.DefaultStepConfig(feedback.Config{Units: u}, pop)
+		cfg.MaxSupernovaePerStep = 0
+		_, err = feedback.NewStepper(cfg)
+		assert.ErrorIs(t, err, feedback.ErrInvalidArgument)
+	})
+	t.Run("photoheating", func(t *testing.T) {
+		pop, err := yields.NewPopulation(yields.DefaultConfig())
+		require.NoError(t, err)
+		g := uniformGas(15, 400, 100, 1, u)
+		f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
+		require.NoError(t, err)
+		myr := units.Megayear / u.TimeS()
+		star := feedback.StarParticle{Star: feedback.Star{ID: 1, Mass: 1e4, Metallicity: 0.0134, Age: 0.5 * myr}, FormedMass: 1e4}
+		for _, perPhoton := range []float64{0, feedback.DefaultPhotoheatingPerPhoton} {
+			cfg := feedback.DefaultStepConfig(feedback.Config{Units: u}, pop)
+			cfg.PhotoheatingPerPhoton = perPhoton
+			st, err := feedback.NewStepper(cfg)
+			require.NoError(t, err)
+			var out feedback.StepOutput
+			require.NoError(t, st.Step(g.View(), f, []feedback.StarParticle{star}, 0, myr, &out))
+			heat := out.Channels[yields.Photoionization].In.Energy
+			if perPhoton == 0 {
+				assert.Zero(t, heat)
+			} else {
+				assert.Positive(t, heat)
+			}
+		}
+	})
+}
