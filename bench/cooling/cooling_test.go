@@ -58,6 +58,9 @@ func TestBuiltinEquilibrium(t *testing.T) {
 		// A zone at its equilibrium stays there.
 		teq := c.EquilibriumTemperature(n)
 		assert.Equal(t, teq, c.Evolve(n, teq, 1e15, 1e-14, math.NaN()))
+		// Round-off in the density or temperature does not move it either.
+		near := teq * (1 + 4e-16)
+		assert.Equal(t, near, c.Evolve(n*(1+2e-16), near, 1e15, 1e-14, math.NaN()))
 	}
 }
 

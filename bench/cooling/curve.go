@@ -203,6 +203,12 @@ func (c *Curve) EquilibriumTemperature(nH float64) float64 {
 	return math.Inf(1)
 }
 
+// equilibriumTolerance is the relative distance from the equilibrium
+// temperature within which gas counts as in equilibrium and is left alone:
+// round-off in converting densities and energies between unit systems must
+// not make gas at rest cool or heat.
+const equilibriumTolerance = 1e-12
+
 // Evolve advances the temperature t (K) of gas at fixed hydrogen density nH
 // (cm^-3) over dt seconds, with heatCapacity = n k_B / (γ − 1) the heat
 // capacity per unit volume in erg K^-1 cm^-3 (Gas.HeatCapacity). Above the
@@ -211,13 +217,16 @@ func (c *Curve) EquilibriumTemperature(nH float64) float64 {
 // heats at n_H Γ and stops at teq. The energy lost per unit volume is
 // heatCapacity × (t − tNew) (negative when heated). Pass teq from a
 // previous call at the same density to skip its search, or a NaN to have it
-// computed.
+// computed. Gas within 1e-12 (relative) of teq is returned unchanged.
 func (c *Curve) Evolve(nH, t, dt, heatCapacity, teq float64) (tNew float64) {
 	if !(dt > 0) || !(nH > 0) || !(heatCapacity > 0) {
 		return t
 	}
 	if math.IsNaN(teq) {
 		teq = c.EquilibriumTemperature(nH)
+	}
+	if math.Abs(t-teq) <= equilibriumTolerance*teq {
+		return t // at equilibrium up to round-off in the density or temperature
 	}
 	switch {
 	case t > teq:
