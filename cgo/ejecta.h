@@ -150,8 +150,9 @@ extern "C" {
  * ejecta_get_channel_ledger); not accepted in ejecta_star.channel. */
 #define EJECTA_CHANNEL_RADIATION_PRESSURE 4
 #define EJECTA_CHANNEL_PHOTOIONIZATION 5
-/* Number of channels a population step drives (0..5 above). */
-#define EJECTA_NUM_STEP_CHANNELS 6
+#define EJECTA_CHANNEL_PHOTOELECTRIC_HEATING 6
+/* Number of channels a population step drives (0..6 above). */
+#define EJECTA_NUM_STEP_CHANNELS 7
 
 /* Where a step finds each star's gas (ejecta_step's neighbor_mode). */
 /* ejecta's own k-d tree, built on the bound gas positions. */

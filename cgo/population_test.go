@@ -214,7 +214,7 @@ func TestStepPopulationErrors(t *testing.T) {
 		{"results before any step", func() int32 { return entryCopyStarResults(h, &res[0], 1, &w) }, codeOK, ""},
 		{"suggested step: null", func() int32 { return entrySuggestedStep(h, nil) }, codeNullPointer, "dt"},
 		{"suggested step before any step", func() int32 { return entrySuggestedStep(h, &dt) }, codeOK, ""},
-		{"channel ledger: channel 6", func() int32 { return entryGetChannelLedger(h, 6, &l) }, codeInvalidArgument, "channel"},
+		{"channel ledger: one past the last", func() int32 { return entryGetChannelLedger(h, int32(yields.NumAllChannels), &l) }, codeInvalidArgument, "channel"},
 		{"channel ledger: channel -1", func() int32 { return entryGetChannelLedger(h, -1, &l) }, codeInvalidArgument, "channel"},
 		{"channel ledger: null", func() int32 { return entryGetChannelLedger(h, 0, nil) }, codeNullPointer, "ledger"},
 	}

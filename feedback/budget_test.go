@@ -78,10 +78,10 @@ func boosted(b float64) feedback.RadiationPressure {
 }
 
 func TestPhotoheatingIsPaidFromTheLight(t *testing.T) {
-	// The heat photoionization deposits is part of the light the stars
-	// emit: radiation pressure and photoionization together take in the
-	// population's radiant energy, not more (energy conservation). A
-	// 1e4 Msun population from 0.5 to 1.5 Myr.
+	// The heat photoionization and photoelectric heating deposit is part of
+	// the light the stars emit: radiation pressure and the two heating
+	// channels together take in the population's radiant energy, not more
+	// (energy conservation). A 1e4 Msun population from 0.5 to 1.5 Myr.
 	u := pcMsunKms()
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
@@ -111,6 +111,15 @@ func TestPhotoheatingIsPaidFromTheLight(t *testing.T) {
 		require.NoError(t, st.Step(g.View(), f, []feedback.StarParticle{star}, 0, myr, &out))
 		rad := out.Channels[yields.RadiationPressure].In.Energy
 		ion := out.Channels[yields.Photoionization].In.Energy
+		pe := out.Channels[yields.PhotoelectricHeating]
+		require.NoError(t, out.Ledger.Balanced(1e-12), c.name)
+		if c.rad {
+			// The photoelectric channel keeps only its heat in its books.
+			assert.Greater(t, pe.In.Energy, 0.0, c.name)
+			assert.InEpsilon(t, pe.In.Energy, pe.Deposited.Energy, 1e-12, c.name)
+			assert.Zero(t, pe.Radiated, c.name)
+			rad += pe.In.Energy
+		}
 		photons := rel.IonizingPhotons * 1e4
 		heat := photons * 3 * 1.602176634e-12 / u.EnergyErg() // 3 eV per photon, the default
 		if c.heat {

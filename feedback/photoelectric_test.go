@@ -11,6 +11,7 @@ import (
 	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
 	"github.com/ejecta-dev/ejecta/neighbor"
+	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
@@ -67,7 +68,7 @@ func TestFUVFieldIsAttenuatedByTheDustInFront(t *testing.T) {
 	for _, r := range out.Records { // nearest first
 		i := r.GasIndex
 		d := math.Sqrt(math.Pow(g.Pos[0][i]-star[0], 2) + math.Pow(g.Pos[1][i]-star[1], 2) + math.Pow(g.Pos[2][i]-star[2], 2))
-		clearField := feedback.FUVFieldAt(1e39, math.Max(d, 1.24)*units.Parsec, 0)
+		clearField := feedback.FUVFieldAt(1e39, math.Max(d, 2*math.Cbrt(3/(4*math.Pi)))*units.Parsec, 0)
 		ratio := r.FUVField / clearField
 		assert.Less(t, ratio, 1.0)
 		assert.LessOrEqual(t, ratio, prev*(1+1e-12), "attenuation grows outwards")
@@ -237,4 +238,73 @@ func treeOf(t *testing.T, g *audit.GasArrays) neighbor.Finder {
 	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 	require.NoError(t, err)
 	return f
+}
+
+func TestStepperLightsTheGasWithThePopulationsFarUltraviolet(t *testing.T) {
+	// The stepper's photoelectric channel sees the population's
+	// far-ultraviolet light: in clear gas each element's G0 is the mean
+	// far-ultraviolet luminosity over the step over 4 pi r^2, in Habing
+	// units (inverse-square arithmetic), and with dust the heat it
+	// deposits is paid out of the light radiation pressure couples.
+	u := pcMsunKms()
+	pop, err := yields.NewPopulation(yields.DefaultConfig())
+	require.NoError(t, err)
+	myr := units.Megayear / u.TimeS()
+	star := feedback.StarParticle{Star: feedback.Star{ID: 9, Pos: [3]float64{0.3, -0.2, 0.1}, Mass: 1e4, Metallicity: 0.0134, Age: myr},
+		FormedMass: 1e4}
+	rel, err := pop.Release(1, 1.1, 0.0134)
+	require.NoError(t, err)
+	lum := rel.FarUltravioletEnergy * 1e4 / (0.1 * units.Megayear) // erg/s
+	mid, err := pop.FarUltravioletLuminosity(1.05, 0.0134)
+	require.NoError(t, err)
+	assert.InEpsilon(t, mid*1e4*units.SolarLuminosity, lum, 0.01, "a young population's light barely changes in 0.1 Myr")
+
+	clear := feedback.DefaultPhotoelectricHeating()
+	clear.FUVOpacity = 0
+	for _, c := range []struct {
+		name   string
+		scheme feedback.Scheme
+	}{{"clear", clear}, {"dusty", nil}} {
+		t.Run(c.name, func(t *testing.T) {
+			g := latticeGas(9, 2, 10, u)
+			st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u, Neighbors: 100}, Model: pop, Seed: 1,
+				Photoelectric: c.scheme})
+			require.NoError(t, err)
+			var out feedback.StepOutput
+			view := g.View()
+			require.NoError(t, st.Step(view, treeOf(t, g), []feedback.StarParticle{star}, 0, 0.1*myr, &out))
+			require.NoError(t, out.Ledger.Balanced(1e-12))
+			lit := 0
+			for _, r := range out.Records {
+				if r.Channel != yields.PhotoelectricHeating {
+					assert.Zero(t, r.FUVField)
+					continue
+				}
+				lit++
+				i := r.GasIndex
+				d := math.Sqrt(math.Pow(g.Pos[0][i]-0.3, 2) + math.Pow(g.Pos[1][i]+0.2, 2) + math.Pow(g.Pos[2][i]-0.1, 2))
+				clearField := lum / (4 * math.Pi * math.Pow(math.Max(d, 2*math.Cbrt(3/(4*math.Pi)))*units.Parsec, 2)) / 1.6e-3
+				if c.scheme != nil {
+					assert.InEpsilon(t, clearField, r.FUVField, 1e-6)
+				} else {
+					assert.Less(t, r.FUVField, clearField)
+				}
+			}
+			assert.Equal(t, 100, lit)
+			pe := out.Channels[yields.PhotoelectricHeating]
+			light := rel.RadiantEnergy * 1e4 / u.EnergyErg()
+			total := pe.In.Energy + out.Channels[yields.RadiationPressure].In.Energy + out.Channels[yields.Photoionization].In.Energy
+			assert.InEpsilon(t, light, total, 1e-12, "the light is coupled once")
+			if c.scheme == nil {
+				assert.Greater(t, pe.Heat, 0.0)
+			} else {
+				assert.Zero(t, pe.Heat)
+			}
+			touched, _, err := feedback.Apply(view, out.Records, nil)
+			require.NoError(t, err)
+			for _, tc := range touched {
+				assert.Greater(t, tc.FUVField, 0.0, "every touched element was lit")
+			}
+		})
+	}
 }

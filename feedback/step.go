@@ -38,8 +38,15 @@ type StepConfig struct {
 	Radiation Scheme
 	// Photoionization heats ionized gas; nil means Photoionization{}.
 	Photoionization Scheme
-	// SkipWinds, SkipRadiation and SkipPhotoionization turn channels off.
-	SkipWinds, SkipRadiation, SkipPhotoionization bool
+	// Photoelectric heats gas with the far-ultraviolet light; nil means
+	// DefaultPhotoelectricHeating(). The heat is paid out of the light:
+	// radiation pressure couples the light less the photoionization and
+	// photoelectric heat, and the photoelectric channel's ledger takes in
+	// only the heat it deposited.
+	Photoelectric Scheme
+	// SkipWinds, SkipRadiation, SkipPhotoionization and SkipPhotoelectric
+	// turn channels off.
+	SkipWinds, SkipRadiation, SkipPhotoionization, SkipPhotoelectric bool
 	// DelayedCooling flags the gas touched by supernovae to have its
 	// cooling switched off for the blast-wave time of CoolingHoldTime.
 	DelayedCooling bool
@@ -157,11 +164,15 @@ func NewStepper(cfg StepConfig) (*Stepper, error) {
 	if cfg.Photoionization == nil {
 		cfg.Photoionization = Photoionization{}
 	}
+	if cfg.Photoelectric == nil {
+		cfg.Photoelectric = DefaultPhotoelectricHeating()
+	}
 	s := &Stepper{cfg: cfg}
 	schemes := [yields.NumAllChannels]Scheme{
 		yields.CoreCollapse: cfg.Coupling.Scheme, yields.TypeIa: cfg.Coupling.Scheme,
 		yields.MassiveWinds: cfg.Winds, yields.AGBWinds: cfg.Winds,
 		yields.RadiationPressure: cfg.Radiation, yields.Photoionization: cfg.Photoionization,
+		yields.PhotoelectricHeating: cfg.Photoelectric,
 	}
 	for c, sch := range schemes {
 		cc := cfg.Coupling
@@ -268,8 +279,16 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 		if !s.cfg.SkipRadiation {
 			rad.Energy = math.Max(light-ion.Energy, 0)
 		}
+		// The photoelectric channel sees the far-ultraviolet light; its
+		// heat is taken off the radiation-pressure light once known.
+		pe := base
+		pe.Channel = yields.PhotoelectricHeating
+		if !s.cfg.SkipPhotoelectric {
+			pe.Energy = math.Min(rel.FarUltravioletEnergy*formed*erg, math.Max(light-ion.Energy, 0))
+		}
 		s.sources[yields.RadiationPressure] = append(s.sources[yields.RadiationPressure], rad)
 		s.sources[yields.Photoionization] = append(s.sources[yields.Photoionization], ion)
+		s.sources[yields.PhotoelectricHeating] = append(s.sources[yields.PhotoelectricHeating], pe)
 	}
 	if maxExpected > s.cfg.MaxSupernovaePerStep {
 		out.SuggestedStep = dt * s.cfg.MaxSupernovaePerStep / maxExpected
@@ -281,7 +300,7 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 	if err := s.search.fill(finder, stars, s.couplers[0].Config()); err != nil {
 		return fmt.Errorf("step: neighbor search: %w", err)
 	}
-	for c := range s.couplers {
+	for _, c := range couplingOrder() {
 		o := &s.outs[c]
 		if err := s.couplers[c].Couple(gas, &s.search, s.sources[c], o); err != nil {
 			// Nothing of a failed step is deposited, not even the
@@ -290,8 +309,11 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 			out.Ledger, out.Channels = Ledger{}, [yields.NumAllChannels]Ledger{}
 			return fmt.Errorf("step: channel %s: %w", yields.Channel(c).String(), err)
 		}
-		if s.cfg.DelayedCooling && yields.Channel(c).Discrete() {
-			s.delayCooling(gas, c, o.Records)
+		if s.cfg.DelayedCooling && c.Discrete() {
+			s.delayCooling(gas, int(c), o.Records)
+		}
+		if c == yields.PhotoelectricHeating && !s.cfg.SkipRadiation {
+			s.passLightOn(o)
 		}
 		out.Records = append(out.Records, o.Records...)
 		out.Channels[c] = o.Ledger
@@ -314,6 +336,40 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 		}
 	}
 	return nil
+}
+
+// couplingOrder is the order the stepper couples its channels in:
+// radiation pressure last, so it can take the light the heating channels
+// left.
+func couplingOrder() [yields.NumAllChannels]yields.Channel {
+	return [...]yields.Channel{yields.CoreCollapse, yields.TypeIa, yields.MassiveWinds, yields.AGBWinds,
+		yields.Photoionization, yields.PhotoelectricHeating, yields.RadiationPressure}
+}
+
+// passLightOn hands the far-ultraviolet light photoelectric heating did not
+// turn into heat on to radiation pressure: each star's radiation-pressure
+// light is reduced by the heat its photoelectric records deposited, and the
+// photoelectric output keeps in its books only that heat (what it booked as
+// radiated or returned is the light radiation pressure now couples).
+func (s *Stepper) passLightOn(o *Output) {
+	srcs := s.sources[yields.PhotoelectricHeating]
+	rad := s.sources[yields.RadiationPressure]
+	j := 0
+	for k := range o.Records {
+		r := &o.Records[k]
+		// Records come grouped by source, in the sources' order.
+		for srcs[j].Star.ID != r.StarID {
+			j++
+		}
+		rad[j].Energy = math.Max(rad[j].Energy-r.Energy, 0)
+	}
+	// The sources carry no mass or momentum: what went in is the heat.
+	l := &o.Ledger
+	l.In.Energy = l.Deposited.Energy
+	l.Radiated, l.Undeposited.Energy = 0, 0
+	for i := range o.Undeposited {
+		o.Undeposited[i].Energy = 0
+	}
 }
 
 // delayCooling flags supernova records with the blast-wave cooling-hold

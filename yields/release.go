@@ -69,12 +69,16 @@ const (
 	// Photoionization is the population's hydrogen-ionizing photons
 	// (Release.IonizingPhotons), coupled as photoheating.
 	Photoionization
+	// PhotoelectricHeating is the population's far-ultraviolet light
+	// (Release.FarUltravioletEnergy), coupled as photoelectric heating of
+	// the gas by dust grains.
+	PhotoelectricHeating
 	// NumAllChannels counts every channel, the ejecta channels first.
 	NumAllChannels
 )
 
 var channelNames = [NumAllChannels]string{"core-collapse", "type-ia", "massive-winds", "agb-winds",
-	"radiation-pressure", "photoionization"}
+	"radiation-pressure", "photoionization", "photoelectric-heating"}
 
 // String is the channel's name.
 func (c Channel) String() string {

@@ -291,8 +291,9 @@ int main(int argc, char **argv) {
            (long long)ghost_records, (long long)ghost_elements);
     printf("supernovae_cc=%lld supernovae_ia=%lld min_suggested=%.17g\n", (long long)total_sn_cc,
            (long long)total_sn_ia, min_suggested);
-    static const char *names[EJECTA_NUM_STEP_CHANNELS] = {"core_collapse", "type_ia", "massive_winds",
-                                                          "agb_winds", "radiation_pressure", "photoionization"};
+    static const char *names[EJECTA_NUM_STEP_CHANNELS] = {"core_collapse",      "type_ia",         "massive_winds",
+                                                          "agb_winds",          "radiation_pressure", "photoionization",
+                                                          "photoelectric_heating"};
     for (int c = 0; c < EJECTA_NUM_STEP_CHANNELS; c++)
       printf("%s_mass=%.17g %s_energy=%.17g\n", names[c], channel_mass[c], names[c], channel_energy[c]);
     printf("star_mass_loss=%.17g gas_mass_gain=%.17g deposited_energy=%.17g gas_energy_gain=%.17g\n", lost, dm,

@@ -32,8 +32,9 @@ module ejecta_mod
   ! Channels, neighbor modes, record locating, flags.
   integer(c_int32_t), parameter, public :: EJECTA_CHANNEL_CORE_COLLAPSE = 0, EJECTA_CHANNEL_TYPE_IA = 1, &
        EJECTA_CHANNEL_MASSIVE_WINDS = 2, EJECTA_CHANNEL_AGB_WINDS = 3, &
-       EJECTA_CHANNEL_RADIATION_PRESSURE = 4, EJECTA_CHANNEL_PHOTOIONIZATION = 5
-  integer, parameter, public :: EJECTA_NUM_STEP_CHANNELS = 6
+       EJECTA_CHANNEL_RADIATION_PRESSURE = 4, EJECTA_CHANNEL_PHOTOIONIZATION = 5, &
+       EJECTA_CHANNEL_PHOTOELECTRIC_HEATING = 6
+  integer, parameter, public :: EJECTA_NUM_STEP_CHANNELS = 7
   integer(c_int32_t), parameter, public :: EJECTA_NEIGHBORS_OWN_FINDER = 0, EJECTA_NEIGHBORS_HOST_ROWS = 1
   integer(c_int32_t), parameter, public :: EJECTA_LOCATE_BY_INDEX = 0, EJECTA_LOCATE_BY_ID = 1
   integer(c_int32_t), parameter, public :: EJECTA_FLAG_CAPPED = 1, EJECTA_FLAG_LIMITED = 2, &
