@@ -267,8 +267,9 @@ func TestStepperLightsTheGasWithThePopulationsFarUltraviolet(t *testing.T) {
 	}{{"clear", clear}, {"dusty", nil}} {
 		t.Run(c.name, func(t *testing.T) {
 			g := latticeGas(9, 2, 10, u)
-			st, err := feedback.NewStepper(feedback.StepConfig{Coupling: feedback.Config{Units: u, Neighbors: 100}, Model: pop, Seed: 1,
-				Photoelectric: c.scheme})
+			cfg := feedback.DefaultStepConfig(feedback.Config{Units: u, Neighbors: 100}, pop)
+			cfg.Seed, cfg.Photoelectric = 1, c.scheme
+			st, err := feedback.NewStepper(cfg)
 			require.NoError(t, err)
 			var out feedback.StepOutput
 			view := g.View()
