@@ -100,3 +100,33 @@ func ExampleZAMS() {
 	// Output:
 	// log L = 5.35, R = 9.3 Rsun, Teff = 41246 K, log Q = 49.10
 }
+
+// A simulation that tracks only iron and oxygen (and, always, the total
+// metals) chooses them by symbol; releases are then laid out in that
+// order: slot 1 iron, slot 2 oxygen.
+func ExampleParseSpeciesSet() {
+	set, err := yields.ParseSpeciesSet("Fe, O")
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	cfg := yields.DefaultConfig()
+	cfg.Species = set
+	pop, err := yields.NewPopulation(cfg)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	r, _ := pop.Release(0, yields.HubbleTime, 0.0134)
+	t := r.Total()
+	fmt.Println("slots:", strings.Join(set.Symbols(), " "))
+	fmt.Printf("%s/%s ejected: %.2f\n", set.Symbol(1), set.Symbol(2), t.Species[1]/t.Species[2])
+	_, err = yields.ParseSpeciesSet("Fe, Fe")
+	fmt.Println(err)
+	fmt.Println("default:", yields.DefaultSpeciesSet())
+	// Output:
+	// slots: Z Fe O
+	// Fe/O ejected: 0.16
+	// yields: species set: Fe named twice: invalid species set
+	// default: H,He,C,N,O,Ne,Mg,Si,S,Ca,Fe
+}
