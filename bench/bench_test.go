@@ -28,6 +28,10 @@ func BenchmarkSchemes(b *testing.B) {
 			if err != nil {
 				b.Fatal(err)
 			}
+			sources, err := newDrives().sources(s, sources, c.Units)
+			if err != nil {
+				b.Fatal(err)
+			}
 			var floor TouchFloor
 			var out feedback.Output
 			var touched []feedback.Touched

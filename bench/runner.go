@@ -323,6 +323,7 @@ func run(cases []caseSource, speedCase *Case, neighbors int, speed SpeedSpec, op
 	if len(schemes) == 0 {
 		return nil, errors.New("run: no schemes to compare")
 	}
+	drv := newDrives()
 	if neighbors <= 0 {
 		return nil, fmt.Errorf("run: neighbor count %d must be positive", neighbors)
 	}
@@ -368,6 +369,10 @@ func run(cases []caseSource, speedCase *Case, neighbors int, speed SpeedSpec, op
 			if err != nil {
 				return nil, fmt.Errorf("run: %w", err)
 			}
+			sources, err := drv.sources(s, sources, c.Units)
+			if err != nil {
+				return nil, fmt.Errorf("run: set-up %s: %w", c.Setup, err)
+			}
 			if err := cp.Couple(gas, tree, sources, &out); err != nil {
 				return nil, fmt.Errorf("run: scheme %s on %s: %w", s.Name, c.Setup, err)
 			}
@@ -397,7 +402,7 @@ func run(cases []caseSource, speedCase *Case, neighbors int, speed SpeedSpec, op
 		res.Isotropy = append(res.Isotropy, *r)
 	}
 	if speedCase != nil {
-		rows, err := measureSpeed(speedCase, schemes, neighbors, speed, opts.Workers, step)
+		rows, err := measureSpeed(speedCase, schemes, drv, neighbors, speed, opts.Workers, step)
 		if err != nil {
 			return nil, fmt.Errorf("run: %w", err)
 		}
@@ -459,12 +464,19 @@ func measure(scheme string, c *Case, sources []feedback.Source, out *feedback.Ou
 		src := &sources[si]
 		mSw, pt := 0.0, 0.0
 		nrec := 0
+		equal := 1 / float64(max(countRecords(out.Records[r:], src.Star.ID), 1))
 		for ; r < len(out.Records) && out.Records[r].StarID == src.Star.ID; r++ {
 			rec := &out.Records[r]
 			nrec++
 			i := rec.GasIndex
 			mSw += gas.Mass[i]
-			w := rec.Mass / src.Mass
+			// The neighbor's share of the supernova's reference momentum:
+			// its share of the ejecta, or an equal share for a release
+			// without mass (light).
+			w := equal
+			if src.Mass > 0 {
+				w = rec.Mass / src.Mass
+			}
 			rho := gas.Density[i] * u.DensityGCm3()
 			n := rho / (feedback.MassPerHydrogen * units.ProtonMass)
 			z := src.Star.Metallicity
@@ -511,6 +523,15 @@ func measure(scheme string, c *Case, sources []feedback.Source, out *feedback.Ou
 	return conv, budget
 }
 
+// countRecords counts the leading records of star id.
+func countRecords(recs []feedback.Record, id int64) int {
+	n := 0
+	for n < len(recs) && recs[n].StarID == id {
+		n++
+	}
+	return n
+}
+
 // EnergyConservingMomentum is the momentum, in Msun km/s, of a remnant of
 // energy e (erg) and ejecta mass ejecta (Msun) that has swept up swept
 // (Msun) without radiating: p_EC = sqrt(2 e (M_ej + 0.28 M_sw)). See
@@ -552,7 +573,7 @@ const floorPassesPerRound = 3
 // floor on the same gas, alternating floor and scheme passes and keeping
 // the fastest of each, which is the least disturbed by other work on the
 // machine.
-func measureSpeed(c *Case, schemes []SchemeSpec, neighbors int, spec SpeedSpec, workers int, step func()) ([]Speed, error) {
+func measureSpeed(c *Case, schemes []SchemeSpec, drv *drives, neighbors int, spec SpeedSpec, workers int, step func()) ([]Speed, error) {
 	pristine := c.Gas
 	work := pristine.Clone()
 	gas := work.View()
@@ -579,6 +600,10 @@ func measureSpeed(c *Case, schemes []SchemeSpec, neighbors int, spec SpeedSpec, 
 	var rows []Speed
 	for _, s := range schemes {
 		cp, err := newCoupler(s, c, k, workers)
+		if err != nil {
+			return nil, fmt.Errorf("speed: %w", err)
+		}
+		sources, err := drv.sources(s, sources, c.Units)
 		if err != nil {
 			return nil, fmt.Errorf("speed: %w", err)
 		}

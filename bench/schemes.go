@@ -3,8 +3,11 @@ package bench
 import (
 	"fmt"
 	"strings"
+	"sync"
 
 	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/yields"
+	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
 // SchemeSpec is one coupling variant the runner compares: a scheme and the
@@ -21,6 +24,73 @@ type SchemeSpec struct {
 	// SkipIsotropyCorrection runs the variant without the isotropy
 	// correction, for comparison.
 	SkipIsotropyCorrection bool
+	// Drive is what the variant couples at each star.
+	Drive Drive
+}
+
+// Drive is what a compared variant couples at each star of a case.
+type Drive uint8
+
+const (
+	// SupernovaDrive couples the case's supernova (SupernovaEnergyErg,
+	// EjectaMassMsun).
+	SupernovaDrive Drive = iota
+	// YoungLightDrive couples the far-ultraviolet light the built-in
+	// population (solar metallicity) emits over its first YoungLightAge
+	// Myr, for the stellar mass that makes one core-collapse supernova over
+	// its life: the light of the stars behind the case's supernova, before
+	// it goes off.
+	YoungLightDrive
+)
+
+// YoungLightAge is the age (Myr) up to which YoungLightDrive takes a
+// population's light: the first core-collapse supernovae go off at about
+// 3 Myr (common practice).
+const YoungLightAge = 3
+
+// drives builds each drive's releases for a run, the population behind
+// YoungLightDrive on first use only.
+type drives struct {
+	youngLight func() (float64, error) // erg per supernova
+}
+
+func newDrives() *drives {
+	return &drives{youngLight: sync.OnceValues(func() (float64, error) {
+		pop, err := yields.NewPopulation(yields.DefaultConfig())
+		if err != nil {
+			return 0, err
+		}
+		young, err := pop.Release(0, YoungLightAge, feedback.SolarMetallicity)
+		if err != nil {
+			return 0, err
+		}
+		life, err := pop.Release(0, 1e5, feedback.SolarMetallicity)
+		if err != nil {
+			return 0, err
+		}
+		return young.FarUltravioletEnergy / life.Channels[yields.CoreCollapse].Events, nil
+	})}
+}
+
+// sources is what variant s couples for the case's supernova releases sn
+// (in code units u).
+func (d *drives) sources(s SchemeSpec, sn []feedback.Source, u units.CodeUnits) ([]feedback.Source, error) {
+	switch s.Drive {
+	case SupernovaDrive:
+		return sn, nil
+	case YoungLightDrive:
+		e, err := d.youngLight()
+		if err != nil {
+			return nil, fmt.Errorf("scheme %s: young light: %w", s.Name, err)
+		}
+		out := make([]feedback.Source, len(sn))
+		for i, src := range sn {
+			out[i] = feedback.Source{Star: src.Star, Channel: yields.PhotoelectricHeating, Energy: e / u.EnergyErg(),
+				Duration: YoungLightAge * units.Megayear / u.TimeS(), Step: src.Step}
+		}
+		return out, nil
+	}
+	return nil, fmt.Errorf("scheme %s: unknown drive %d", s.Name, s.Drive)
 }
 
 // Schemes returns every variant the runner knows, in a fixed order. A new
@@ -45,6 +115,8 @@ func Schemes() []SchemeSpec {
 			Scheme: feedback.DefaultKickedWinds()},
 		{Name: "kicked-winds-momentum-driven", Description: "kicked wind with momentum-driven scalings (Oppenheimer & Davé 2006) from the local gas dispersion",
 			Scheme: feedback.DefaultMomentumDrivenWinds()},
+		{Name: "photoelectric-heating", Description: "far-ultraviolet light of the stars behind one supernova over their first 3 Myr, heating by dust photoelectrons (Bakes & Tielens 1994)",
+			Scheme: feedback.DefaultPhotoelectricHeating(), Drive: YoungLightDrive},
 	}
 }
 
