@@ -281,7 +281,7 @@ func TestUndepositedStarIsReported(t *testing.T) {
 	stars := supernovae(2, 8, 5)
 	stars[1].Position = [3]float64{100, 100, 100}
 	require.Equal(t, codeUndeposited, entryStep(h, &stars[0], 2, 0, modeOwnFinder, nil, nil))
-	assert.Contains(t, lastError(h), "releases returned undeposited: 1 (of 2 stars)")
+	assert.Contains(t, lastError(h), "releases returned undeposited: 1 releases; first: star 8")
 	var l ledgerABI
 	require.Equal(t, codeOK, entryGetLedger(h, &l))
 	assert.Equal(t, int64(1), l.Skipped)
@@ -295,6 +295,7 @@ func TestUndepositedStarIsReported(t *testing.T) {
 	assert.Equal(t, stars[1].ID, ids[0])
 	assert.Equal(t, stars[1].Channel, chans[0])
 	assert.Equal(t, codeBufferTooSmall, entryCopyUndeposited(h, nil, nil, 0, &w))
+	assert.Equal(t, int64(1), w, "capacity 0 asks for the count")
 	assert.Equal(t, codeNullPointer, entryCopyUndeposited(h, nil, nil, 1, &w))
 	assert.Equal(t, codeInvalidArgument, entryCopyUndeposited(h, &ids[0], nil, -1, &w))
 	assert.Equal(t, codeNullPointer, entryCopyUndeposited(h, &ids[0], nil, 1, nil))

@@ -119,7 +119,7 @@ func entryApplyRecords(h uint64, recs *recordABI, n int64, locate int32, report 
 // entryCopyTouched is behind ejecta_copy_touched.
 func entryCopyTouched(h uint64, dst *touchedABI, capacity int64, written *int64) int32 {
 	return withSession(h, func(s *session) error {
-		return copyOut(dst, capacity, written, "touched", "touched elements", len(s.touched), true, func(k int, d *touchedABI) {
+		return copyOut(dst, capacity, written, "touched", "touched elements", len(s.touched), func(k int, d *touchedABI) {
 			t := &s.touched[k]
 			*d = touchedABI{GasIndex: int64(t.Index), GasID: t.ID, MaxKick: t.MaxKick, MaxHeating: t.MaxHeating,
 				HoldCoolingUntil: t.HoldCoolingUntil, Flags: uint32(t.Flags)}

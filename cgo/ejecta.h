@@ -12,7 +12,19 @@
  * -------------------------------------------------
  * - Every function returns an int: EJECTA_OK (0) on success, otherwise one of
  *   the EJECTA_ERR_* codes. After a failure on a context, ejecta_last_error
- *   gives the reason as text.
+ *   gives the reason as text. Besides the codes each function lists, every
+ *   call on a context may return EJECTA_ERR_INVALID_CONTEXT (handle 0,
+ *   destroyed or made up) and EJECTA_ERR_BUSY (see thread safety), and any
+ *   call may return EJECTA_ERR_INTERNAL.
+ * - Copy calls (ejecta_copy_records, ejecta_copy_undeposited,
+ *   ejecta_copy_touched, ejecta_copy_star_results) share one rule: the
+ *   caller's buffer has room for capacity entries (it may be NULL when
+ *   capacity is 0); *written always receives the number of entries there
+ *   are; the first min(that number, capacity) are copied; when there are
+ *   more than capacity the call returns EJECTA_ERR_BUFFER_TOO_SMALL after
+ *   copying those. So a call with capacity 0 asks for the count, and a
+ *   short buffer is grown to *written and the call repeated.
+ *   ejecta_last_error's *length follows the same rule for text.
  * - Units: every quantity passed in or out is in the host's code units, as
  *   declared once in ejecta_config (cm, g and cm/s per code unit of length,
  *   mass and velocity; time is length/velocity, energy mass*velocity^2,
@@ -76,14 +88,20 @@ extern "C" {
 /* A step or apply was called before any gas was bound. */
 #define EJECTA_ERR_NO_GAS 5
 /* A value is NaN, infinite or negative where it must not be (a star, a
- * release, a record). Nothing was changed. */
+ * release, a record, dt), or a species mass exceeds its total. Nothing was
+ * changed. */
 #define EJECTA_ERR_BAD_VALUE 6
-/* The neighbor search or the host-supplied neighbor rows failed (rows
- * malformed, fewer candidates than the neighbor count). Nothing was
- * deposited. */
+/* The step cannot find each star's gas: host rows malformed (offsets not
+ * starting at 0 or decreasing, an index outside the gas, an element twice
+ * in a row), in count mode a host row, or with ejecta's own finder the
+ * whole bound gas, holding fewer elements than neighbor_count, or gas
+ * positions or IDs the tree cannot use (NaN, duplicate IDs). Checked
+ * before any star is coupled: nothing was done and the step keeps no
+ * records. */
 #define EJECTA_ERR_NEIGHBORS 7
-/* A caller buffer is too small; the call wrote what fitted (see its
- * documentation) and reports the size needed. */
+/* A caller buffer is too small: a copy call copied the first capacity
+ * entries and wrote the number there are to *written (the copy rule
+ * above); text was truncated to fit. */
 #define EJECTA_ERR_BUFFER_TOO_SMALL 8
 /* A record names a gas ID (or index) this context's gas does not hold.
  * Nothing was applied. */
@@ -91,10 +109,14 @@ extern "C" {
 /* Another call on the same context is running. Nothing was changed. */
 #define EJECTA_ERR_BUSY 10
 /* The step completed but the release of at least one star was returned
- * undeposited (no gas within reach, or a neighbor with bad fields: NaN,
- * non-positive mass or density). Records and ledger are valid; the ledger's
- * undeposited quantities hold what was returned; ejecta_last_error names the
- * first such star and the number of them. */
+ * undeposited: no gas within reach (radius mode), or a neighbor with
+ * unusable fields (NaN or infinite values, non-positive mass or density,
+ * negative internal energy, a metal mass fraction outside [0, 1]; nothing
+ * is deposited into such an element), or amounts out of floating-point
+ * range. Records and ledger are valid; the ledger's undeposited quantities
+ * hold what was returned; ejecta_copy_undeposited names the stars and
+ * channels; ejecta_last_error gives their number and the first one's
+ * reason. */
 #define EJECTA_ERR_UNDEPOSITED 11
 /* The ledger does not balance within the tolerance asked for. */
 #define EJECTA_ERR_IMBALANCE 12
@@ -106,8 +128,12 @@ extern "C" {
 /* The yields table named in ejecta_population_config could not be read or
  * is malformed; ejecta_last_error names the file and the line. */
 #define EJECTA_ERR_YIELDS_TABLE 15
-/* An internal failure of the library (a bug): the call was abandoned and
- * the context should be destroyed. The message says what happened. */
+/* An internal failure: a panic in the library or in a scheme, or a fault
+ * reading or writing host memory through a bad column pointer, in the
+ * calling thread or in any of ejecta's worker threads. It never ends the
+ * process: the call was abandoned, nothing was deposited or applied, and
+ * the step keeps no records. The message says what happened; destroy the
+ * context. */
 #define EJECTA_ERR_INTERNAL 99
 
 /* ---- enumerations ---------------------------------------------------- */
@@ -378,6 +404,7 @@ typedef struct ejecta_ledger {
 
 /* What an ejecta_apply_* call did. */
 typedef struct ejecta_apply_report {
+  /* Records applied, and gas elements they changed. */
   int64_t records;
   int64_t elements;
   /* What the gas gained, summed from the records (plus reclaimed and
@@ -537,9 +564,11 @@ int ejecta_destroy(ejecta_context *context);
  * context (empty after a success) into buffer (capacity bytes,
  * NUL-terminated, truncated to fit) and its full length in bytes, without
  * the NUL, into *length when length is not NULL. For an invalid context it
- * writes a message saying so and returns EJECTA_ERR_INVALID_CONTEXT.
- * Errors: EJECTA_ERR_NULL_POINTER (buffer NULL with capacity > 0),
- * EJECTA_ERR_INVALID_CONTEXT, EJECTA_ERR_BUFFER_TOO_SMALL (truncated). */
+ * writes a message saying so and returns EJECTA_ERR_INVALID_CONTEXT; while
+ * another call runs on the context it writes a message saying that and
+ * returns EJECTA_ERR_BUSY. Errors: EJECTA_ERR_NULL_POINTER (buffer NULL
+ * with capacity > 0), EJECTA_ERR_INVALID_CONTEXT, EJECTA_ERR_BUSY,
+ * EJECTA_ERR_BUFFER_TOO_SMALL (truncated; *length is the full length). */
 int ejecta_last_error(ejecta_context context, char *buffer, int64_t capacity,
                       int64_t *length);
 
@@ -582,9 +611,12 @@ int ejecta_bind_gas(ejecta_context context, const ejecta_gas *gas);
  * mode or channel, duplicate star IDs),
  * EJECTA_ERR_BAD_VALUE (NaN, infinite or negative star or release field,
  * a species mass above the ejected mass; nothing is done),
- * EJECTA_ERR_NO_GAS, EJECTA_ERR_NEIGHBORS (malformed rows, or the
- * positions or IDs of the gas unusable for the tree: NaN, duplicate IDs),
- * EJECTA_ERR_UNDEPOSITED (completed, some stars returned: see above). */
+ * EJECTA_ERR_NO_GAS, EJECTA_ERR_NEIGHBORS (malformed rows, a row or the
+ * whole gas shorter than neighbor_count in count mode, gas positions or
+ * IDs unusable for the tree: NaN, duplicate IDs; nothing is done),
+ * EJECTA_ERR_UNDEPOSITED (completed, some releases returned: see above),
+ * EJECTA_ERR_INTERNAL (a panic or a fault on a bad column in any worker:
+ * see above). */
 int ejecta_step(ejecta_context context, const ejecta_star *stars,
                 int64_t n_stars, int64_t step_index, int32_t neighbor_mode,
                 const int64_t *row_offsets, const int64_t *row_indices);
@@ -596,11 +628,11 @@ int ejecta_record_count(ejecta_context context, int64_t *count);
 /* ejecta_copy_records copies the records of the last step, grouped by star
  * in the order the stars were given (after ejecta_apply_step_records: in
  * the order they were applied, by gas ID then star ID), into records
- * (capacity entries), and the number copied into *written. Errors:
- * EJECTA_ERR_NULL_POINTER (written NULL, or records NULL with capacity > 0),
+ * (capacity entries), with the copy rule above: *written is the number of
+ * records (as ejecta_record_count gives). Errors: EJECTA_ERR_NULL_POINTER
+ * (written NULL, or records NULL with capacity > 0),
  * EJECTA_ERR_INVALID_ARGUMENT (capacity < 0), EJECTA_ERR_BUFFER_TOO_SMALL
- * (the first capacity records were copied; ejecta_record_count gives the
- * number needed). */
+ * (the first capacity records were copied). */
 int ejecta_copy_records(ejecta_context context, ejecta_record *records,
                         int64_t capacity, int64_t *written);
 
@@ -610,13 +642,13 @@ int ejecta_copy_records(ejecta_context context, ejecta_record *records,
  * the star's ID into star_ids[k] and the release's EJECTA_CHANNEL_* into
  * channels[k] (channels may be NULL), for at most capacity entries, in the
  * order the stars were given (a star appears once per channel returned),
- * and the number copied into *written. The ledger's undeposited amounts
- * are their sum, and the ledger's skipped count (ejecta_get_ledger) is
- * the number of entries, so it sizes the buffer. Errors:
+ * with the copy rule above: *written is the number of releases returned.
+ * The ledger's undeposited amounts are their sum, and the ledger's skipped
+ * count (ejecta_get_ledger) is their number too. Errors:
  * EJECTA_ERR_NULL_POINTER (written NULL, or star_ids NULL with
  * capacity > 0), EJECTA_ERR_INVALID_ARGUMENT (capacity < 0),
- * EJECTA_ERR_INVALID_CONTEXT, EJECTA_ERR_BUFFER_TOO_SMALL (the first
- * capacity entries were copied). */
+ * EJECTA_ERR_BUFFER_TOO_SMALL (the first capacity entries were
+ * copied). */
 int ejecta_copy_undeposited(ejecta_context context, int64_t *star_ids,
                             int32_t *channels, int64_t capacity,
                             int64_t *written);
@@ -634,8 +666,9 @@ int ejecta_get_ledger(ejecta_context context, ejecta_ledger *ledger);
  * Each element's records are summed in the order gas ID, star ID, channel,
  * so the result does not depend on thread count or star order. The report
  * goes to *report when report is not NULL. Errors: EJECTA_ERR_NO_GAS,
- * EJECTA_ERR_ALREADY_APPLIED (called twice for one step), EJECTA_ERR_UNKNOWN_GAS
- * (gas rebound since the step and an index or ID no longer matches;
+ * EJECTA_ERR_INVALID_ARGUMENT (no step has run on the bound gas, or its
+ * step failed), EJECTA_ERR_ALREADY_APPLIED (called twice for one step),
+ * EJECTA_ERR_UNKNOWN_GAS (an index or ID no longer matches the gas;
  * nothing applied). */
 int ejecta_apply_step_records(ejecta_context context,
                               ejecta_apply_report *report);
@@ -649,19 +682,22 @@ int ejecta_apply_step_records(ejecta_context context,
  * changed. All records are checked before anything is written. n_records
  * may be 0 (nothing to apply). Errors: EJECTA_ERR_NULL_POINTER (records
  * NULL with n_records > 0), EJECTA_ERR_INVALID_ARGUMENT (n_records < 0,
- * unknown locate), EJECTA_ERR_NO_GAS, EJECTA_ERR_UNKNOWN_GAS,
- * EJECTA_ERR_BAD_VALUE (non-finite value, negative mass, species mass above
- * the record's mass). */
+ * unknown locate, two records for one element from the same star and
+ * channel, or gas IDs of the bound gas not unique when locating by ID),
+ * EJECTA_ERR_NO_GAS, EJECTA_ERR_UNKNOWN_GAS, EJECTA_ERR_BAD_VALUE
+ * (non-finite value, negative mass or radiated energy, species mass
+ * outside [0, the record's mass]). Nothing is applied on error. */
 int ejecta_apply_records(ejecta_context context, const ejecta_record *records,
                          int64_t n_records, int32_t locate,
                          ejecta_apply_report *report);
 
 /* ejecta_copy_touched copies the timestep help of the last apply (one entry
  * per element that received records, in gas-ID order) into touched
- * (capacity entries) and the number of entries into *written; with
- * EJECTA_ERR_BUFFER_TOO_SMALL *written is the number needed and the first
- * capacity entries are copied. Errors: EJECTA_ERR_NULL_POINTER,
- * EJECTA_ERR_INVALID_ARGUMENT (capacity < 0), EJECTA_ERR_BUFFER_TOO_SMALL. */
+ * (capacity entries), with the copy rule above: *written is the number of
+ * elements touched. Errors: EJECTA_ERR_NULL_POINTER (written NULL, or
+ * touched NULL with capacity > 0), EJECTA_ERR_INVALID_ARGUMENT
+ * (capacity < 0), EJECTA_ERR_BUFFER_TOO_SMALL (the first capacity entries
+ * were copied). */
 int ejecta_copy_touched(ejecta_context context, ejecta_touched *touched,
                         int64_t capacity, int64_t *written);
 
@@ -711,10 +747,11 @@ int ejecta_enable_population(ejecta_context context,
  * step_index < 0, unknown mode, duplicate star IDs),
  * EJECTA_ERR_BAD_VALUE (dt NaN, infinite or negative; a star field NaN,
  * infinite or negative, metallicity >= 1), EJECTA_ERR_NO_POPULATION,
- * EJECTA_ERR_NO_GAS, EJECTA_ERR_NEIGHBORS, EJECTA_ERR_UNDEPOSITED (as in
- * ejecta_step: completed, records, ledger and results valid; what was
- * returned stays with the star: it is not in mass_loss, and its energy is
- * in carried_energy). */
+ * EJECTA_ERR_NO_GAS, EJECTA_ERR_NEIGHBORS (as in ejecta_step),
+ * EJECTA_ERR_UNDEPOSITED (as in ejecta_step: completed, records, ledger
+ * and results valid; what was returned stays with the star: it is not in
+ * mass_loss, and its energy is in carried_energy), EJECTA_ERR_INTERNAL (as
+ * in ejecta_step). */
 int ejecta_step_population(ejecta_context context,
                            const ejecta_star_particle *stars, int64_t n_stars,
                            double dt, int64_t step_index,
@@ -723,13 +760,13 @@ int ejecta_step_population(ejecta_context context,
 
 /* ejecta_copy_star_results copies the per-star results of the last step,
  * one per star in the order the stars were given, into results (capacity
- * entries) and the number copied into *written. When the last step was an
- * ejecta_step, or none ran since the gas was bound, there are none
- * (*written = 0). Errors: EJECTA_ERR_NULL_POINTER (written NULL, or results
- * NULL with capacity > 0), EJECTA_ERR_INVALID_ARGUMENT (capacity < 0),
- * EJECTA_ERR_BUFFER_TOO_SMALL (the first capacity results were copied;
- * *written is capacity and the number needed is the n_stars of the
- * step). */
+ * entries), with the copy rule above: *written is the n_stars of the step.
+ * When the last step was an ejecta_step, failed, or none ran since the gas
+ * was bound, there are none (*written = 0). Errors:
+ * EJECTA_ERR_NULL_POINTER (written NULL, or results NULL with
+ * capacity > 0), EJECTA_ERR_INVALID_ARGUMENT (capacity < 0),
+ * EJECTA_ERR_BUFFER_TOO_SMALL (the first capacity results were
+ * copied). */
 int ejecta_copy_star_results(ejecta_context context,
                              ejecta_star_result *results, int64_t capacity,
                              int64_t *written);

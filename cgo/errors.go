@@ -6,6 +6,7 @@ import (
 	"runtime/debug"
 	"unsafe"
 
+	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/neighbor"
 )
 
@@ -65,16 +66,41 @@ func failWith(fallback int32, err error, format string, args ...any) error {
 }
 
 // codeForFailure is the one place where a failure kind of the library's
-// packages becomes an EJECTA_ERR_* code. Kinds are recognized with
-// errors.Is on the packages' sentinel errors; an error that carries none
-// gets the code the calling entry chose for it.
+// packages becomes an EJECTA_ERR_* code: the sentinel errors of feedback
+// (each failure there matches exactly one), then those of neighbor,
+// recognized with errors.Is. A recovered panic (ErrInternal) wins over anything else
+// the error may carry, and a call with releases returned undeposited
+// (ErrUndeposited, which also matches its first release's reason) is
+// UNDEPOSITED. An error that carries no kind gets the code the calling
+// entry chose for it.
 func codeForFailure(err error, fallback int32) int32 {
 	var ae *abiError
-	switch {
-	case errors.As(err, &ae):
+	if errors.As(err, &ae) {
 		return ae.code
-	case errors.Is(err, neighbor.ErrTooFew), errors.Is(err, neighbor.ErrInvalid), errors.Is(err, neighbor.ErrUnreachable):
-		return codeNeighbors
+	}
+	kinds := [...]struct {
+		kind error
+		code int32
+	}{
+		{feedback.ErrInternal, codeInternal},
+		{feedback.ErrUndeposited, codeUndeposited},
+		{feedback.ErrBusy, codeBusy},
+		{feedback.ErrNoNeighbors, codeNeighbors},
+		{feedback.ErrUnknownGas, codeUnknownGas},
+		{feedback.ErrUnknownName, codeUnknownName},
+		{feedback.ErrImbalance, codeImbalance},
+		{feedback.ErrBadValue, codeBadValue},
+		{feedback.ErrInvalidArgument, codeInvalidArgument},
+		// The finder's own errors reach here only from the tree and host
+		// rows the ABI builds itself.
+		{neighbor.ErrTooFew, codeNeighbors},
+		{neighbor.ErrInvalid, codeNeighbors},
+		{neighbor.ErrUnreachable, codeNeighbors},
+	}
+	for _, k := range kinds {
+		if errors.Is(err, k.kind) {
+			return k.code
+		}
 	}
 	return fallback
 }

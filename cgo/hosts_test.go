@@ -7,6 +7,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strconv"
 	"testing"
 	"unsafe"
@@ -339,6 +340,54 @@ func TestHostMPIPopulationDecomposition(t *testing.T) {
 					assert.InDelta(t, number(t, runs[0], key), number(t, runs[i], key), 1e-12*math.Abs(number(t, runs[0], key)), key)
 				}
 			}
+		})
+	}
+}
+
+// headerCodes lists the names of every code ejecta.h defines (EJECTA_OK
+// and each EJECTA_ERR_*).
+func headerCodes(t *testing.T) []string {
+	t.Helper()
+	h, err := os.ReadFile("ejecta.h")
+	require.NoError(t, err)
+	var names []string
+	for _, m := range regexp.MustCompile(`(?m)^#define (EJECTA_OK|EJECTA_ERR_[A-Z_]+) `).FindAllStringSubmatch(string(h), -1) {
+		names = append(names, m[1])
+	}
+	require.NotEmpty(t, names)
+	return names
+}
+
+// TestHostErrorCodes runs examples/error_codes.c, which provokes every
+// documented error code through the real exports and checks each call
+// returns what ejecta.h promises: among them host rows shorter than the
+// neighbor count (EJECTA_ERR_NEIGHBORS, nothing done), a context busy
+// with another thread's step (ejecta_last_error returns EJECTA_ERR_BUSY),
+// a gas element with a metal mass fraction above 1 (its star's release
+// comes back: EJECTA_ERR_UNDEPOSITED), and a gas column that faults when
+// ejecta's worker threads read it (EJECTA_ERR_INTERNAL, and the process
+// goes on). Every code ejecta.h defines must be seen.
+func TestHostErrorCodes(t *testing.T) {
+	lib := libraryDir(t)
+	gcc := requireTool(t, "gcc")
+	for _, mode := range linkModes[:2] {
+		t.Run(mode.name, func(t *testing.T) {
+			bin := filepath.Join(t.TempDir(), "error_codes")
+			args := append([]string{"-std=c11", "-Wall", "-Wextra", "-Werror", "-O1", "-I."}, mode.cflag...)
+			args = append(args, "-o", bin, filepath.Join("examples", "error_codes.c"))
+			args = append(args, mode.flags(lib)...)
+			args = append(args, "-lpthread", "-lm")
+			compile(t, gcc, args...)
+			out := runHost(t, bin)
+			require.Contains(t, out, "result pass")
+			for _, name := range headerCodes(t) {
+				assert.Contains(t, out, "code "+name+" ok\n", "%s never returned as documented", name)
+			}
+			kv := keyValues(out)
+			assert.Contains(t, kv["short_rows_error"], "fewer than neighbor_count 8")
+			assert.Contains(t, kv["fraction_error"], "metal mass fraction 1.5")
+			assert.Contains(t, kv["busy_error"], "in use by another call")
+			assert.Contains(t, kv["internal_error"], "internal failure")
 		})
 	}
 }

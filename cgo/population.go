@@ -252,7 +252,7 @@ func (s *session) stepPopulation(stars *starParticleABI, dt float64, a batchArgs
 	}
 	return s.runBatch(populationStep, &a, func(f neighbor.Finder) error {
 		if err := p.stepper.Step(&s.gas.gas, f, p.stars, uint64(a.step), dt, &p.out); err != nil {
-			return failWith(codeInvalidArgument, err, "population step")
+			return fmt.Errorf("population: %w", err)
 		}
 		// The step's records and ledger become the context's, as after
 		// ejecta_step; the buffers are swapped, not copied.
@@ -314,7 +314,7 @@ func entryCopyStarResults(h uint64, dst *starResultABI, capacity int64, written 
 		if p != nil {
 			n = len(p.stars)
 		}
-		return copyOut(dst, capacity, written, "results", "star results", n, false, func(i int, d *starResultABI) {
+		return copyOut(dst, capacity, written, "results", "star results", n, func(i int, d *starResultABI) {
 			*d = starResultABI{
 				ID: p.stars[i].ID, MassLoss: p.out.MassLoss[i], CarriedEnergy: p.out.Carry[i],
 				SupernovaeCC: p.counts[i][yields.CoreCollapse], SupernovaeIa: p.counts[i][yields.TypeIa],

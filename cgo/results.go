@@ -99,13 +99,13 @@ func ledgerFromABI(l *ledgerABI) feedback.Ledger {
 	}
 }
 
-// copyOut is every ejecta_copy_* call's handling of the caller's buffer
-// (dst with room for capacity entries; written receives the count): it
-// fills the first min(n, capacity) entries with fill. A short buffer gets
-// what fits and the call fails with codeBufferTooSmall; *written is then
-// the number copied, or n when totalOnShort (the calls whose header says
-// so).
-func copyOut[T any](dst *T, capacity int64, written *int64, name, what string, n int, totalOnShort bool, fill func(k int, d *T)) error {
+// copyOut is every ejecta_copy_* call's handling of the caller's buffer,
+// the one rule ejecta.h states for them: dst has room for capacity
+// entries, of the n there are; the first min(n, capacity) are filled with
+// fill; *written always receives n, the number there are; and when
+// n > capacity the call fails with codeBufferTooSmall after copying what
+// fits. Capacity 0 with a NULL buffer asks for the count.
+func copyOut[T any](dst *T, capacity int64, written *int64, name, what string, n int, fill func(k int, d *T)) error {
 	if written == nil {
 		return fail(codeNullPointer, "written is NULL")
 	}
@@ -123,12 +123,9 @@ func copyOut[T any](dst *T, capacity int64, written *int64, name, what string, n
 			fill(i, &d[i])
 		}
 	}
-	*written = k
+	*written = int64(n)
 	if k < int64(n) {
-		if totalOnShort {
-			*written = int64(n)
-		}
-		return fail(codeBufferTooSmall, "%d %s, buffer holds %d", n, what, capacity)
+		return fail(codeBufferTooSmall, "%d %s, buffer holds %d (the first %d copied)", n, what, capacity, k)
 	}
 	return nil
 }
@@ -147,7 +144,7 @@ func entryRecordCount(h uint64, count *int64) int32 {
 // entryCopyRecords is behind ejecta_copy_records.
 func entryCopyRecords(h uint64, dst *recordABI, capacity int64, written *int64) int32 {
 	return withSession(h, func(s *session) error {
-		return copyOut(dst, capacity, written, "records", "records", len(s.out.Records), false, func(k int, d *recordABI) {
+		return copyOut(dst, capacity, written, "records", "records", len(s.out.Records), func(k int, d *recordABI) {
 			recordToABI(&s.out.Records[k], d)
 		})
 	})
@@ -161,7 +158,7 @@ func entryCopyUndeposited(h uint64, ids *int64, channels *int32, capacity int64,
 		if channels != nil && capacity > 0 {
 			chans = unsafe.Slice(channels, min(int64(len(probs)), capacity))
 		}
-		return copyOut(ids, capacity, written, "star_ids", "undeposited releases", len(probs), false, func(k int, d *int64) {
+		return copyOut(ids, capacity, written, "star_ids", "undeposited releases", len(probs), func(k int, d *int64) {
 			*d = probs[k].StarID
 			if chans != nil {
 				chans[k] = int32(probs[k].Channel)

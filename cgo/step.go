@@ -94,7 +94,8 @@ func convertStars[C, G any](b *batch, stars *C, n int64, dst []G, convert func(*
 // converted: it checks that the star IDs are unique, prepares the finder
 // of the neighbor mode, runs couple, and keeps its results (records,
 // ledger, problems in s.out) as the context's, or drops them when coupling
-// failed or the gas it would deposit into is refused.
+// failed (an error of couple gets its code from its kind: a panic
+// recovered in a worker is EJECTA_ERR_INTERNAL).
 func (s *session) runBatch(kind stepKind, a *batchArgs, couple func(neighbor.Finder) error) error {
 	slices.Sort(s.batch.starIDs)
 	for i := 1; i < len(s.batch.starIDs); i++ {
@@ -109,26 +110,34 @@ func (s *session) runBatch(kind stepKind, a *batchArgs, couple func(neighbor.Fin
 	s.dropResults()
 	if err := couple(finder); err != nil {
 		s.dropResults()
-		return err
+		return failWith(codeInvalidArgument, err, "step")
 	}
 	s.phase, s.kind = phaseStepped, kind
-	if p := s.out.Problems; len(p) > 0 {
-		return fail(codeUndeposited, "releases returned undeposited: %d (of %d stars); first: star %d (index %d, channel %s): %v",
-			len(p), a.n, p[0].StarID, p[0].Index, p[0].Channel.String(), p[0].Err)
+	if err := s.out.Err(); err != nil {
+		return failWith(codeUndeposited, err, "step of %d stars", a.n)
 	}
 	return nil
 }
 
-// finder returns the finder of the step's neighbor mode.
+// finder returns the finder of the step's neighbor mode, refusing up front
+// (nothing done) a neighborhood that cannot hold neighbor_count elements.
 func (s *session) finder(a *batchArgs) (neighbor.Finder, error) {
+	k := s.cfg.Neighbors
+	if s.cfg.Radius > 0 {
+		k = 0 // radius mode: whatever lies within the radius
+	}
 	if a.mode == modeOwnFinder {
+		if s.gas.gas.N < k {
+			return nil, fail(codeNeighbors, "the bound gas has %d elements, fewer than neighbor_count %d", s.gas.gas.N, k)
+		}
 		return s.gas.ownTree(s.cfg.Box)
 	}
-	return s.rowFinder(int(a.n), a.offsets, a.indices)
+	return s.rowFinder(int(a.n), k, a.offsets, a.indices)
 }
 
-// rowFinder wraps the host's compressed rows.
-func (s *session) rowFinder(n int, offsets, indices *int64) (neighbor.Finder, error) {
+// rowFinder wraps the host's compressed rows, each of which must hold at
+// least k candidates.
+func (s *session) rowFinder(n, k int, offsets, indices *int64) (neighbor.Finder, error) {
 	if offsets == nil {
 		return nil, fail(codeNullPointer, "row_offsets is NULL in host-rows mode")
 	}
@@ -159,6 +168,11 @@ func (s *session) rowFinder(n int, offsets, indices *int64) (neighbor.Finder, er
 	// The host's rows are handed over every step: reuse the lists' scratch.
 	if err := b.rows.Reset(gas.packed, gas.ids, s.cfg.Box, b.offsets, b.indices); err != nil {
 		return nil, failWith(codeNeighbors, err, "host rows")
+	}
+	for i := 0; i < n; i++ {
+		if m := b.offsets[i+1] - b.offsets[i]; m < k {
+			return nil, fail(codeNeighbors, "host row of star %d (of %d) has %d candidates, fewer than neighbor_count %d", i, n, m, k)
+		}
 	}
 	return &b.rows, nil
 }
@@ -201,10 +215,7 @@ func (s *session) step(stars *starABI, a batchArgs) error {
 		return err
 	}
 	return s.runBatch(releaseStep, &a, func(f neighbor.Finder) error {
-		if err := s.coupler.Couple(&s.gas.gas, f, s.batch.sources, &s.out); err != nil {
-			return failWith(codeInvalidArgument, err, "step")
-		}
-		return nil
+		return s.coupler.Couple(&s.gas.gas, f, s.batch.sources, &s.out)
 	})
 }
 

@@ -223,7 +223,8 @@ int main(void) {
   must(ctx, ejecta_record_count(ctx, &n_rec), "record count");
   CHECK(n_rec == N_STARS * 48, "records %lld", (long long)n_rec);
   ejecta_record *recs = malloc((size_t)n_rec * sizeof *recs);
-  CHECK(ejecta_copy_records(ctx, recs, 2, &written) == EJECTA_ERR_BUFFER_TOO_SMALL && written == 2, "short buffer");
+  /* A short buffer gets the first records and the number there are. */
+  CHECK(ejecta_copy_records(ctx, recs, 2, &written) == EJECTA_ERR_BUFFER_TOO_SMALL && written == n_rec, "short buffer");
   must(ctx, ejecta_copy_records(ctx, recs, n_rec, &written), "copy records");
   CHECK(written == n_rec, "written %lld", (long long)written);
 

@@ -3,8 +3,11 @@
 ! interfaces bind the C functions of the same names, with the same
 ! arguments, return codes, units, ownership and thread-safety rules as
 ! documented in ejecta.h. Indices in records and neighbor rows are 0-based
-! as in C. Helpers at the end fill name fields, describe strided columns
-! and fetch error text as Fortran strings.
+! as in C. The copy calls (ejecta_copy_*) follow ejecta.h's copy rule:
+! written always receives the number of entries there are, the first
+! min(written, capacity) are copied, and EJECTA_ERR_BUFFER_TOO_SMALL says
+! there were more than capacity. Helpers at the end fill name fields,
+! describe strided columns and fetch error text as Fortran strings.
 module ejecta_mod
   use, intrinsic :: iso_c_binding
   implicit none
