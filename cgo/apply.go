@@ -98,7 +98,7 @@ func (s *session) applyRecords(recs *recordABI, n int64, locate int32, report *a
 			return err
 		}
 		if err := index.Resolve(s.incoming); err != nil {
-			return fail(codeUnknownGas, "%w", err)
+			return failWith(codeUnknownGas, err, "apply")
 		}
 	} else if err := s.gas.checkLocated(s.incoming); err != nil {
 		return err

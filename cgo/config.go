@@ -71,7 +71,7 @@ func parseConfig(c *configABI) (feedback.Config, error) {
 	fit := feedback.KimOstriker2015
 	if fitName != "" {
 		if fit, err = feedback.ParseRemnantFit(fitName); err != nil {
-			return cfg, fail(codeUnknownName, "config remnant_fit: %w", err)
+			return cfg, failWith(codeUnknownName, err, "config remnant_fit")
 		}
 	}
 	if !(c.KineticFraction >= 0 && c.KineticFraction <= 1) {
@@ -84,7 +84,7 @@ func parseConfig(c *configABI) (feedback.Config, error) {
 	}
 	sch, err := feedback.SchemeByName(scheme, opts)
 	if err != nil {
-		return cfg, fail(codeUnknownName, "config: %w", err)
+		return cfg, failWith(codeUnknownName, err, "config")
 	}
 	cfg.Scheme = sch
 	switch weighting {

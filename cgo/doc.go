@@ -18,6 +18,7 @@
 //	session.go     the context: session, its phases (one state machine), create/destroy/last_error
 //	config.go      ejecta_config: its Go mirror, parsing, defaults, ejecta_version
 //	gas.go         ejecta_field/ejecta_gas: element types, columns, binding and what derives from it
+//	species.go     the tracked species of a context: ejecta_choose_species, their codes and symbols
 //	step.go        ejecta_step and the batch path both kinds of step share (checks, finder, results)
 //	results.go     what a step leaves to read: records, undeposited releases, ledger; the copy rule
 //	apply.go       ejecta_apply_step_records, ejecta_apply_records, ejecta_copy_touched

@@ -189,7 +189,7 @@ func (s *session) enablePopulation(c *populationConfigABI) error {
 	}
 	st, err := feedback.NewStepper(cfg)
 	if err != nil {
-		return fail(codeInvalidArgument, "population: %w", err)
+		return failWith(codeInvalidArgument, err, "population")
 	}
 	s.pop = &population{stepper: st, model: model, seed: s.seed}
 	return nil

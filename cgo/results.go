@@ -189,7 +189,7 @@ func entryLedgerBalanced(l *ledgerABI, rel float64, msg *byte, capacity int64) i
 		}
 		g := ledgerFromABI(l)
 		if err := g.Balanced(rel); err != nil {
-			return fail(codeImbalance, "%w", err)
+			return failWith(codeImbalance, err, "ledger")
 		}
 		return nil
 	})
