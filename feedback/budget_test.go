@@ -8,6 +8,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
@@ -133,6 +134,118 @@ func TestPhotoheatingIsPaidFromTheLight(t *testing.T) {
 		}
 		if !c.rad {
 			assert.Zero(t, rad, c.name)
+		}
+	}
+}
+
+// stromgrenMass is the gas mass (Msun) a source of q ionizing photons per
+// second keeps ionized in uniform gas of hydrogen density n (cm^-3):
+// q / (alpha_B n_e n) of volume (Strömgren 1939, ApJ 89, 526; alpha_B =
+// 2.6e-13 cm^3/s at 1e4 K, Osterbrock & Ferland 2006, from memory), with
+// n_e from electronsPerHydrogen and 1/X proton masses per hydrogen atom.
+func stromgrenMass(q, n float64) float64 {
+	v := q / (2.6e-13 * electronsPerHydrogen() * n * n)
+	return v * n * units.ProtonMass / 0.7381 / units.SolarMass
+}
+
+// The ionizing photons reach beyond the coupler's k nearest neighbors when
+// asked to: the search grows until the Strömgren mass is ionized, and
+// whatever the gas reached cannot absorb (by default the 32 neighbors,
+// 320 Msun) is booked as escaped photons, whose heat is radiated.
+func TestPhotonsReachBeyondTheNeighbors(t *testing.T) {
+	u := pcMsunKms()
+	const q = 1e49 // photons per second: 4.4e4 Msun at n = 1
+	g, _ := latticeOfMass(23, 10, 1, u)
+	dt := units.Megayear / u.TimeS()
+	photons := q * units.Megayear
+	src := feedback.Source{Star: feedback.Star{ID: 1, Pos: [3]float64{0.1, 0.05, 0.02}}, Channel: yields.Photoionization,
+		Photons: photons, Duration: dt, Energy: photons * 3 * 1.602176634e-12 / u.EnergyErg()}
+	ms := stromgrenMass(q, 1)
+	for _, c := range []struct {
+		name  string
+		reach int
+		want  float64 // ionized mass, Msun
+	}{
+		{"grown to the Strömgren mass", 1 << 14, ms},
+		{"bounded search", 100, 1000},
+		{"coupler's neighbors only (default)", 0, 320},
+	} {
+		before := append([]float64(nil), g.Energy...)
+		gc := g.Clone()
+		out, _ := coupleOnce(t, gc, feedback.Config{Units: u, Scheme: feedback.Photoionization{Reach: c.reach}, Neighbors: 32}, []feedback.Source{src})
+		// Ionized gas is lifted from its start to the 1e4 K floor, u =
+		// (3/2) k T / (0.59 m_p); the last element in part. Count the
+		// ionized mass in full lifts.
+		floor := 1.5 * units.Boltzmann * 1e4 / (0.59 * units.ProtonMass) / u.SpecificEnergy()
+		ionized := 0.0
+		for _, r := range out.Records {
+			i := r.GasIndex
+			ionized += (gc.Energy[i] - before[i]) / (floor - before[i]) * gc.Mass[i] * u.MassG / units.SolarMass
+		}
+		assert.InEpsilon(t, c.want, ionized, 0.01, c.name)
+		escaped := photons * (1 - c.want/ms)
+		assert.InDelta(t, escaped, out.Ledger.EscapedPhotons, 1e-6*photons, c.name)
+		assert.Equal(t, photons, out.Ledger.Photons)
+	}
+}
+
+// The stepper's photoionization channel reaches beyond the shared
+// neighbor search too: a young 1e4 Msun population in gas at n = 100
+// ionizes its Strömgren mass, far more than its 32 neighbors hold.
+func TestStepperPhotoionizesTheStromgrenMass(t *testing.T) {
+	u := pcMsunKms()
+	pop, err := yields.NewPopulation(yields.DefaultConfig())
+	require.NoError(t, err)
+	g, _ := latticeOfMass(25, 10, 100, u)
+	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
+	require.NoError(t, err)
+	cfg := feedback.DefaultStepConfig(feedback.Config{Units: u, Neighbors: 32}, pop)
+	cfg.Seed, cfg.SkipRadiation, cfg.SkipWinds, cfg.SkipPhotoelectric = 1, true, true, true
+	cfg.Photoionization = feedback.Photoionization{Reach: 1 << 14}
+	st, err := feedback.NewStepper(cfg)
+	require.NoError(t, err)
+	myr := units.Megayear / u.TimeS()
+	star := feedback.StarParticle{Star: feedback.Star{ID: 1, Mass: 1e4, Metallicity: 0.0134, Age: 0.5 * myr, Pos: [3]float64{0.1, 0.05, 0.02}}, FormedMass: 1e4}
+	var out feedback.StepOutput
+	dt := 0.1 * myr
+	require.NoError(t, st.Step(g.View(), f, []feedback.StarParticle{star}, 0, dt, &out))
+	rel, err := pop.Release(0.5, 0.6, 0.0134)
+	require.NoError(t, err)
+	q := rel.IonizingPhotons * 1e4 / (0.1 * units.Megayear)
+	ionized := 0
+	for _, r := range out.Records {
+		if r.Channel == yields.Photoionization && r.Flags&feedback.FlagIonized != 0 {
+			ionized++
+		}
+	}
+	require.Greater(t, ionized, 32)
+	assert.InDelta(t, stromgrenMass(q, 100), 10*float64(ionized), 10, "Q = %.3g /s", q)
+	assert.Zero(t, out.Channels[yields.Photoionization].EscapedPhotons)
+}
+
+// Grown photoionization searches give bitwise the same gas for any worker
+// count.
+func TestPhotonReachIsDeterministic(t *testing.T) {
+	u := pcMsunKms()
+	base, dx := latticeOfMass(17, 10, 1, u)
+	dt := units.Megayear / u.TimeS()
+	var srcs []feedback.Source
+	for s := 0; s < 40; s++ {
+		photons := 1e48 * (1 + float64(s%5)) * units.Megayear
+		srcs = append(srcs, feedback.Source{Star: feedback.Star{ID: int64(s + 1), Pos: [3]float64{float64(s%7-3) * dx, float64(s%5-2) * dx, 0.3 * dx}},
+			Channel: yields.Photoionization, Photons: photons, Duration: dt, Energy: photons * 3 * 1.602176634e-12 / u.EnergyErg()})
+	}
+	var ref *audit.GasArrays
+	for _, workers := range []int{1, 2, 3} {
+		g := base.Clone()
+		out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.Photoionization{Reach: 4096}, Neighbors: 32, Workers: workers}, srcs)
+		require.Greater(t, len(out.Records), 32*len(srcs))
+		if ref == nil {
+			ref = g
+			continue
+		}
+		for i := range g.Energy {
+			require.Equal(t, math.Float64bits(ref.Energy[i]), math.Float64bits(g.Energy[i]), "workers %d", workers)
 		}
 	}
 }

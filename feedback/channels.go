@@ -210,13 +210,82 @@ func (s RadiationPressure) Deposit(nb *Neighborhood, out []Deposit) (float64, er
 // every heating is scaled down together. What the photons' energy does not
 // heat is booked as radiated. Any ejected mass the source carries is shared
 // by weight as in a thermal dump.
-type Photoionization struct{}
+//
+// Photons the neighbors cannot absorb are booked in
+// Ledger.EscapedPhotons (their heat is radiated). With Reach set, the
+// photons are not limited to the coupler's neighbors: while the nearest
+// neighbors cannot absorb them all, the coupler searches further out
+// (nearest first) until they can, up to Reach elements, so the ionized
+// mass reaches the Strömgren mass however finely the gas is resolved;
+// what the reached gas still cannot absorb (the bound is hit, the gas
+// runs out, or a host's neighbor list ends) is booked as escaped. Growth
+// is off by default because its result depends on which gas a process
+// holds: a host that decomposes its gas over ranks must then hold ghost
+// gas out to the Strömgren radius for results to be the same on any
+// number of ranks.
+type Photoionization struct {
+	// Reach bounds the search for gas to ionize, in nearest elements;
+	// zero means the coupler's own neighbors only (no growth).
+	Reach int
+}
 
 // Name is "photoionization".
 func (Photoionization) Name() string { return "photoionization" }
 
+func (s Photoionization) reachLimit() int { return s.Reach }
+
+// recombinations is the rate (per second) at which neighbor j recombines
+// when fully ionized.
+func (nb *Neighborhood) recombinations(j int) float64 {
+	u := nb.Units
+	n := hydrogenDensity(nb.Density[j], u)
+	v := nb.Mass[j] / nb.Density[j] * u.LengthCm * u.LengthCm * u.LengthCm
+	return CaseBRecombination * ElectronsPerHydrogen * n * n * v
+}
+
+// photonRate is the source's ionizing photon rate per second (zero for a
+// source without photons or duration).
+func (nb *Neighborhood) photonRate() float64 {
+	src := nb.Source
+	if !(src.Photons > 0) || !(src.Duration > 0) {
+		return 0
+	}
+	return src.Photons / (src.Duration * nb.Units.TimeS())
+}
+
+// neighborsWanted asks for more neighbors while the ones found would all
+// be ionized with photons to spare: as many more as their mean
+// recombination rate says the spare photons need, with a margin.
+func (s Photoionization) neighborsWanted(nb *Neighborhood) int {
+	q := nb.photonRate()
+	k := nb.Len()
+	if q == 0 || k == 0 || k >= s.Reach {
+		return 0
+	}
+	rec := 0.0
+	for j := 0; j < k; j++ {
+		rec += nb.recombinations(j)
+	}
+	if !(q > rec) || !(rec > 0) {
+		return 0
+	}
+	more := math.Ceil(1.25*(q-rec)/(rec/float64(k))) + 8
+	return int(math.Min(float64(k)+more, float64(s.Reach)))
+}
+
+// Validate checks the reach (non-negative).
+func (s Photoionization) Validate() error {
+	if s.Reach < 0 {
+		return errorf(ErrInvalidArgument, "photoionization: reach %d must be non-negative", s.Reach)
+	}
+	return nil
+}
+
 // Deposit implements Scheme.
-func (Photoionization) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
+func (s Photoionization) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
+	if err := s.Validate(); err != nil {
+		return 0, err
+	}
 	src := nb.Source
 	u := nb.Units
 	heat := nb.scratch // free: no kicks, so CoupleRadial does not tilt
@@ -226,13 +295,10 @@ func (Photoionization) Deposit(nb *Neighborhood, out []Deposit) (float64, error)
 	// Neighbors come nearest first, so the ionized ones are a prefix.
 	flagged := 0
 	need := 0.0
-	if src.Photons > 0 && src.Duration > 0 {
-		q := src.Photons / (src.Duration * u.TimeS()) // photons per second
+	if q := nb.photonRate(); q > 0 {
 		floor := specificEnergyAt(IonizedTemperature, IonizedMeanMolecularWeight) / u.SpecificEnergy()
 		for j := range heat {
-			n := hydrogenDensity(nb.Density[j], u)
-			v := nb.Mass[j] / nb.Density[j] * u.LengthCm * u.LengthCm * u.LengthCm
-			rec := CaseBRecombination * ElectronsPerHydrogen * n * n * v
+			rec := nb.recombinations(j)
 			f := 1.0
 			if rec > q {
 				f = q / rec
@@ -244,9 +310,11 @@ func (Photoionization) Deposit(nb *Neighborhood, out []Deposit) (float64, error)
 				flagged = j + 1
 			}
 			if f < 1 {
+				q = 0
 				break
 			}
 		}
+		nb.escaped = q * src.Duration * u.TimeS()
 	}
 	scale := 1.0
 	if need > src.Energy {

@@ -87,6 +87,7 @@ type slot struct {
 type workerScratch struct {
 	nb      Neighborhood
 	found   []neighbor.Neighbor
+	grown   []neighbor.Neighbor
 	deps    []Deposit
 	records []Record
 }
@@ -185,7 +186,8 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 	// With a fixed neighbor count every star's records go straight to
 	// their final place in out.Records (k slots per star, compacted after);
 	// with a radius they collect in per-worker buffers and are copied.
-	fixed := c.cfg.Radius == 0
+	_, grows := c.grower()
+	fixed := c.cfg.Radius == 0 && !grows
 	k := c.cfg.Neighbors
 	if fixed {
 		if cap(out.Records) < n*k {
@@ -345,60 +347,14 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 	if k == 0 {
 		return undeposited(src, errorf(ErrNoNeighbors, "star %d: no gas neighbors", src.Star.ID))
 	}
+	kinetic, err := c.gather(ws, gas, src, metals, hasMetals)
+	if err != nil {
+		return undeposited(src, err)
+	}
 	nb := &ws.nb
-	nb.resize(k)
-	nb.Source = src
-	vs := src.Star.Vel
-	// Gather first, in a tight loop that keeps many cache misses in
-	// flight (neighbors are scattered in the host's memory); check and
-	// derive afterwards. Positions wait in Dir until then.
-	for j, f := range ws.found {
-		i := f.Index
-		if i < 0 || i >= gas.N {
-			return undeposited(src, errorf(ErrNoNeighbors, "star %d: neighbor index %d outside the gas (%d elements)", src.Star.ID, i, gas.N))
-		}
-		nb.Index[j] = i
-		nb.ID[j] = gas.ID.Int(i)
-		nb.Mass[j], nb.Density[j], nb.InternalEnergy[j] = gas.Mass.At(i), gas.Density.At(i), gas.InternalEnergy.At(i)
-		nb.Dir[j] = gas.position(i)
-		nb.Vel[j] = gas.velocity(i)
-	}
-	if hasMetals {
-		for j, i := range nb.Index {
-			nb.Metallicity[j] = metals.At(i)
-		}
-	} else {
-		for j := range nb.Metallicity {
-			nb.Metallicity[j] = src.Star.Metallicity
-		}
-	}
-	kinetic := 0.0
-	for j := range nb.Index {
-		m, rho, u, z := nb.Mass[j], nb.Density[j], nb.InternalEnergy[j], nb.Metallicity[j]
-		if !(m > 0) || !(rho > 0) || !(u >= 0) || math.IsInf(m, 0) || math.IsInf(rho, 0) || math.IsInf(u, 0) {
-			return undeposited(src, errorf(ErrBadValue, "star %d: gas element %d (ID %d) has mass %g, density %g, internal energy %g: need positive finite mass and density and finite non-negative energy", src.Star.ID, nb.Index[j], nb.ID[j], m, rho, u))
-		}
-		p, v := nb.Dir[j], nb.Vel[j]
-		var d [3]float64
-		for a := 0; a < 3; a++ {
-			d[a] = p[a] - src.Star.Pos[a]
-		}
-		d = c.cfg.Box.MinImage(d)
-		r := math.Sqrt(dot(d, d))
-		if !(z >= 0 && z <= 1) {
-			return undeposited(src, errorf(ErrBadValue, "star %d: gas element %d (ID %d) has metal mass fraction %g, outside [0, 1]", src.Star.ID, nb.Index[j], nb.ID[j], z))
-		}
-		if !finite(r) || !finite(dot(v, v)) {
-			return undeposited(src, errorf(ErrBadValue, "star %d: gas element %d (ID %d) has a non-finite position or velocity", src.Star.ID, nb.Index[j], nb.ID[j]))
-		}
-		nb.Dist[j] = r
-		if r > 0 {
-			nb.Dir[j] = [3]float64{d[0] / r, d[1] / r, d[2] / r}
-		} else {
-			nb.Dir[j] = [3]float64{}
-		}
-		nb.RelVel[j] = [3]float64{v[0] - vs[0], v[1] - vs[1], v[2] - vs[2]}
-		kinetic += 0.5 * m * dot(v, v)
+	if g, ok := c.grower(); ok {
+		kinetic = c.grow(g, ws, gas, finder, q, src, metals, hasMetals, kinetic)
+		k = nb.Len()
 	}
 	baseWeights(c.cfg.Weighting, nb.Dist, nb.Mass, nb.Density, nb.Weight)
 	if nb.correct {
@@ -422,6 +378,7 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 	l := Ledger{Stars: 1, Radiated: radiated}
 	l.In = sourceQuantities(src)
 	l.Undeposited.Energy = nb.returned
+	l.Photons, l.EscapedPhotons = src.Photons, nb.escaped
 	for j := range deps {
 		d := &deps[j]
 		l.Deposited.Mass += d.Mass
@@ -437,7 +394,7 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 		var dv, kick [3]float64
 		for a := 0; a < 3; a++ {
 			dv[a] = (d.Momentum[a] - d.Mass*nb.Vel[j][a]) / mt
-			kick[a] = d.Momentum[a] - d.Mass*vs[a]
+			kick[a] = d.Momentum[a] - d.Mass*src.Star.Vel[a]
 		}
 		w := nb.RelVel[j]
 		l.KickEnergy += (2*m*dot(w, kick) + dot(kick, kick) - m*d.Mass*dot(w, w)) / (2 * mt)
@@ -459,4 +416,117 @@ func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder
 	l.MomentumScale = nb.pscale + math.Sqrt(dot(l.In.Momentum, l.In.Momentum))
 	l.EnergyScale = kinetic + math.Abs(l.In.Energy)
 	return l, nil
+}
+
+// gather reads the neighbors in ws.found into ws.nb, checks them and
+// derives distances, directions and star-frame velocities; it returns the
+// neighbors' lab-frame kinetic energy.
+func (c *Coupler) gather(ws *workerScratch, gas *Gas, src *Source, metals Column, hasMetals bool) (float64, error) {
+	k := len(ws.found)
+	nb := &ws.nb
+	nb.resize(k)
+	nb.Source = src
+	vs := src.Star.Vel
+	// Gather first, in a tight loop that keeps many cache misses in
+	// flight (neighbors are scattered in the host's memory); check and
+	// derive afterwards. Positions wait in Dir until then.
+	for j, f := range ws.found {
+		i := f.Index
+		if i < 0 || i >= gas.N {
+			return 0, errorf(ErrNoNeighbors, "star %d: neighbor index %d outside the gas (%d elements)", src.Star.ID, i, gas.N)
+		}
+		nb.Index[j] = i
+		nb.ID[j] = gas.ID.Int(i)
+		nb.Mass[j], nb.Density[j], nb.InternalEnergy[j] = gas.Mass.At(i), gas.Density.At(i), gas.InternalEnergy.At(i)
+		nb.Dir[j] = gas.position(i)
+		nb.Vel[j] = gas.velocity(i)
+	}
+	if hasMetals {
+		for j, i := range nb.Index {
+			nb.Metallicity[j] = metals.At(i)
+		}
+	} else {
+		for j := range nb.Metallicity {
+			nb.Metallicity[j] = src.Star.Metallicity
+		}
+	}
+	kinetic := 0.0
+	for j := range nb.Index {
+		m, rho, u, z := nb.Mass[j], nb.Density[j], nb.InternalEnergy[j], nb.Metallicity[j]
+		if !(m > 0) || !(rho > 0) || !(u >= 0) || math.IsInf(m, 0) || math.IsInf(rho, 0) || math.IsInf(u, 0) {
+			return 0, errorf(ErrBadValue, "star %d: gas element %d (ID %d) has mass %g, density %g, internal energy %g: need positive finite mass and density and finite non-negative energy", src.Star.ID, nb.Index[j], nb.ID[j], m, rho, u)
+		}
+		p, v := nb.Dir[j], nb.Vel[j]
+		var d [3]float64
+		for a := 0; a < 3; a++ {
+			d[a] = p[a] - src.Star.Pos[a]
+		}
+		d = c.cfg.Box.MinImage(d)
+		r := math.Sqrt(dot(d, d))
+		if !(z >= 0 && z <= 1) {
+			return 0, errorf(ErrBadValue, "star %d: gas element %d (ID %d) has metal mass fraction %g, outside [0, 1]", src.Star.ID, nb.Index[j], nb.ID[j], z)
+		}
+		if !finite(r) || !finite(dot(v, v)) {
+			return 0, errorf(ErrBadValue, "star %d: gas element %d (ID %d) has a non-finite position or velocity", src.Star.ID, nb.Index[j], nb.ID[j])
+		}
+		nb.Dist[j] = r
+		if r > 0 {
+			nb.Dir[j] = [3]float64{d[0] / r, d[1] / r, d[2] / r}
+		} else {
+			nb.Dir[j] = [3]float64{}
+		}
+		nb.RelVel[j] = [3]float64{v[0] - vs[0], v[1] - vs[1], v[2] - vs[2]}
+		kinetic += 0.5 * m * dot(v, v)
+	}
+	return kinetic, nil
+}
+
+// neighborGrower is a scheme that may need more gas than the coupler's
+// neighbors (photoionization, whose photons can reach beyond them):
+// neighborsWanted returns how many nearest neighbors it wants, or no more
+// than nb.Len() when it has enough.
+type neighborGrower interface {
+	neighborsWanted(nb *Neighborhood) int
+	// reachLimit is the most neighbors it may ever want.
+	reachLimit() int
+}
+
+// grower returns the scheme as a neighborGrower if it may want more
+// neighbors than the coupler finds.
+func (c *Coupler) grower() (neighborGrower, bool) {
+	g, ok := c.scheme.(neighborGrower)
+	if !ok || (c.cfg.Radius == 0 && g.reachLimit() <= c.cfg.Neighbors) {
+		return nil, false
+	}
+	return g, true
+}
+
+// grow extends ws.nb, nearest first, for as long as the scheme wants more
+// neighbors and the finder can give them; where it cannot (the gas runs
+// out, the host's lists are shorter, a neighbor has bad fields), the
+// neighborhood found last is kept. It returns the kinetic energy of the
+// neighborhood kept.
+func (c *Coupler) grow(g neighborGrower, ws *workerScratch, gas *Gas, finder neighbor.Finder, q neighbor.Query, src *Source, metals Column, hasMetals bool, kinetic float64) float64 {
+	for {
+		k := ws.nb.Len()
+		want := min(g.neighborsWanted(&ws.nb), gas.N)
+		if want <= k {
+			return kinetic
+		}
+		found, err := finder.Nearest(q, want, ws.grown)
+		ws.grown = found
+		if err != nil || len(found) <= k {
+			return kinetic
+		}
+		ws.found, ws.grown = ws.grown, ws.found
+		ke, err := c.gather(ws, gas, src, metals, hasMetals)
+		if err != nil {
+			// Keep the neighborhood that was fine (it gathers again
+			// without error: the same elements).
+			ws.found, ws.grown = ws.grown, ws.found
+			kinetic, _ = c.gather(ws, gas, src, metals, hasMetals)
+			return kinetic
+		}
+		kinetic = ke
+	}
 }

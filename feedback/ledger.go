@@ -54,8 +54,8 @@ type Ledger struct {
 	// Stars is the number of sources handled; Skipped those whose release
 	// was returned undeposited (no neighbors, bad input).
 	Stars, Skipped int
-	// Capped counts sources for which at least one neighbor received the
-	// terminal momentum cap (cooling radius unresolved).
+	// Capped counts sources whose remnant was radiative: the coupled mass
+	// was past the remnant fit's switch (cooling radius unresolved).
 	Capped int
 	// Limited counts sources whose kicks were scaled down so that no
 	// element's heat would be negative.
@@ -85,6 +85,11 @@ type Ledger struct {
 	// their sum plus the ejecta's lab-frame kinetic energy; what a release
 	// did not use is in Radiated or Undeposited.
 	KickEnergy, Heat float64
+	// Photons counts the hydrogen-ionizing photons of the sources coupled;
+	// EscapedPhotons those the gas the photoionization scheme reached did
+	// not absorb (its search bound was hit or the gas ran out). Their
+	// photoheating energy is in Radiated.
+	Photons, EscapedPhotons float64
 }
 
 // Add accumulates another ledger into l.
@@ -104,6 +109,8 @@ func (l *Ledger) Add(o *Ledger) {
 	l.EnergyScale += o.EnergyScale
 	l.KickEnergy += o.KickEnergy
 	l.Heat += o.Heat
+	l.Photons += o.Photons
+	l.EscapedPhotons += o.EscapedPhotons
 }
 
 // Imbalance is In - Deposited - Radiated - Undeposited: zero to round-off

@@ -14,11 +14,12 @@ import (
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
-// latticeOfMass is a 9^3 lattice at hydrogen density nH (cm^-3) whose
-// elements weigh m Msun, with the spacing that density implies.
-func latticeOfMass(m, nH float64, u units.CodeUnits) (*audit.GasArrays, float64) {
+// latticeOfMass is a cubic lattice of side n at hydrogen density nH
+// (cm^-3) whose elements weigh m Msun, with the spacing that density
+// implies.
+func latticeOfMass(n int, m, nH float64, u units.CodeUnits) (*audit.GasArrays, float64) {
 	dx := math.Cbrt(m*units.SolarMass/(nH*feedback.MassPerHydrogen*units.ProtonMass)) / units.Parsec
-	return latticeGas(9, dx, nH, u), dx
+	return latticeGas(n, dx, nH, u), dx
 }
 
 // coupledRemnant couples one supernova (1e51 erg, 10 Msun) from a star
@@ -28,7 +29,7 @@ func latticeOfMass(m, nH float64, u units.CodeUnits) (*audit.GasArrays, float64)
 func coupledRemnant(t *testing.T, fit feedback.RemnantFit, w feedback.Weighting, mc float64, offset [3]float64) (p, heat float64, capped bool) {
 	t.Helper()
 	u := pcMsunKms()
-	g, dx := latticeOfMass(mc/32, 1, u)
+	g, dx := latticeOfMass(9, mc/32, 1, u)
 	src := supernova(1, u)
 	for a := range offset {
 		src.Star.Pos[a] = offset[a] * dx
@@ -126,7 +127,7 @@ func TestPopulationMomentumDoesNotDependOnStepSize(t *testing.T) {
 	myr := units.Megayear / u.TimeS()
 	type result struct{ perEvent, winds float64 }
 	run := func(steps int) result {
-		g, _ := latticeOfMass(2e5, 1, u)
+		g, _ := latticeOfMass(9, 2e5, 1, u)
 		f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 		require.NoError(t, err)
 		cfg := feedback.DefaultStepConfig(feedback.Config{Units: u, Neighbors: 32}, pop)

@@ -115,6 +115,7 @@ type Neighborhood struct {
 	Momentum, HeatCap []float64
 
 	returned float64 // energy handed back undeposited
+	escaped  float64 // ionizing photons the gas reached did not absorb
 	correct  bool
 	residual float64 // isotropy residual of the radial momenta
 	radial   float64 // sum_j dp_j . n_j
@@ -161,7 +162,7 @@ func (nb *Neighborhood) resize(k int) {
 	nb.Momentum = nb.Momentum[:k]
 	nb.HeatCap = nb.HeatCap[:k]
 	nb.scratch = nb.scratch[:k]
-	nb.residual, nb.radial, nb.pscale, nb.returned = 0, 0, 0, 0
+	nb.residual, nb.radial, nb.pscale, nb.returned, nb.escaped = 0, 0, 0, 0, 0
 	nb.limited, nb.capped = false, false
 }
 

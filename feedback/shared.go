@@ -19,7 +19,14 @@ type sharedSearch struct {
 	finder neighbor.Finder
 	stars  []StarParticle
 	cfg    Config
+	// wider is the finder of the last fill, kept until release, which
+	// answers requests for more neighbors than the search found (a
+	// scheme whose reach grows, photoionization).
+	wider neighbor.Finder
 }
+
+// release forgets the finder of the last fill.
+func (s *sharedSearch) release() { s.wider = nil }
 
 // fill runs the search for every star with the coupling configuration's
 // neighbor count or radius, on cfg.Workers goroutines. Its error is a
@@ -35,6 +42,7 @@ func (s *sharedSearch) fill(f neighbor.Finder, stars []StarParticle, cfg Config)
 	}
 	s.rows, s.errs = s.rows[:n], s.errs[:n]
 	s.finder, s.stars, s.cfg = f, stars, cfg
+	s.wider = f
 	err := s.pool.run(s, cfg.Workers, n)
 	s.finder, s.stars = nil, nil
 	return err
@@ -57,13 +65,17 @@ func (s *sharedSearch) row(q neighbor.Query) ([]neighbor.Neighbor, error) {
 	return s.rows[q.Star], s.errs[q.Star]
 }
 
-// Nearest returns the first k of the star's neighbors.
+// Nearest returns the first k of the star's neighbors; more than the
+// search found are asked of the finder itself.
 func (s *sharedSearch) Nearest(q neighbor.Query, k int, buf []neighbor.Neighbor) ([]neighbor.Neighbor, error) {
 	row, err := s.row(q)
 	if err != nil {
 		return buf[:0], err
 	}
 	if k > len(row) {
+		if s.wider != nil {
+			return s.wider.Nearest(q, k, buf)
+		}
 		return buf[:0], fmt.Errorf("shared search: %d neighbors asked for, %d found: %w", k, len(row), neighbor.ErrTooFew)
 	}
 	return append(buf[:0], row[:k]...), nil

@@ -297,6 +297,7 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 	if finder == nil {
 		return errorf(ErrInvalidArgument, "step: nil neighbor finder")
 	}
+	defer s.search.release()
 	if err := s.search.fill(finder, stars, s.couplers[0].Config()); err != nil {
 		return fmt.Errorf("step: neighbor search: %w", err)
 	}
