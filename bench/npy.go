@@ -168,7 +168,7 @@ func ReadGasDir(dir string, u units.CodeUnits, box neighbor.Box) (*Case, error) 
 		if err != nil {
 			return nil, fmt.Errorf("read gas %s: star %d: %w", dir, s, err)
 		}
-		z := feedback.SolarMetallicity
+		z := yields.SolarMetals
 		if metals != nil {
 			z = metals[buf[0].Index]
 		}

@@ -148,7 +148,7 @@ func setupNames(s []Setup) string {
 }
 
 // solarMetallicity is the gas metal mass fraction of the built-in set-ups.
-const solarMetallicity = feedback.SolarMetallicity
+const solarMetallicity = yields.SolarMetals
 
 // gasTemperatureEnergy is the specific internal energy (km^2/s^2) of gas at
 // temperature t with mean molecular weight mu: (3/2) k T / (mu m_p).

@@ -202,37 +202,18 @@ func starParticle(p *starParticleABI) (feedback.StarParticle, error) {
 			Metallicity: p.Metallicity, Age: p.Age},
 		FormedMass: p.FormedMass, CarriedEnergy: p.CarriedEnergy,
 	}
-	for a := 0; a < 3; a++ {
-		if !finite(p.Position[a]) || !finite(p.Velocity[a]) {
-			return sp, fail(codeBadValue, "star %d: position %v and velocity %v must be finite", p.ID, p.Position, p.Velocity)
-		}
-	}
-	fields := []struct {
-		name string
-		v    float64
-	}{
-		{"mass", p.Mass}, {"formed_mass", p.FormedMass}, {"metallicity", p.Metallicity},
-		{"age", p.Age}, {"carried_energy", p.CarriedEnergy},
-	}
-	for _, f := range fields {
-		if !finite(f.v) || f.v < 0 {
-			return sp, fail(codeBadValue, "star %d: %s %g must be finite and >= 0", p.ID, f.name, f.v)
-		}
-	}
-	if p.Metallicity >= 1 {
-		return sp, fail(codeBadValue, "star %d: metallicity %g must be below 1", p.ID, p.Metallicity)
+	if err := sp.Validate(); err != nil {
+		return sp, fail(codeBadValue, "%w", err)
 	}
 	return sp, nil
 }
-
-func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 // stepPopulation is behind ejecta_step_population.
 func (s *session) stepPopulation(stars *starParticleABI, dt float64, a batchArgs) error {
 	if err := a.check(stars == nil); err != nil {
 		return err
 	}
-	if !finite(dt) || dt < 0 {
+	if !(dt >= 0) || math.IsInf(dt, 0) {
 		return fail(codeBadValue, "dt %g must be finite and >= 0", dt)
 	}
 	p := s.pop

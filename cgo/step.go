@@ -191,9 +191,6 @@ func starSource(st *starABI) (feedback.Source, error) {
 	if err := src.Validate(); err != nil {
 		return src, failWith(codeBadValue, err, "star %d", st.ID)
 	}
-	if !(st.Mass >= 0) || !(st.Age >= 0) || !(st.Metallicity >= 0) {
-		return src, fail(codeBadValue, "star %d: mass %g, age %g and metallicity %g must be >= 0", st.ID, st.Mass, st.Age, st.Metallicity)
-	}
 	return src, nil
 }
 

@@ -51,18 +51,6 @@ type ApplyReport struct {
 	ShortfallElements int
 }
 
-// CompareRecords orders records by gas ID, then star ID, then channel: the
-// order in which Apply sums them.
-func CompareRecords(a, b *Record) int {
-	if d := cmpInt64(a.GasID, b.GasID); d != 0 {
-		return d
-	}
-	if d := cmpInt64(a.StarID, b.StarID); d != 0 {
-		return d
-	}
-	return int(a.Channel) - int(b.Channel)
-}
-
 // Apply adds records to the gas in place. It orders the records by gas
 // ID, star ID and channel (without moving them), then sums each element's
 // records in that fixed order, so the result is bitwise the same whatever

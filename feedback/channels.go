@@ -187,7 +187,7 @@ func (s RadiationPressure) Deposit(nb *Neighborhood, out []Deposit) (float64, er
 	if rmax > 0 {
 		sigma = 3 * mass * u.MassG / (4 * math.Pi * rmax * rmax * u.LengthCm * u.LengthCm)
 	}
-	p := s.Momentum(nb.Source.Energy, sigma, zsum/SolarMetallicity, u)
+	p := s.Momentum(nb.Source.Energy, sigma, zsum/yields.SolarMetals, u)
 	for j := range nb.Momentum {
 		nb.Momentum[j] = nb.Weight[j] * p
 		nb.HeatCap[j] = 0

@@ -150,7 +150,7 @@ func (s PhotoelectricHeating) Deposit(nb *Neighborhood, out []Deposit) (float64,
 			size := math.Cbrt(3 * mass / (4 * math.Pi * nb.Density[j] * u.DensityGCm3()))
 			r := math.Max(nb.Dist[j]*u.LengthCm, size)
 			area := 4 * math.Pi * r * r
-			zeta := nb.Metallicity[j] / SolarMetallicity
+			zeta := nb.Metallicity[j] / yields.SolarMetals
 			dtau := s.FUVOpacity * zeta * mass / area
 			g0[j] = FUVFieldAt(lum, r, tau+dtau/2)
 			absorbed := eErg * math.Exp(-tau) * -math.Expm1(-dtau)

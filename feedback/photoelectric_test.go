@@ -141,7 +141,7 @@ func TestPhotoelectricHeatingRateOpticallyThin(t *testing.T) {
 		mu := feedback.MassPerHydrogen / feedback.ElectronsPerHydrogen
 		T := 2.0 / 3 * before[i] * u.SpecificEnergy() * mu * units.ProtonMass / units.Boltzmann
 		nH := g.Density[i] * u.DensityGCm3() / (feedback.MassPerHydrogen * units.ProtonMass)
-		eps := feedback.PhotoelectricEfficiency(r.FUVField*math.Sqrt(T)/(1e-2*nH), T) * g.Fractions[0][i] / feedback.SolarMetallicity
+		eps := feedback.PhotoelectricEfficiency(r.FUVField*math.Sqrt(T)/(1e-2*nH), T) * g.Fractions[0][i] / yields.SolarMetals
 		hydrogen := g.Mass[i] * u.MassG / (feedback.MassPerHydrogen * units.ProtonMass)
 		want := 1e-24 * eps * r.FUVField * hydrogen * units.Megayear / u.EnergyErg()
 		assert.InEpsilon(t, want, r.Heat, 1e-9)
@@ -165,7 +165,7 @@ func TestPhotoelectricHeatNeverExceedsAbsorbedLight(t *testing.T) {
 			i := r.GasIndex
 			d := math.Sqrt(math.Pow(g.Pos[0][i]-star[0], 2) + math.Pow(g.Pos[1][i]-star[1], 2) + math.Pow(g.Pos[2][i]-star[2], 2))
 			d = math.Max(d, size) * units.Parsec
-			tau += kappa * g.Fractions[0][i] / feedback.SolarMetallicity * g.Mass[i] * units.SolarMass / (4 * math.Pi * d * d)
+			tau += kappa * g.Fractions[0][i] / yields.SolarMetals * g.Mass[i] * units.SolarMass / (4 * math.Pi * d * d)
 		}
 		e := out.Ledger.In.Energy
 		absorbed := -math.Expm1(-tau) * e

@@ -21,11 +21,6 @@ const (
 // much heat an unresolved remnant leaves behind.
 const PostCoolingThermalExponent = -6.5
 
-// SolarMetallicity is the present-day solar metal mass fraction used to
-// express gas metallicity in solar units, Z_sun = 0.0134 (Asplund, Grevesse,
-// Sauval & Scott 2009, ARA&A 47, 481; from memory).
-const SolarMetallicity = 0.0134
-
 // MassPerHydrogen is the gas mass per hydrogen atom in units of the proton
 // mass, 1/X with X = yields.SolarHydrogen the hydrogen mass fraction the
 // library uses everywhere else (Asplund, Grevesse, Sauval & Scott 2009,

@@ -17,6 +17,28 @@ type Star struct {
 	Age         float64
 }
 
+// Validate checks a star: finite position and velocity (with finite
+// squares), finite non-negative mass and age, metallicity in [0, 1). Every
+// check of a star, in a Source, a StarParticle or from the C ABI, is this
+// one.
+func (s *Star) Validate() error {
+	if !finite(dot(s.Pos, s.Pos)) || !finite(dot(s.Vel, s.Vel)) {
+		return errorf(ErrBadValue, "star %d: position %v or velocity %v not finite (or too large to square)", s.ID, s.Pos, s.Vel)
+	}
+	for _, f := range [...]struct {
+		name string
+		v    float64
+	}{{"mass", s.Mass}, {"age", s.Age}} {
+		if !(f.v >= 0) || math.IsInf(f.v, 0) {
+			return errorf(ErrBadValue, "star %d: %s %g must be finite and non-negative", s.ID, f.name, f.v)
+		}
+	}
+	if !(s.Metallicity >= 0 && s.Metallicity < 1) {
+		return errorf(ErrBadValue, "star %d: metallicity %g outside [0, 1)", s.ID, s.Metallicity)
+	}
+	return nil
+}
+
 // Source is what one star releases into its gas in one call, in code units
 // and in the star's rest frame: the ejected mass (which moves with the star),
 // its species, and the energy (explosion energy for supernovae, wind kinetic
@@ -47,26 +69,23 @@ type Source struct {
 	Dispersion float64
 }
 
-// Validate checks that the release is finite, non-negative and that no
-// species outweighs the ejected mass. Errors name species as in
+// Validate checks the star (Star.Validate), that the release is finite
+// and non-negative, and that no species outweighs the ejected mass. Errors name species as in
 // yields.DefaultSpeciesSet; a Coupler names them by its Config.Species.
 func (s *Source) Validate() error { return s.validateIn(yields.SpeciesSet{}) }
 
 // validateIn is Validate with species named by set.
 func (s *Source) validateIn(set yields.SpeciesSet) error {
-	vals := [...]float64{s.Mass, s.Energy, s.Events, s.Photons, s.Duration, s.NewStellarMass, s.Dispersion,
-		s.Star.Mass, s.Star.Metallicity, s.Star.Age}
+	if err := s.Star.Validate(); err != nil {
+		return err
+	}
+	vals := [...]float64{s.Mass, s.Energy, s.Events, s.Photons, s.Duration, s.NewStellarMass, s.Dispersion}
 	for _, v := range vals {
 		if !finite(v) {
-			return errorf(ErrBadValue, "star %d: non-finite release or star field", s.Star.ID)
+			return errorf(ErrBadValue, "star %d: non-finite release", s.Star.ID)
 		}
 	}
-	for a := 0; a < 3; a++ {
-		if !finite(s.Star.Pos[a]) || !finite(s.Star.Vel[a]) {
-			return errorf(ErrBadValue, "star %d: non-finite position or velocity", s.Star.ID)
-		}
-	}
-	if v2 := dot(s.Star.Vel, s.Star.Vel); !finite(v2) || !finite(0.5*s.Mass*v2) {
+	if v2 := dot(s.Star.Vel, s.Star.Vel); !finite(0.5 * s.Mass * v2) {
 		return errorf(ErrBadValue, "star %d: the ejecta's kinetic energy overflows (speed %g, mass %g)", s.Star.ID, math.Sqrt(math.Abs(v2)), s.Mass)
 	}
 	if s.Mass < 0 || s.Energy < 0 || s.Events < 0 || s.Photons < 0 || s.Duration < 0 {

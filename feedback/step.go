@@ -220,7 +220,7 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 	maxExpected := 0.0
 	for i := range stars {
 		st := &stars[i]
-		if err := st.validate(); err != nil {
+		if err := st.Validate(); err != nil {
 			return fmt.Errorf("step: %w", err)
 		}
 		age0 := st.Age * myr
@@ -394,24 +394,19 @@ func (s *Stepper) delayCooling(gas *Gas, c int, recs []Record) {
 	}
 }
 
-// validate checks a star particle before a step uses it: finite position
-// and velocity (with a finite kinetic energy per mass), finite
-// non-negative masses, age and carried energy, metallicity in [0, 1).
-func (st *StarParticle) validate() error {
-	v2 := dot(st.Vel, st.Vel)
-	if !finite(dot(st.Pos, st.Pos)) || !finite(v2) {
-		return errorf(ErrBadValue, "star %d: position or velocity not finite (or too large to square)", st.ID)
+// Validate checks a star particle before a step uses it: the star
+// (Star.Validate) and finite non-negative formed mass and carried energy.
+func (st *StarParticle) Validate() error {
+	if err := st.Star.Validate(); err != nil {
+		return err
 	}
 	for _, f := range [...]struct {
 		name string
 		v    float64
-	}{{"mass", st.Mass}, {"formed mass", st.FormedMass}, {"age", st.Age}, {"carried energy", st.CarriedEnergy}} {
+	}{{"formed mass", st.FormedMass}, {"carried energy", st.CarriedEnergy}} {
 		if !(f.v >= 0) || math.IsInf(f.v, 0) {
 			return errorf(ErrBadValue, "star %d: %s %g must be finite and non-negative", st.ID, f.name, f.v)
 		}
-	}
-	if !(st.Metallicity >= 0 && st.Metallicity < 1) {
-		return errorf(ErrBadValue, "star %d: metallicity %g outside [0, 1)", st.ID, st.Metallicity)
 	}
 	return nil
 }

@@ -1,6 +1,10 @@
 package feedback
 
-import "math"
+import (
+	"math"
+
+	"github.com/ejecta-dev/ejecta/neighbor"
+)
 
 // Weighting chooses how a release is shared among a star's neighbors
 // before the isotropy correction.
@@ -36,19 +40,6 @@ func (w Weighting) String() string {
 // neighbor's distance.
 const kernelSupportFactor = 1.1
 
-// cubicSpline is the unnormalized M4 cubic spline with compact support at
-// q = 1 (the normalization cancels in shares).
-func cubicSpline(q float64) float64 {
-	switch {
-	case q < 0.5:
-		return 1 - 6*q*q + 6*q*q*q
-	case q < 1:
-		t := 1 - q
-		return 2 * t * t * t
-	}
-	return 0
-}
-
 // baseWeights fills w with the chosen weighting, normalized to sum to one.
 func baseWeights(kind Weighting, dist, mass, density, w []float64) {
 	switch kind {
@@ -70,13 +61,15 @@ func baseWeights(kind Weighting, dist, mass, density, w []float64) {
 		for _, d := range dist {
 			rmax = math.Max(rmax, d)
 		}
+		// The cubic spline of package neighbor, with support h (its
+		// normalization cancels in the shares); gas all at the star's
+		// position shares by volume.
 		h := kernelSupportFactor * rmax
 		for j := range w {
-			q := 0.0
+			w[j] = mass[j] / density[j]
 			if h > 0 {
-				q = dist[j] / h
+				w[j] *= neighbor.CubicSplineW(dist[j], h)
 			}
-			w[j] = cubicSpline(q) * mass[j] / density[j]
 		}
 	}
 	normalize(w)

@@ -25,11 +25,6 @@ func heapPush(h []Neighbor, x Neighbor, ids []int64) []Neighbor {
 	return h
 }
 
-// heapFixTop restores the max-heap h after h[0] was replaced.
-func heapFixTop(h []Neighbor, ids []int64) {
-	siftDown(h, 0, len(h), ids)
-}
-
 func siftDown(h []Neighbor, i, n int, ids []int64) {
 	for {
 		l := 2*i + 1
