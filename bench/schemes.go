@@ -60,11 +60,11 @@ func newDrives() *drives {
 		if err != nil {
 			return 0, err
 		}
-		young, err := pop.Release(0, YoungLightAge, feedback.SolarMetallicity)
+		young, err := pop.Release(0, YoungLightAge, yields.SolarMetals)
 		if err != nil {
 			return 0, err
 		}
-		life, err := pop.Release(0, 1e5, feedback.SolarMetallicity)
+		life, err := pop.Release(0, 1e5, yields.SolarMetals)
 		if err != nil {
 			return 0, err
 		}
