@@ -64,18 +64,19 @@ const (
 // RemnantTable is a remnant fit read from a table, typically calibrated
 // with the 1D remnant solver (bench/remnant) for the cooling function a
 // simulation runs: the terminal momentum and cooling radius of a remnant
-// are the table's shell-formation momentum and radius, interpolated
-// bilinearly in log density and log metallicity (log values of both). A
-// remnant of energy E other than the table's E_t is scaled with the
-// energy exponents of Kim & Ostriker 2015 (ApJ 802, 99; from memory):
-// momentum × (E/E_t)^0.93, radius × (E/E_t)^0.29. An axis with a single
+// are the table's shell-formation momentum and radius, and its switch mass
+// the shell-formation mass, interpolated bilinearly in log density and
+// log metallicity (log values of both). A remnant of energy E other than
+// the table's E_t is scaled with the energy exponents of Kim & Ostriker
+// 2015 (ApJ 802, 99; from memory): momentum × (E/E_t)^0.93, radius ×
+// (E/E_t)^0.29, mass × (E/E_t)^0.87. An axis with a single
 // grid value is used as it is at any input along that axis only under
 // ClampToGrid. A RemnantTable is immutable and safe for concurrent use.
 type RemnantTable struct {
 	densities, logDensities []float64
 	zs, logZs               []float64
 	energy                  float64
-	logP, logR              []float64 // [iz*len(densities)+in]
+	logP, logR, logM        []float64 // [iz*len(densities)+in]
 	rows                    []RemnantTableRow
 	outside                 OutsideGrid
 }
@@ -142,8 +143,11 @@ func (t *RemnantTable) Remnant(e, n, zeta float64) (Remnant, error) {
 		return (1-wz)*a + wz*b
 	}
 	le := math.Log(e / t.energy)
+	p := math.Exp(bilinear(t.logP) + 0.93*le)
 	return Remnant{
-		TerminalMomentum: math.Exp(bilinear(t.logP) + 0.93*le),
+		TerminalMomentum: p,
+		SwitchMomentum:   p,
+		SwitchMass:       math.Exp(bilinear(t.logM) + 0.87*le),
 		CoolingRadius:    math.Exp(bilinear(t.logR) + 0.29*le),
 	}, nil
 }
@@ -264,6 +268,7 @@ func ReadRemnantTable(r io.Reader) (*RemnantTable, error) {
 		}
 		t.logP = append(t.logP, math.Log(row.ShellMomentum*units.MsunKms))
 		t.logR = append(t.logR, math.Log(row.ShellRadius*units.Parsec))
+		t.logM = append(t.logM, math.Log(row.ShellMass*units.SolarMass))
 	}
 	for _, d := range t.densities {
 		t.logDensities = append(t.logDensities, math.Log(d))

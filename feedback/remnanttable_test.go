@@ -43,6 +43,8 @@ func TestRemnantTableRoundTrip(t *testing.T) {
 		require.NoError(t, err)
 		assert.InEpsilon(t, r.ShellMomentum*units.MsunKms, rem.TerminalMomentum, 1e-13)
 		assert.InEpsilon(t, r.ShellRadius*units.Parsec, rem.CoolingRadius, 1e-13)
+		assert.InEpsilon(t, r.ShellMass*units.SolarMass, rem.SwitchMass, 1e-13)
+		assert.Equal(t, rem.TerminalMomentum, rem.SwitchMomentum)
 	}
 	// Between grid points the power laws are reproduced.
 	n, z := 3.7, 0.42
@@ -55,6 +57,7 @@ func TestRemnantTableRoundTrip(t *testing.T) {
 	require.NoError(t, err)
 	assert.InEpsilon(t, math.Pow(2, 0.93), rem2.TerminalMomentum/rem.TerminalMomentum, 1e-12)
 	assert.InEpsilon(t, math.Pow(2, 0.29), rem2.CoolingRadius/rem.CoolingRadius, 1e-12)
+	assert.InEpsilon(t, math.Pow(2, 0.87), rem2.SwitchMass/rem.SwitchMass, 1e-12)
 }
 
 func TestRemnantTableOutsideGrid(t *testing.T) {

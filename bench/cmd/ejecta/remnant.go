@@ -23,6 +23,7 @@ import (
 	"github.com/ejecta-dev/ejecta/bench/cooling"
 	"github.com/ejecta-dev/ejecta/bench/remnant"
 	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
@@ -270,9 +271,9 @@ func remnantPlots(dir string, cfg remnant.Config, res *remnant.Result) error {
 		pm.Legend.Add(name, l)
 		return nil
 	}
-	zeta := math.Max(cfg.Metallicity, 1e-3)
-	ko := feedback.KimOstriker2015.Remnant(cfg.Energy, cfg.Density, zeta)
-	cmb := feedback.CioffiMcKeeBertschinger1988.Remnant(cfg.Energy, cfg.Density, zeta)
+	z := cfg.Metallicity * yields.SolarMetals // metal mass fraction
+	ko := feedback.KimOstriker2015.Remnant(cfg.Energy, cfg.Density, z)
+	cmb := feedback.CioffiMcKeeBertschinger1988.Remnant(cfg.Energy, cfg.Density, z)
 	if err := horizontal(ko.TerminalMomentum/units.MsunKms, color.RGBA{R: 200, A: 255}, true, "Kim & Ostriker 2015 p_sf"); err != nil {
 		return fmt.Errorf("plots: %w", err)
 	}
