@@ -59,6 +59,8 @@ func hydrogenDensity(rho float64, u units.CodeUnits) float64 {
 // the rest is booked as radiated.
 type Winds struct {
 	Fit RemnantFit
+	// Table, when set, replaces Fit (see TerminalMomentum.Table).
+	Table *RemnantTable
 	// EventEnergy is the energy, in erg, of one remnant the wind energy is
 	// counted in, positive and finite. DefaultWinds uses one supernova's,
 	// units.FOE (1e51 erg): a wind then delivers the radiative remnant
@@ -87,7 +89,9 @@ func (s Winds) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
 		return 0, err
 	}
 	ev := s.EventEnergy
-	nb.remnantShares(s.Fit, nb.Source.Energy*nb.Units.EnergyErg()/ev)
+	if err := nb.remnantShares(s.Fit, s.Table, nb.Source.Energy*nb.Units.EnergyErg()/ev); err != nil {
+		return 0, err
+	}
 	return nb.CoupleRadial(out), nil
 }
 

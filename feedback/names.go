@@ -6,6 +6,9 @@ import "strings"
 type SchemeOptions struct {
 	// Fit is the terminal momentum fit (terminal-momentum, stellar-winds).
 	Fit RemnantFit
+	// Table, when set, replaces Fit with a remnant table (terminal-momentum,
+	// stellar-winds).
+	Table *RemnantTable
 	// KineticFraction is the kinetic scheme's fraction.
 	KineticFraction float64
 	// Seed keys the draws of stochastic heating and kicked winds;
@@ -41,14 +44,16 @@ func SchemeByName(name string, o SchemeOptions) (Scheme, error) {
 		k := Kinetic{KineticFraction: o.KineticFraction}
 		return k, k.Validate()
 	case TerminalMomentum{}.Name():
-		return TerminalMomentum{Fit: o.Fit}, nil
+		return TerminalMomentum{Fit: o.Fit, Table: o.Table}, nil
 	case StochasticHeating{}.Name():
 		sh := StochasticHeating{Seed: o.Seed, TemperatureJump: o.TemperatureJump}
 		return sh, sh.Validate()
 	case DelayedCooling{}.Name():
 		return DelayedCooling{}, nil
 	case Winds{}.Name():
-		return DefaultWinds(o.Fit), nil
+		w := DefaultWinds(o.Fit)
+		w.Table = o.Table
+		return w, nil
 	case RadiationPressure{}.Name():
 		return DefaultRadiationPressure(), nil
 	case Photoionization{}.Name():

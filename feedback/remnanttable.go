@@ -63,22 +63,25 @@ const (
 
 // RemnantTable is a remnant fit read from a table, typically calibrated
 // with the 1D remnant solver (bench/remnant) for the cooling function a
-// simulation runs: the terminal momentum and cooling radius of a remnant
-// are the table's shell-formation momentum and radius, and its switch mass
-// the shell-formation mass, interpolated bilinearly in log density and
-// log metallicity (log values of both). A remnant of energy E other than
-// the table's E_t is scaled with the energy exponents of Kim & Ostriker
-// 2015 (ApJ 802, 99; from memory): momentum × (E/E_t)^0.93, radius ×
-// (E/E_t)^0.29, mass × (E/E_t)^0.87. An axis with a single
-// grid value is used as it is at any input along that axis only under
-// ClampToGrid. A RemnantTable is immutable and safe for concurrent use.
+// simulation runs, and used by TerminalMomentum and Winds in place of a
+// published fit (their Table field). Logarithms of the table's values are
+// interpolated bilinearly in log density and log metallicity. A remnant of
+// energy E other than the table's E_t is scaled with the energy exponents
+// of Kim & Ostriker 2015 (ApJ 802, 99; from memory): momenta × (E/E_t)^0.93,
+// radius × (E/E_t)^0.29, masses × (E/E_t)^0.87. An axis with a single grid
+// value serves other inputs along that axis only under ClampToGrid. A
+// RemnantTable is immutable and safe for concurrent use.
 type RemnantTable struct {
 	densities, logDensities []float64
 	zs, logZs               []float64
 	energy                  float64
-	logP, logR, logM        []float64 // [iz*len(densities)+in]
-	rows                    []RemnantTableRow
-	outside                 OutsideGrid
+	// ln of shell momentum (g cm/s), radius (cm), mass (g), late momentum
+	// and late mass, [iz*len(densities)+in].
+	logP, logR, logM   []float64
+	logLateP, logLateM []float64
+	hasLate            bool // every row has late values
+	rows               []RemnantTableRow
+	outside            OutsideGrid
 }
 
 // WithOutsideGrid returns a copy of the table that treats inputs outside
@@ -123,8 +126,14 @@ func (t *RemnantTable) locate(what string, v float64, g, lg []float64) (int, int
 }
 
 // Remnant evaluates the table for energy e in erg, hydrogen density n in
-// cm^-3 and metallicity zeta in solar units.
-func (t *RemnantTable) Remnant(e, n, zeta float64) (Remnant, error) {
+// cm^-3 and metal mass fraction z (divided by SolarMetallicity to look up
+// the table's metallicity in solar units), as RemnantFit.Remnant does for
+// a published fit: the cooling radius, switch mass and switch momentum are
+// the table's shell-formation radius, mass and momentum; the terminal
+// momentum is the larger of the shell-formation and late momenta, reached
+// by growing as the swept mass to the power ln(p_late/p_sf) /
+// ln(M_late/M_sf) (zero when the table has no later growth).
+func (t *RemnantTable) Remnant(e, n, z float64) (Remnant, error) {
 	if !(e > 0) || math.IsInf(e, 0) {
 		return Remnant{}, errorf(ErrBadValue, "remnant table: energy %v erg: want finite > 0", e)
 	}
@@ -132,7 +141,7 @@ func (t *RemnantTable) Remnant(e, n, zeta float64) (Remnant, error) {
 	if err != nil {
 		return Remnant{}, err
 	}
-	z0, z1, wz, err := t.locate("metallicity", zeta, t.zs, t.logZs)
+	z0, z1, wz, err := t.locate("metallicity", z/SolarMetallicity, t.zs, t.logZs)
 	if err != nil {
 		return Remnant{}, err
 	}
@@ -143,13 +152,21 @@ func (t *RemnantTable) Remnant(e, n, zeta float64) (Remnant, error) {
 		return (1-wz)*a + wz*b
 	}
 	le := math.Log(e / t.energy)
-	p := math.Exp(bilinear(t.logP) + 0.93*le)
-	return Remnant{
-		TerminalMomentum: p,
-		SwitchMomentum:   p,
-		SwitchMass:       math.Exp(bilinear(t.logM) + 0.87*le),
+	lp, lm := bilinear(t.logP)+0.93*le, bilinear(t.logM)+0.87*le
+	r := Remnant{
 		CoolingRadius:    math.Exp(bilinear(t.logR) + 0.29*le),
-	}, nil
+		SwitchMass:       math.Exp(lm),
+		SwitchMomentum:   math.Exp(lp),
+		TerminalMomentum: math.Exp(lp),
+	}
+	if t.hasLate {
+		lpl, lml := bilinear(t.logLateP)+0.93*le, bilinear(t.logLateM)+0.87*le
+		if lpl > lp && lml > lm {
+			r.TerminalMomentum = math.Exp(lpl)
+			r.GrowthExponent = (lpl - lp) / (lml - lm)
+		}
+	}
+	return r, nil
 }
 
 // ReadRemnantTableFile reads a remnant table from a file; errors name the
@@ -269,6 +286,12 @@ func ReadRemnantTable(r io.Reader) (*RemnantTable, error) {
 		t.logP = append(t.logP, math.Log(row.ShellMomentum*units.MsunKms))
 		t.logR = append(t.logR, math.Log(row.ShellRadius*units.Parsec))
 		t.logM = append(t.logM, math.Log(row.ShellMass*units.SolarMass))
+		t.logLateP = append(t.logLateP, math.Log(row.LateMomentum*units.MsunKms))
+		t.logLateM = append(t.logLateM, math.Log(row.LateMass*units.SolarMass))
+	}
+	t.hasLate = true
+	for _, row := range rows {
+		t.hasLate = t.hasLate && row.LateMomentum > 0 && row.LateMass > 0
 	}
 	for _, d := range t.densities {
 		t.logDensities = append(t.logDensities, math.Log(d))

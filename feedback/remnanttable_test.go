@@ -22,7 +22,7 @@ func testRemnantRows() []RemnantTableRow {
 				Density: n, Metallicity: z, Energy: 1e51,
 				ShellTime: 44 * math.Pow(n, -0.55), ShellRadius: 22 * math.Pow(n, -0.42) * math.Pow(z, -0.1),
 				ShellMass: 1500 * math.Pow(n, -0.26), ShellMomentum: 2e5 * math.Pow(n, -0.13) * math.Pow(z, -0.2),
-				LateTime: 440 * math.Pow(n, -0.55), LateMass: 9000 * math.Pow(n, -0.26), LateMomentum: 2.6e5 * math.Pow(n, -0.13),
+				LateTime: 440 * math.Pow(n, -0.55), LateMass: 9000 * math.Pow(n, -0.26), LateMomentum: 2.6e5 * math.Pow(n, -0.13) * math.Pow(z, -0.2),
 			})
 		}
 	}
@@ -39,25 +39,30 @@ func TestRemnantTableRoundTrip(t *testing.T) {
 	assert.Equal(t, 1e51, tab.Energy())
 	// Grid points come back exactly (to round-off of exp(log)).
 	for _, r := range rows {
-		rem, err := tab.Remnant(r.Energy, r.Density, r.Metallicity)
+		rem, err := tab.Remnant(r.Energy, r.Density, r.Metallicity*SolarMetallicity)
 		require.NoError(t, err)
-		assert.InEpsilon(t, r.ShellMomentum*units.MsunKms, rem.TerminalMomentum, 1e-13)
-		assert.InEpsilon(t, r.ShellRadius*units.Parsec, rem.CoolingRadius, 1e-13)
+		assert.InEpsilon(t, r.ShellMomentum*units.MsunKms, rem.SwitchMomentum, 1e-13)
 		assert.InEpsilon(t, r.ShellMass*units.SolarMass, rem.SwitchMass, 1e-13)
-		assert.Equal(t, rem.TerminalMomentum, rem.SwitchMomentum)
+		assert.InEpsilon(t, r.ShellRadius*units.Parsec, rem.CoolingRadius, 1e-13)
+		assert.InEpsilon(t, r.LateMomentum*units.MsunKms, rem.TerminalMomentum, 1e-13)
+		// Past the switch the momentum grows with the swept mass to reach
+		// the late momentum at the late mass.
+		p, _, radiative := rem.MomentumAt(r.Energy, 3*units.SolarMass, r.LateMass*units.SolarMass)
+		assert.True(t, radiative)
+		assert.InEpsilon(t, r.LateMomentum*units.MsunKms, p, 1e-12)
 	}
 	// Between grid points the power laws are reproduced.
 	n, z := 3.7, 0.42
-	rem, err := tab.Remnant(1e51, n, z)
+	rem, err := tab.Remnant(1e51, n, z*SolarMetallicity)
 	require.NoError(t, err)
-	assert.InEpsilon(t, 2e5*math.Pow(n, -0.13)*math.Pow(z, -0.2)*units.MsunKms, rem.TerminalMomentum, 1e-12)
+	assert.InEpsilon(t, 2e5*math.Pow(n, -0.13)*math.Pow(z, -0.2)*units.MsunKms, rem.SwitchMomentum, 1e-12)
 	assert.InEpsilon(t, 22*math.Pow(n, -0.42)*math.Pow(z, -0.1)*units.Parsec, rem.CoolingRadius, 1e-12)
 	// Other energies scale with the Kim & Ostriker 2015 exponents.
-	rem2, err := tab.Remnant(2e51, n, z)
+	rem2, err := tab.Remnant(2e51, n, z*SolarMetallicity)
 	require.NoError(t, err)
-	assert.InEpsilon(t, math.Pow(2, 0.93), rem2.TerminalMomentum/rem.TerminalMomentum, 1e-12)
-	assert.InEpsilon(t, math.Pow(2, 0.29), rem2.CoolingRadius/rem.CoolingRadius, 1e-12)
+	assert.InEpsilon(t, math.Pow(2, 0.93), rem2.SwitchMomentum/rem.SwitchMomentum, 1e-12)
 	assert.InEpsilon(t, math.Pow(2, 0.87), rem2.SwitchMass/rem.SwitchMass, 1e-12)
+	assert.InEpsilon(t, math.Pow(2, 0.29), rem2.CoolingRadius/rem.CoolingRadius, 1e-12)
 }
 
 func TestRemnantTableOutsideGrid(t *testing.T) {
@@ -66,11 +71,11 @@ func TestRemnantTableOutsideGrid(t *testing.T) {
 	tab, err := ReadRemnantTable(strings.NewReader(sb.String()))
 	require.NoError(t, err)
 	for _, in := range [][2]float64{{0.05, 1}, {20, 1}, {1, 0.01}, {1, 2}, {1, 0}} {
-		_, err := tab.Remnant(1e51, in[0], in[1])
+		_, err := tab.Remnant(1e51, in[0], in[1]*SolarMetallicity)
 		assert.ErrorIs(t, err, ErrOutsideRemnantTable, "n=%v Z=%v", in[0], in[1])
 	}
 	for _, in := range [][2]float64{{math.NaN(), 1}, {0, 1}, {-1, 1}, {1, -0.1}, {1, math.Inf(1)}} {
-		_, err := tab.Remnant(1e51, in[0], in[1])
+		_, err := tab.Remnant(1e51, in[0], in[1]*SolarMetallicity)
 		assert.ErrorIs(t, err, ErrBadValue, "n=%v Z=%v", in[0], in[1])
 	}
 	_, err = tab.Remnant(math.NaN(), 1, 1)
@@ -78,16 +83,16 @@ func TestRemnantTableOutsideGrid(t *testing.T) {
 	clamp := tab.WithOutsideGrid(ClampToGrid)
 	lo, err := clamp.Remnant(1e51, 0.01, 0)
 	require.NoError(t, err)
-	edge, err := clamp.Remnant(1e51, 0.1, 0.1)
+	edge, err := clamp.Remnant(1e51, 0.1, 0.1*SolarMetallicity)
 	require.NoError(t, err)
 	assert.Equal(t, edge, lo)
-	hi, err := clamp.Remnant(1e51, 1e3, 5)
+	hi, err := clamp.Remnant(1e51, 1e3, 5*SolarMetallicity)
 	require.NoError(t, err)
-	edge, err = clamp.Remnant(1e51, 10, 1)
+	edge, err = clamp.Remnant(1e51, 10, SolarMetallicity)
 	require.NoError(t, err)
 	assert.Equal(t, edge, hi)
 	// The original still refuses.
-	_, err = tab.Remnant(1e51, 1e3, 1)
+	_, err = tab.Remnant(1e51, 1e3, SolarMetallicity)
 	assert.ErrorIs(t, err, ErrOutsideRemnantTable)
 }
 

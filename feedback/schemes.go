@@ -107,6 +107,11 @@ func (s Kinetic) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
 type TerminalMomentum struct {
 	// Fit is the remnant fit.
 	Fit RemnantFit
+	// Table, when set, replaces Fit: the remnant comes from a remnant table
+	// (RemnantTable.Remnant), e.g. one calibrated for the host's own
+	// cooling. A neighbor outside the table's grid (when it refuses them)
+	// returns the star's release undeposited with ErrOutsideRemnantTable.
+	Table *RemnantTable
 }
 
 // Name is "terminal-momentum".
@@ -114,7 +119,9 @@ func (TerminalMomentum) Name() string { return "terminal-momentum" }
 
 // Deposit implements Scheme.
 func (s TerminalMomentum) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
-	nb.remnantShares(s.Fit, math.Max(nb.Source.Events, 1))
+	if err := nb.remnantShares(s.Fit, s.Table, math.Max(nb.Source.Events, 1)); err != nil {
+		return 0, err
+	}
 	rad := nb.CoupleRadial(out)
 	if nb.capped {
 		for j := range out {
@@ -125,9 +132,10 @@ func (s TerminalMomentum) Deposit(nb *Neighborhood, out []Deposit) (float64, err
 }
 
 // remnantShares fills nb.Momentum and nb.HeatCap for the source's energy
-// coupled as events remnants of the fit (see TerminalMomentum), and marks
-// the star capped when they are radiative.
-func (nb *Neighborhood) remnantShares(fit RemnantFit, events float64) {
+// coupled as events remnants of the fit, or of the table when it is set
+// (see TerminalMomentum), and marks the star capped when they are
+// radiative.
+func (nb *Neighborhood) remnantShares(fit RemnantFit, table *RemnantTable, events float64) error {
 	src := nb.Source
 	u := nb.Units
 	for j := range nb.Momentum {
@@ -135,22 +143,36 @@ func (nb *Neighborhood) remnantShares(fit RemnantFit, events float64) {
 		nb.HeatCap[j] = math.Inf(1)
 	}
 	if !(src.Energy > 0) || !(events > 0) {
-		return
+		return nil
 	}
 	e1 := src.Energy / events * u.EnergyErg() // erg per event
 	var avg Remnant
+	var growth, wsum float64 // a table's growth exponents differ by neighbor: weighted mean
 	mc := 0.0
 	for j, w := range nb.Weight {
 		mc += nb.Mass[j]
 		if w == 0 {
 			continue
 		}
-		r := fit.Remnant(e1, hydrogenDensity(nb.Density[j], u), nb.Metallicity[j])
+		var r Remnant
+		if table != nil {
+			var err error
+			if r, err = table.Remnant(e1, hydrogenDensity(nb.Density[j], u), nb.Metallicity[j]); err != nil {
+				return err
+			}
+		} else {
+			r = fit.Remnant(e1, hydrogenDensity(nb.Density[j], u), nb.Metallicity[j])
+		}
 		avg.CoolingRadius += w * r.CoolingRadius
 		avg.SwitchMass += w * r.SwitchMass
 		avg.SwitchMomentum += w * r.SwitchMomentum
 		avg.TerminalMomentum += w * r.TerminalMomentum
 		avg.GrowthExponent = r.GrowthExponent
+		growth += w * r.GrowthExponent
+		wsum += w
+	}
+	if table != nil && wsum > 0 {
+		avg.GrowthExponent = growth / wsum
 	}
 	p1, keep, radiative := avg.MomentumAt(e1, src.Mass/events*u.MassG, mc/events*u.MassG)
 	p := events * p1 / u.MomentumGCmPS()
@@ -162,7 +184,7 @@ func (nb *Neighborhood) remnantShares(fit RemnantFit, events float64) {
 		sum += sj
 	}
 	if !(sum > 0) {
-		return
+		return nil
 	}
 	for j := range nb.Momentum {
 		nb.Momentum[j] *= p / sum
@@ -173,6 +195,7 @@ func (nb *Neighborhood) remnantShares(fit RemnantFit, events float64) {
 	if radiative {
 		nb.MarkCapped()
 	}
+	return nil
 }
 
 // maxKineticShare is the largest kinetic fraction of its energy share the

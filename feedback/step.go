@@ -152,11 +152,14 @@ func NewStepper(cfg StepConfig) (*Stepper, error) {
 		return nil, errorf(ErrInvalidArgument, "stepper: photoheating per photon %g erg must be finite and non-negative", cfg.PhotoheatingPerPhoton)
 	}
 	fit := KimOstriker2015
+	var table *RemnantTable
 	if tm, ok := cfg.Coupling.Scheme.(TerminalMomentum); ok {
-		fit = tm.Fit
+		fit, table = tm.Fit, tm.Table
 	}
 	if cfg.Winds == nil {
-		cfg.Winds = DefaultWinds(fit)
+		w := DefaultWinds(fit)
+		w.Table = table
+		cfg.Winds = w
 	}
 	if cfg.Radiation == nil {
 		cfg.Radiation = DefaultRadiationPressure()
