@@ -12,7 +12,7 @@ import (
 const (
 	// abiVersion is EJECTA_ABI_VERSION: bumped when a struct layout, a
 	// function signature or the meaning of an argument changes.
-	abiVersion int32 = 2
+	abiVersion int32 = 3
 	// nameCapacity is EJECTA_NAME_CAPACITY, the size of a name array.
 	nameCapacity = 48
 	maxWorkers   = 4096
@@ -34,6 +34,7 @@ type configABI struct {
 	Scheme             [nameCapacity]byte
 	RemnantFit         [nameCapacity]byte
 	Weighting          [nameCapacity]byte
+	RemnantTable       *byte
 }
 
 // cName reads a NUL-terminated name from a fixed array.
@@ -79,6 +80,15 @@ func parseConfig(c *configABI) (feedback.Config, error) {
 	}
 	opts := feedback.DefaultSchemeOptions()
 	opts.Fit, opts.Seed = fit, c.Seed
+	tablePath, err := cPath("config remnant_table", c.RemnantTable)
+	if err != nil {
+		return cfg, err
+	}
+	if tablePath != "" {
+		if opts.Table, err = feedback.ReadRemnantTableFile(tablePath); err != nil {
+			return cfg, fail(codeRemnantTable, "config remnant_table: %w", err)
+		}
+	}
 	if c.KineticFraction != 0 { // ejecta.h: 0 means the Sedov-Taylor value
 		opts.KineticFraction = c.KineticFraction
 	}

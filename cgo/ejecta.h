@@ -69,7 +69,7 @@ extern "C" {
 
 /* Version of this header's binary interface: bumped when a struct layout or
  * a function signature changes. */
-#define EJECTA_ABI_VERSION 2
+#define EJECTA_ABI_VERSION 3
 
 /* ---- error codes ---------------------------------------------------- */
 
@@ -128,6 +128,9 @@ extern "C" {
 /* The yields table named in ejecta_population_config could not be read or
  * is malformed; ejecta_last_error names the file and the line. */
 #define EJECTA_ERR_YIELDS_TABLE 15
+/* config.remnant_table could not be read or is malformed; the message
+ * names the file and the line. */
+#define EJECTA_ERR_REMNANT_TABLE 16
 /* An internal failure: a panic in the library or in a scheme, or a fault
  * reading or writing host memory through a bad column pointer, in the
  * calling thread or in any of ejecta's worker threads. It never ends the
@@ -265,6 +268,14 @@ typedef struct ejecta_config {
   char scheme[EJECTA_NAME_CAPACITY];
   char remnant_fit[EJECTA_NAME_CAPACITY];
   char weighting[EJECTA_NAME_CAPACITY];
+  /* Path of a remnant table (the CSV format of feedback.RemnantTable, e.g.
+   * written by "ejecta remnant -calibrate" for the host's own cooling),
+   * NUL-terminated, at most 4095 bytes; NULL or "" for none. When set, the
+   * terminal-momentum and stellar-winds schemes take the remnant from it
+   * instead of remnant_fit. Gas outside the table's grid returns the
+   * star's release undeposited (EJECTA_ERR_UNDEPOSITED). Read once, at
+   * ejecta_create; errors: EJECTA_ERR_REMNANT_TABLE. */
+  const char *remnant_table;
 } ejecta_config;
 
 /* One column of the host's gas: element i is at byte address

@@ -29,6 +29,7 @@ const (
 	codeAlreadyApplied  int32 = 13
 	codeNoPopulation    int32 = 14
 	codeYieldsTable     int32 = 15
+	codeRemnantTable    int32 = 16
 	codeInternal        int32 = 99
 )
 

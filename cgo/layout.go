@@ -42,6 +42,7 @@ func abiMismatches() []string {
 	eq("config.scheme", unsafe.Offsetof(cc.scheme), unsafe.Offsetof(gc.Scheme))
 	eq("config.remnant_fit", unsafe.Offsetof(cc.remnant_fit), unsafe.Offsetof(gc.RemnantFit))
 	eq("config.weighting", unsafe.Offsetof(cc.weighting), unsafe.Offsetof(gc.Weighting))
+	eq("config.remnant_table", unsafe.Offsetof(cc.remnant_table), unsafe.Offsetof(gc.RemnantTable))
 
 	var cf C.ejecta_field
 	var gf fieldABI
@@ -175,6 +176,7 @@ func abiMismatches() []string {
 		{"EJECTA_ERR_ALREADY_APPLIED", C.EJECTA_ERR_ALREADY_APPLIED, int64(codeAlreadyApplied)},
 		{"EJECTA_ERR_NO_POPULATION", C.EJECTA_ERR_NO_POPULATION, int64(codeNoPopulation)},
 		{"EJECTA_ERR_YIELDS_TABLE", C.EJECTA_ERR_YIELDS_TABLE, int64(codeYieldsTable)},
+		{"EJECTA_ERR_REMNANT_TABLE", C.EJECTA_ERR_REMNANT_TABLE, int64(codeRemnantTable)},
 		{"EJECTA_ERR_INTERNAL", C.EJECTA_ERR_INTERNAL, int64(codeInternal)},
 		{"EJECTA_ABI_VERSION", C.EJECTA_ABI_VERSION, int64(abiVersion)},
 		{"EJECTA_NAME_CAPACITY", C.EJECTA_NAME_CAPACITY, nameCapacity},

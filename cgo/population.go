@@ -78,9 +78,9 @@ func defaultPopulationConfig() populationConfigABI {
 	return c
 }
 
-// cPath reads a NUL-terminated path of at most pathCapacity-1 bytes; nil
-// reads as empty.
-func cPath(p *byte) (string, error) {
+// cPath reads a NUL-terminated path of at most pathCapacity-1 bytes for
+// the named field; nil reads as empty.
+func cPath(field string, p *byte) (string, error) {
 	if p == nil {
 		return "", nil
 	}
@@ -90,7 +90,7 @@ func cPath(p *byte) (string, error) {
 			return string(unsafe.Slice(p, i)), nil
 		}
 	}
-	return "", fail(codeInvalidArgument, "population yields_table: not NUL-terminated within %d bytes", pathCapacity)
+	return "", fail(codeInvalidArgument, "%s: not NUL-terminated within %d bytes", field, pathCapacity)
 }
 
 // switchOn reads a 0/1 switch.
@@ -132,7 +132,7 @@ func populationModel(c *populationConfigABI, species yields.SpeciesSet) (yields.
 	if !(ycfg.LightestStarMass < ycfg.HeaviestStarMass) {
 		return nil, fail(codeInvalidArgument, "population IMF mass range [%g, %g] Msun: want min < max", ycfg.LightestStarMass, ycfg.HeaviestStarMass)
 	}
-	path, err := cPath(c.YieldsTable)
+	path, err := cPath("population yields_table", c.YieldsTable)
 	if err != nil {
 		return nil, err
 	}

@@ -20,8 +20,8 @@ module ejecta_mod
        EJECTA_ERR_NEIGHBORS = 7, EJECTA_ERR_BUFFER_TOO_SMALL = 8, EJECTA_ERR_UNKNOWN_GAS = 9, &
        EJECTA_ERR_BUSY = 10, EJECTA_ERR_UNDEPOSITED = 11, EJECTA_ERR_IMBALANCE = 12, &
        EJECTA_ERR_ALREADY_APPLIED = 13, EJECTA_ERR_NO_POPULATION = 14, EJECTA_ERR_YIELDS_TABLE = 15, &
-       EJECTA_ERR_INTERNAL = 99
-  integer(c_int32_t), parameter, public :: EJECTA_ABI_VERSION = 2
+       EJECTA_ERR_REMNANT_TABLE = 16, EJECTA_ERR_INTERNAL = 99
+  integer(c_int32_t), parameter, public :: EJECTA_ABI_VERSION = 3
   ! Element types.
   integer(c_int32_t), parameter, public :: EJECTA_FLOAT64 = 1, EJECTA_FLOAT32 = 2, &
        EJECTA_INT64 = 3, EJECTA_INT32 = 4
@@ -53,6 +53,7 @@ module ejecta_mod
      character(kind=c_char) :: scheme(EJECTA_NAME_CAPACITY)
      character(kind=c_char) :: remnant_fit(EJECTA_NAME_CAPACITY)
      character(kind=c_char) :: weighting(EJECTA_NAME_CAPACITY)
+     type(c_ptr) :: remnant_table  ! NUL-terminated path or c_null_ptr
   end type ejecta_config
 
   type, bind(c), public :: ejecta_field
