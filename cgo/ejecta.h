@@ -560,7 +560,9 @@ int ejecta_config_defaults(ejecta_config *config);
  * (config or context NULL), EJECTA_ERR_INVALID_ARGUMENT (units not finite
  * and positive, negative neighbor count or radius, NaN or negative box,
  * worker_threads outside 0..4096, kinetic_fraction outside [0, 1],
- * isotropy_correction not 0 or 1), EJECTA_ERR_UNKNOWN_NAME. Thread safe. */
+ * isotropy_correction not 0 or 1), EJECTA_ERR_UNKNOWN_NAME,
+ * EJECTA_ERR_REMNANT_TABLE (remnant_table unreadable or malformed). Thread
+ * safe. */
 int ejecta_create(const ejecta_config *config, ejecta_context *context,
                   char *error_text, int64_t capacity);
 

@@ -62,6 +62,7 @@ static const struct {
     {EJECTA_ERR_ALREADY_APPLIED, "EJECTA_ERR_ALREADY_APPLIED"},
     {EJECTA_ERR_NO_POPULATION, "EJECTA_ERR_NO_POPULATION"},
     {EJECTA_ERR_YIELDS_TABLE, "EJECTA_ERR_YIELDS_TABLE"},
+    {EJECTA_ERR_REMNANT_TABLE, "EJECTA_ERR_REMNANT_TABLE"},
     {EJECTA_ERR_INTERNAL, "EJECTA_ERR_INTERNAL"},
 };
 #define N_CODES (int)(sizeof codes / sizeof codes[0])
@@ -217,7 +218,7 @@ int main(void) {
   describe(g, N_GAS, &d, species, fractions);
   ejecta_star *stars = supernovae(40);
 
-  /* OK, NULL_POINTER, UNKNOWN_NAME, INVALID_ARGUMENT at create. */
+  /* OK, NULL_POINTER, UNKNOWN_NAME, INVALID_ARGUMENT, REMNANT_TABLE at create. */
   ejecta_config cfg;
   EXPECT(ejecta_config_defaults(&cfg), EJECTA_OK, 0, "defaults");
   EXPECT(ejecta_config_defaults(NULL), EJECTA_ERR_NULL_POINTER, 0, "defaults(NULL)");
@@ -227,6 +228,9 @@ int main(void) {
   ejecta_config_defaults(&cfg);
   cfg.worker_threads = -1;
   EXPECT(ejecta_create(&cfg, &bad, msg, sizeof msg), EJECTA_ERR_INVALID_ARGUMENT, 0, "negative workers");
+  ejecta_config_defaults(&cfg);
+  cfg.remnant_table = "/nonexistent/remnant-table.csv";
+  EXPECT(ejecta_create(&cfg, &bad, msg, sizeof msg), EJECTA_ERR_REMNANT_TABLE, 0, "missing remnant table");
 
   /* INVALID_CONTEXT, NO_GAS, BAD_VALUE, INVALID_ARGUMENT on a context. */
   ejecta_context ctx = create(2, 8);
