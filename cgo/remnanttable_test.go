@@ -10,6 +10,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
@@ -21,7 +22,7 @@ func writeKOTable(t *testing.T, path string, densities []float64) {
 	var rows []feedback.RemnantTableRow
 	for _, z := range []float64{1e-3, 10} {
 		for _, n := range densities {
-			r := feedback.KimOstriker2015.Remnant(units.FOE, n, z*feedback.SolarMetallicity)
+			r := feedback.KimOstriker2015.Remnant(units.FOE, n, z*yields.SolarMetals)
 			rows = append(rows, feedback.RemnantTableRow{
 				Density: n, Metallicity: z, Energy: units.FOE, ShellTime: 1,
 				ShellRadius: r.CoolingRadius / units.Parsec, ShellMass: r.SwitchMass / units.SolarMass,

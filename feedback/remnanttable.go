@@ -10,6 +10,7 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
@@ -126,7 +127,7 @@ func (t *RemnantTable) locate(what string, v float64, g, lg []float64) (int, int
 }
 
 // Remnant evaluates the table for energy e in erg, hydrogen density n in
-// cm^-3 and metal mass fraction z (divided by SolarMetallicity to look up
+// cm^-3 and metal mass fraction z (divided by yields.SolarMetals to look up
 // the table's metallicity in solar units), as RemnantFit.Remnant does for
 // a published fit: the cooling radius, switch mass and switch momentum are
 // the table's shell-formation radius, mass and momentum; the terminal
@@ -141,7 +142,7 @@ func (t *RemnantTable) Remnant(e, n, z float64) (Remnant, error) {
 	if err != nil {
 		return Remnant{}, err
 	}
-	z0, z1, wz, err := t.locate("metallicity", z/SolarMetallicity, t.zs, t.logZs)
+	z0, z1, wz, err := t.locate("metallicity", z/yields.SolarMetals, t.zs, t.logZs)
 	if err != nil {
 		return Remnant{}, err
 	}

@@ -11,6 +11,7 @@ import (
 
 	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/neighbor"
+	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
@@ -22,7 +23,7 @@ func koTable(t *testing.T) *feedback.RemnantTable {
 	var rows []feedback.RemnantTableRow
 	for _, z := range []float64{0.1, 2} {
 		for _, n := range []float64{0.01, 0.1, 1, 10, 100} {
-			r := feedback.KimOstriker2015.Remnant(units.FOE, n, z*feedback.SolarMetallicity)
+			r := feedback.KimOstriker2015.Remnant(units.FOE, n, z*yields.SolarMetals)
 			rows = append(rows, feedback.RemnantTableRow{
 				Density: n, Metallicity: z, Energy: units.FOE, ShellTime: 1,
 				ShellRadius: r.CoolingRadius / units.Parsec, ShellMass: r.SwitchMass / units.SolarMass,
@@ -43,9 +44,9 @@ func koTable(t *testing.T) *feedback.RemnantTable {
 func TestTerminalMomentumTableLikeFit(t *testing.T) {
 	u := pcMsunKms()
 	tab := koTable(t)
-	msf := feedback.KimOstriker2015.Remnant(units.FOE, 1, 0.0134).SwitchMass / units.SolarMass
+	msf := feedback.KimOstriker2015.Remnant(units.FOE, 1, yields.SolarMetals).SwitchMass / units.SolarMass
 	for _, mc := range []float64{0.3 * msf, 3 * msf, 30 * msf} {
-		g, _ := latticeOfMass(mc/32, 1, u)
+		g, _ := latticeOfMass(9, mc/32, 1, u)
 		src := supernova(1, u)
 		run := func(s feedback.Scheme) (p, heat float64, capped int) {
 			out, _ := coupleOnce(t, g.Clone(), feedback.Config{Units: u, Scheme: s, Weighting: feedback.KernelVolume, Neighbors: 32}, []feedback.Source{src})
@@ -74,7 +75,7 @@ func TestTerminalMomentumTableLikeFit(t *testing.T) {
 func TestTerminalMomentumTableOutsideGrid(t *testing.T) {
 	u := pcMsunKms()
 	tab := koTable(t)
-	g, _ := latticeOfMass(100, 1e3, u) // n = 1000 cm^-3: above the grid
+	g, _ := latticeOfMass(9, 100, 1e3, u) // n = 1000 cm^-3: above the grid
 	src := supernova(1, u)
 	c, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: feedback.TerminalMomentum{Table: tab}, Neighbors: 32})
 	require.NoError(t, err)

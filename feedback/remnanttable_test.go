@@ -9,6 +9,7 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
@@ -39,7 +40,7 @@ func TestRemnantTableRoundTrip(t *testing.T) {
 	assert.Equal(t, 1e51, tab.Energy())
 	// Grid points come back exactly (to round-off of exp(log)).
 	for _, r := range rows {
-		rem, err := tab.Remnant(r.Energy, r.Density, r.Metallicity*SolarMetallicity)
+		rem, err := tab.Remnant(r.Energy, r.Density, r.Metallicity*yields.SolarMetals)
 		require.NoError(t, err)
 		assert.InEpsilon(t, r.ShellMomentum*units.MsunKms, rem.SwitchMomentum, 1e-13)
 		assert.InEpsilon(t, r.ShellMass*units.SolarMass, rem.SwitchMass, 1e-13)
@@ -53,12 +54,12 @@ func TestRemnantTableRoundTrip(t *testing.T) {
 	}
 	// Between grid points the power laws are reproduced.
 	n, z := 3.7, 0.42
-	rem, err := tab.Remnant(1e51, n, z*SolarMetallicity)
+	rem, err := tab.Remnant(1e51, n, z*yields.SolarMetals)
 	require.NoError(t, err)
 	assert.InEpsilon(t, 2e5*math.Pow(n, -0.13)*math.Pow(z, -0.2)*units.MsunKms, rem.SwitchMomentum, 1e-12)
 	assert.InEpsilon(t, 22*math.Pow(n, -0.42)*math.Pow(z, -0.1)*units.Parsec, rem.CoolingRadius, 1e-12)
 	// Other energies scale with the Kim & Ostriker 2015 exponents.
-	rem2, err := tab.Remnant(2e51, n, z*SolarMetallicity)
+	rem2, err := tab.Remnant(2e51, n, z*yields.SolarMetals)
 	require.NoError(t, err)
 	assert.InEpsilon(t, math.Pow(2, 0.93), rem2.SwitchMomentum/rem.SwitchMomentum, 1e-12)
 	assert.InEpsilon(t, math.Pow(2, 0.87), rem2.SwitchMass/rem.SwitchMass, 1e-12)
@@ -71,11 +72,11 @@ func TestRemnantTableOutsideGrid(t *testing.T) {
 	tab, err := ReadRemnantTable(strings.NewReader(sb.String()))
 	require.NoError(t, err)
 	for _, in := range [][2]float64{{0.05, 1}, {20, 1}, {1, 0.01}, {1, 2}, {1, 0}} {
-		_, err := tab.Remnant(1e51, in[0], in[1]*SolarMetallicity)
+		_, err := tab.Remnant(1e51, in[0], in[1]*yields.SolarMetals)
 		assert.ErrorIs(t, err, ErrOutsideRemnantTable, "n=%v Z=%v", in[0], in[1])
 	}
 	for _, in := range [][2]float64{{math.NaN(), 1}, {0, 1}, {-1, 1}, {1, -0.1}, {1, math.Inf(1)}} {
-		_, err := tab.Remnant(1e51, in[0], in[1]*SolarMetallicity)
+		_, err := tab.Remnant(1e51, in[0], in[1]*yields.SolarMetals)
 		assert.ErrorIs(t, err, ErrBadValue, "n=%v Z=%v", in[0], in[1])
 	}
 	_, err = tab.Remnant(math.NaN(), 1, 1)
@@ -83,16 +84,16 @@ func TestRemnantTableOutsideGrid(t *testing.T) {
 	clamp := tab.WithOutsideGrid(ClampToGrid)
 	lo, err := clamp.Remnant(1e51, 0.01, 0)
 	require.NoError(t, err)
-	edge, err := clamp.Remnant(1e51, 0.1, 0.1*SolarMetallicity)
+	edge, err := clamp.Remnant(1e51, 0.1, 0.1*yields.SolarMetals)
 	require.NoError(t, err)
 	assert.Equal(t, edge, lo)
-	hi, err := clamp.Remnant(1e51, 1e3, 5*SolarMetallicity)
+	hi, err := clamp.Remnant(1e51, 1e3, 5*yields.SolarMetals)
 	require.NoError(t, err)
-	edge, err = clamp.Remnant(1e51, 10, SolarMetallicity)
+	edge, err = clamp.Remnant(1e51, 10, yields.SolarMetals)
 	require.NoError(t, err)
 	assert.Equal(t, edge, hi)
 	// The original still refuses.
-	_, err = tab.Remnant(1e51, 1e3, SolarMetallicity)
+	_, err = tab.Remnant(1e51, 1e3, yields.SolarMetals)
 	assert.ErrorIs(t, err, ErrOutsideRemnantTable)
 }
 
