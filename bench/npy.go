@@ -223,14 +223,14 @@ func checkInside(gas, stars []float64, box neighbor.Box) error {
 	return nil
 }
 
-// readGasArray reads dir/name (see ReadArray) for ReadGasDir: want >= 0
+// readGasArray reads dir/name (see audit.ReadArray) for ReadGasDir: want >= 0
 // requires that many rows, and a missing optional file gives nil.
 func readGasArray(dir, name string, ncol, want int, required bool) ([]float64, int, error) {
 	path := filepath.Join(dir, name)
 	if _, err := os.Stat(path); errors.Is(err, fs.ErrNotExist) && !required {
 		return nil, 0, nil
 	}
-	data, rows, err := ReadArray(path, ncol)
+	data, rows, err := audit.ReadArray(path, ncol)
 	if err != nil {
 		return nil, 0, fmt.Errorf("read gas: %w", err)
 	}

@@ -42,6 +42,11 @@ type Options struct {
 	// a fraction of the momentum a star handed out, finite and
 	// non-negative.
 	IsotropyTolerance float64
+	// Species is the species set the species slots of the gas and the
+	// stars are laid out by (the user's choice of tracked elements); the
+	// zero value is yields.DefaultSpeciesSet. It names the species in the
+	// report.
+	Species yields.SpeciesSet
 }
 
 // Default tolerances: a float64 step conserves to about 1e-14 of the gas
@@ -136,10 +141,10 @@ type component struct {
 	momentum bool
 }
 
-func components(species []yields.Species) []component {
+func components(species []yields.Species, set yields.SpeciesSet) []component {
 	cs := []component{{name: "mass", get: func(q *feedback.Quantities) float64 { return q.Mass }, sink: true}}
 	for _, sp := range species {
-		cs = append(cs, component{name: "species " + sp.Symbol(), get: func(q *feedback.Quantities) float64 { return q.Species[sp] }, sink: true})
+		cs = append(cs, component{name: "species " + set.Symbol(sp), get: func(q *feedback.Quantities) float64 { return q.Species[sp] }, sink: true})
 	}
 	for k, axis := range []string{"x", "y", "z"} {
 		cs = append(cs, component{name: "momentum " + axis, get: func(q *feedback.Quantities) float64 { return q.Momentum[k] }, momentum: true})
@@ -188,8 +193,12 @@ func Step(before, after *GasArrays, stars []Star, opts Options) (*Report, error)
 	if before.Len() != after.Len() {
 		return nil, fmt.Errorf("audit: %d elements before, %d after: elements must not appear or vanish", before.Len(), after.Len())
 	}
+	if err := checkSlots("gas before", before.Species, opts.Species); err != nil {
+		return nil, fmt.Errorf("audit: %w", err)
+	}
 	if !sameSpecies(before.Species, after.Species) {
-		return nil, fmt.Errorf("audit: the gas tracks species %s before and %s after: they must be the same", symbols(before.Species), symbols(after.Species))
+		return nil, fmt.Errorf("audit: the gas tracks species %s before and %s after: they must be the same",
+			symbols(before.Species, opts.Species), symbols(after.Species, opts.Species))
 	}
 	idx := make(map[int64]int, after.Len())
 	for i, id := range after.ID {
@@ -357,7 +366,7 @@ func Step(before, after *GasArrays, stars []Star, opts Options) (*Report, error)
 		}
 		return abs, rel, math.Abs(abs) > opts.Tolerance*ref+1e-14*roundoff || math.IsNaN(abs)
 	}
-	for _, c := range components(before.Species) {
+	for _, c := range components(before.Species, opts.Species) {
 		ref := 0.0
 		if c.momentum {
 			ref = handed
@@ -546,10 +555,11 @@ func sameSpecies(a, b []yields.Species) bool {
 	return true
 }
 
-func symbols(sp []yields.Species) string {
+// symbols names species slots in the set.
+func symbols(sp []yields.Species, set yields.SpeciesSet) string {
 	s := make([]string, len(sp))
 	for i, x := range sp {
-		s[i] = x.Symbol()
+		s[i] = set.Symbol(x)
 	}
 	return "[" + strings.Join(s, " ") + "]"
 }

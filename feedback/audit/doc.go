@@ -8,5 +8,14 @@
 // failure.
 //
 // GasArrays holds gas in plain Go slices; View binds a feedback.Gas to it.
-// The ejecta command's audit reads a dump of .npy arrays into it.
+//
+// # Dumps
+//
+// A dump is the gas before and after a step and the stars' releases as
+// NumPy .npy arrays named by a JSON manifest (Manifest; its species keys
+// follow the user's species set, yields.SpeciesSet). ReadDump reads one,
+// as the ejecta command's audit does; WriteDump writes one, and WriteGas,
+// WriteStars and WriteManifest write it piece by piece, as the C ABI's
+// dump calls do for hosts in C, C++ and Fortran. ReadArray, ReadIDs,
+// WriteArray and WriteIDs are the .npy reader and writer both use.
 package audit

@@ -18,70 +18,13 @@ import (
 	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
 )
 
-// writeDump writes a step as .npy arrays plus a manifest and returns the
-// manifest's path.
+// writeDump writes a step with audit.WriteDump (the writer the C ABI's
+// dump calls use) and returns the manifest's path.
 func writeDump(t *testing.T, before, after *audit.GasArrays, stars []audit.Star) string {
 	t.Helper()
 	dir := t.TempDir()
-	write := func(name string, v any) string {
-		f, err := os.Create(filepath.Join(dir, name))
-		require.NoError(t, err)
-		require.NoError(t, npyio.Write(f, v))
-		require.NoError(t, f.Close())
-		return name
-	}
-	gas := func(prefix string, g *audit.GasArrays) auditGasFiles {
-		n := g.Len()
-		pos, vel := make([]float64, 0, 3*n), make([]float64, 0, 3*n)
-		for i := 0; i < n; i++ {
-			pos = append(pos, g.Pos[0][i], g.Pos[1][i], g.Pos[2][i])
-			vel = append(vel, g.Vel[0][i], g.Vel[1][i], g.Vel[2][i])
-		}
-		files := auditGasFiles{
-			Position: write(prefix+"_pos.npy", reshape(pos, n)),
-			Velocity: write(prefix+"_vel.npy", reshape(vel, n)),
-			Mass:     write(prefix+"_mass.npy", g.Mass), InternalEnergy: write(prefix+"_u.npy", g.Energy),
-			ID: write(prefix+"_id.npy", g.ID), MassFractions: map[string]string{},
-		}
-		for c, sp := range g.Species {
-			files.MassFractions[sp.Symbol()] = write(prefix+"_x"+sp.Symbol()+".npy", g.Fractions[c])
-		}
-		return files
-	}
-	s := len(stars)
-	var id []int64
-	var pos, vel, radius, mass, energy, radiated []float64
-	species := map[string][]float64{}
-	for _, st := range stars {
-		id = append(id, st.ID)
-		pos = append(pos, st.Pos[:]...)
-		vel = append(vel, st.Vel[:]...)
-		radius, mass, energy, radiated = append(radius, st.Radius), append(mass, st.Mass), append(energy, st.Energy), append(radiated, st.Radiated)
-		for _, sp := range before.Species {
-			species[sp.Symbol()] = append(species[sp.Symbol()], st.Species[sp])
-		}
-	}
-	sf := auditStarsFiles{ID: write("s_id.npy", id), Position: write("s_pos.npy", reshape(pos, s)), Velocity: write("s_vel.npy", reshape(vel, s)),
-		Radius: write("s_r.npy", radius), EjectaMass: write("s_m.npy", mass), Energy: write("s_e.npy", energy),
-		Radiated: write("s_rad.npy", radiated), EjectaSpecies: map[string]string{}}
-	for sym, v := range species {
-		sf.EjectaSpecies[sym] = write("s_x"+sym+".npy", v)
-	}
-	m := auditManifest{GasBefore: gas("b", before), GasAfter: gas("a", after), Stars: sf}
-	raw, err := json.MarshalIndent(m, "", "  ")
-	require.NoError(t, err)
-	path := filepath.Join(dir, "manifest.json")
-	require.NoError(t, os.WriteFile(path, raw, 0o644))
-	return path
-}
-
-// reshape wraps a flat row-major (n, 3) array for npyio.
-func reshape(flat []float64, n int) any {
-	out := make([][3]float64, n)
-	for i := range out {
-		copy(out[i][:], flat[3*i:3*i+3])
-	}
-	return out
+	require.NoError(t, audit.WriteDump(dir, &audit.Dump{Before: before, After: after, Stars: stars}))
+	return filepath.Join(dir, audit.ManifestFile)
 }
 
 func TestAuditCommand(t *testing.T) {
@@ -182,23 +125,23 @@ func TestAuditCommandMessages(t *testing.T) {
 		want  []string
 	}{
 		{"truncated array", func(t *testing.T, dir string, m map[string]any) {
-			p := filepath.Join(dir, "a_mass.npy")
+			p := filepath.Join(dir, "gas_after", "mass.npy")
 			info, err := os.Stat(p)
 			require.NoError(t, err)
 			require.NoError(t, os.Truncate(p, info.Size()-20))
 			wantBytes = fmt.Sprintf("%d bytes, but", info.Size()-20)
 			wantNeed = fmt.Sprintf("need %d", info.Size())
-		}, []string{"gas_after.mass", "a_mass.npy", "truncated"}},
+		}, []string{"gas_after.mass", "gas_after/mass.npy", "truncated"}},
 		{"truncated header", func(t *testing.T, dir string, m map[string]any) {
-			require.NoError(t, os.Truncate(filepath.Join(dir, "s_e.npy"), 30))
-		}, []string{"stars.energy", "s_e.npy", "truncated", "header"}},
+			require.NoError(t, os.Truncate(filepath.Join(dir, "stars", "energy.npy"), 30))
+		}, []string{"stars.energy", "stars/energy.npy", "truncated", "header"}},
 		{"length mismatch", func(t *testing.T, dir string, m map[string]any) {
 			f, err := os.Create(filepath.Join(dir, "short_u.npy"))
 			require.NoError(t, err)
 			require.NoError(t, npyio.Write(f, after.Energy[1:]))
 			require.NoError(t, f.Close())
 			m["gas_after"].(map[string]any)["internal_energy"] = "short_u.npy"
-		}, []string{"gas_after.internal_energy (short_u.npy)", fmt.Sprint(after.Len() - 1), "gas_after.position (a_pos.npy)", fmt.Sprint(after.Len())}},
+		}, []string{"gas_after.internal_energy (short_u.npy)", fmt.Sprint(after.Len() - 1), "gas_after.position (gas_after/position.npy)", fmt.Sprint(after.Len())}},
 		{"a number where a file name goes", func(t *testing.T, dir string, m map[string]any) {
 			m["gas_before"].(map[string]any)["mass"] = 3
 		}, []string{"gas_before.mass", "a JSON number", "a string (a file name)", "line "}},
@@ -226,7 +169,7 @@ func TestAuditCommandMessages(t *testing.T) {
 			for _, w := range append(c.want, wantBytes, wantNeed) {
 				assert.Contains(t, errOut, w)
 			}
-			for _, leak := range []string{"Go struct", "Go value", "auditManifest", "auditGasFiles", "EOF"} {
+			for _, leak := range []string{"Go struct", "Go value", "Manifest", "GasFiles", "EOF"} {
 				assert.NotContains(t, errOut, leak)
 			}
 		})

@@ -30,6 +30,7 @@
 //
 //	{
 //	  "box": [L, L, L],
+//	  "species_set": ["H", "He", "Fe"],
 //	  "gas_before": {"position": "...", "velocity": "...", "mass": "...",
 //	                 "internal_energy": "...", "id": "...",
 //	                 "mass_fractions": {"Z": "...", "Fe": "..."}},
@@ -39,8 +40,17 @@
 //	            "radiated": "...", "ejecta_species": {"Z": "..."}}
 //	}
 //
-// Vectors are (n, 3) arrays, the rest (n,); "box" and "radiated" are
-// optional. Run "ejecta help" for the list of commands and "ejecta CMD -h"
+// The species keys are "Z" (all metals) and the chemical symbols of the
+// elements of "species_set", the user's choice of tracked elements (any
+// elements; without it the default set H, He, C, N, O, Ne, Mg, Si, S, Ca,
+// Fe). A C, C++ or Fortran host writes the whole dump, arrays and manifest,
+// from the same column descriptors it binds gas with, through the
+// ejecta_dump_* calls of the C library (cgo/ejecta.h, cgo/README.md); Go
+// code writes one with audit.WriteDump. The full format is in
+// "go doc ./feedback/audit Manifest".
+//
+// Vectors are (n, 3) arrays, the rest (n,); "box", "species_set" and
+// "radiated" are optional. Run "ejecta help" for the list of commands and "ejecta CMD -h"
 // for a command's description and flags.
 package main
 
