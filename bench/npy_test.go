@@ -105,10 +105,10 @@ func TestReadGasDirDefaults(t *testing.T) {
 	c := build(t, "uniform-lattice", CaseSpec{DensityCm3: 1, GasMassMsun: 10, Elements: 512, Seed: 1})
 	c.Gas.Density[77] *= 3
 	dir := t.TempDir()
-	writeGasDir(t, dir, c, Units(), false)
+	writeGasDir(t, dir, c, units.ParsecSolarMassKms(), false)
 	require.NoError(t, os.Remove(filepath.Join(dir, GasIDsFile)))
 	require.NoError(t, os.Remove(filepath.Join(dir, GasMetallicityFile)))
-	got, err := ReadGasDir(dir, Units(), c.Box)
+	got, err := ReadGasDir(dir, units.ParsecSolarMassKms(), c.Box)
 	require.NoError(t, err)
 	require.Len(t, got.Stars, 1)
 	for a := 0; a < 3; a++ {
@@ -152,9 +152,9 @@ func TestReadGasDirRejectsBadInput(t *testing.T) {
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
 			dir := t.TempDir()
-			writeGasDir(t, dir, c, Units(), false)
+			writeGasDir(t, dir, c, units.ParsecSolarMassKms(), false)
 			tc.spoil(dir)
-			got, err := ReadGasDir(dir, Units(), neighbor.Box{})
+			got, err := ReadGasDir(dir, units.ParsecSolarMassKms(), neighbor.Box{})
 			require.Error(t, err)
 			assert.Contains(t, err.Error(), tc.want)
 			assert.Nil(t, got)
@@ -201,8 +201,8 @@ func TestReadGasDirChecksPositions(t *testing.T) {
 			}
 			cc.Stars = []feedback.Star{{ID: 1, Pos: tc.star}}
 			dir := t.TempDir()
-			writeGasDir(t, dir, &cc, Units(), true)
-			got, err := ReadGasDir(dir, Units(), tc.box)
+			writeGasDir(t, dir, &cc, units.ParsecSolarMassKms(), true)
+			got, err := ReadGasDir(dir, units.ParsecSolarMassKms(), tc.box)
 			if tc.want == nil {
 				require.NoError(t, err)
 				assert.Equal(t, tc.star, got.Stars[0].Pos)

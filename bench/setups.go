@@ -12,12 +12,6 @@ import (
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
-// Units are the code units of the built-in set-ups: parsec, solar mass and
-// km/s (so code time is about 0.98 Myr).
-func Units() units.CodeUnits {
-	return units.CodeUnits{LengthCm: units.Parsec, MassG: units.SolarMass, VelocityCmPS: units.Kilometre}
-}
-
 // InterfaceContrast is the density ratio between the dense slab and the
 // ambient gas of the two-phase interface set-up.
 const InterfaceContrast = 100
@@ -153,13 +147,13 @@ const solarMetallicity = yields.SolarMetals
 // gasTemperatureEnergy is the specific internal energy (km^2/s^2) of gas at
 // temperature t with mean molecular weight mu: (3/2) k T / (mu m_p).
 func gasTemperatureEnergy(t, mu float64) float64 {
-	return 1.5 * units.Boltzmann * t / (mu * units.ProtonMass) / Units().SpecificEnergy()
+	return 1.5 * units.Boltzmann * t / (mu * units.ProtonMass) / units.ParsecSolarMassKms().SpecificEnergy()
 }
 
 // codeDensity converts a hydrogen number density (cm^-3) to a code mass
 // density, with feedback.MassPerHydrogen proton masses per hydrogen atom.
 func codeDensity(nH float64) float64 {
-	return nH * feedback.MassPerHydrogen * units.ProtonMass / Units().DensityGCm3()
+	return nH * feedback.MassPerHydrogen * units.ProtonMass / units.ParsecSolarMassKms().DensityGCm3()
 }
 
 // newArrays allocates n elements of gas tracking the total metals.
@@ -235,7 +229,7 @@ func lattice(spec CaseSpec, name string, jitter float64) (*Case, error) {
 	c := L / 2
 	return &Case{Setup: name, DensityCm3: spec.DensityCm3, GasMassMsun: spec.GasMassMsun, Gas: g,
 		Box: neighbor.Box{Size: [3]float64{L, L, L}}, Stars: []feedback.Star{star(1, [3]float64{c, c, c})},
-		Units: Units()}, nil
+		Units: units.ParsecSolarMassKms()}, nil
 }
 
 // buildInterface makes two half-lattices of equal-mass elements: a dense
@@ -268,7 +262,7 @@ func buildInterface(spec CaseSpec) (*Case, error) {
 		}
 	}
 	return &Case{Setup: "interface", DensityCm3: spec.DensityCm3, GasMassMsun: spec.GasMassMsun, Gas: g,
-		Stars: []feedback.Star{star(1, [3]float64{0, 0, 0.25 * dAmb})}, Units: Units()}, nil
+		Stars: []feedback.Star{star(1, [3]float64{0, 0, 0.25 * dAmb})}, Units: units.ParsecSolarMassKms()}, nil
 }
 
 // Demo scenario numbers: invented, not taken from any observation.
@@ -331,7 +325,7 @@ func buildClumpyCloud(spec CaseSpec) (*Case, error) {
 		}
 	}
 	return &Case{Setup: "clumpy-cloud", DensityCm3: spec.DensityCm3, GasMassMsun: spec.GasMassMsun, Gas: g,
-		Stars: stars, Units: Units()}, nil
+		Stars: stars, Units: units.ParsecSolarMassKms()}, nil
 }
 
 // estimateDensities sets each element's density to the mass of its k

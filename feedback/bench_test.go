@@ -24,7 +24,7 @@ type benchWorld struct {
 
 func newBenchWorld(b *testing.B, nGas, nStars, k int) *benchWorld {
 	b.Helper()
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := uniformGas(42, nGas, 100, 1, u)
 	pos := g.Packed()
 	tree, err := neighbor.NewTree(pos, g.ID, neighbor.Box{})
@@ -89,7 +89,7 @@ func BenchmarkCouple(b *testing.B) {
 	const k = 64
 	w := newBenchWorld(b, 1<<20, 10000, k)
 	view := w.gas.View()
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	// Each channel with the release it is meant for.
 	wind := func(src feedback.Source) feedback.Source {
 		return feedback.Source{Star: src.Star, Channel: yields.MassiveWinds, Mass: 1e-3, Energy: 0.5 * 1e-3 * 2000 * 2000}
@@ -158,7 +158,7 @@ func BenchmarkCoupleWorkers(b *testing.B) {
 	view := w.gas.View()
 	for _, workers := range []int{1, 2} {
 		b.Run(fmt.Sprintf("terminal-momentum/workers=%d", workers), func(b *testing.B) {
-			c, err := feedback.NewCoupler(feedback.Config{Units: pcMsunKms(), Neighbors: 64, Workers: workers})
+			c, err := feedback.NewCoupler(feedback.Config{Units: units.ParsecSolarMassKms(), Neighbors: 64, Workers: workers})
 			if err != nil {
 				b.Fatal(err)
 			}

@@ -39,7 +39,7 @@ func TestInfraredBoostIsBounded(t *testing.T) {
 	// momentum is at most a few L/c however large tau_IR is (Krumholz &
 	// Thompson 2012, ApJ 760, 155; Skinner & Ostriker 2015, ApJ 809, 187;
 	// from memory), so the default bound holds it at 3 L/c.
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	e := 1e6 * units.SolarLuminosity * units.Megayear / u.EnergyErg()
 	lc := e / (units.SpeedOfLight / u.VelocityCmPS)
 	cases := []struct {
@@ -83,7 +83,7 @@ func TestPhotoheatingIsPaidFromTheLight(t *testing.T) {
 	// the light the stars emit: radiation pressure and the two heating
 	// channels together take in the population's radiant energy, not more
 	// (energy conservation). A 1e4 Msun population from 0.5 to 1.5 Myr.
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
 	g := uniformGas(3, 400, 100, 1, u)
@@ -153,7 +153,7 @@ func stromgrenMass(q, n float64) float64 {
 // whatever the gas reached cannot absorb (by default the 32 neighbors,
 // 320 Msun) is booked as escaped photons, whose heat is radiated.
 func TestPhotonsReachBeyondTheNeighbors(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	const q = 1e49 // photons per second: 4.4e4 Msun at n = 1
 	g, _ := latticeOfMass(23, 10, 1, u)
 	dt := units.Megayear / u.TimeS()
@@ -193,7 +193,7 @@ func TestPhotonsReachBeyondTheNeighbors(t *testing.T) {
 // neighbor search too: a young 1e4 Msun population in gas at n = 100
 // ionizes its Strömgren mass, far more than its 32 neighbors hold.
 func TestStepperPhotoionizesTheStromgrenMass(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
 	g, _ := latticeOfMass(25, 10, 100, u)
@@ -226,7 +226,7 @@ func TestStepperPhotoionizesTheStromgrenMass(t *testing.T) {
 // Grown photoionization searches give bitwise the same gas for any worker
 // count.
 func TestPhotonReachIsDeterministic(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	base, dx := latticeOfMass(17, 10, 1, u)
 	dt := units.Megayear / u.TimeS()
 	var srcs []feedback.Source

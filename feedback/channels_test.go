@@ -49,7 +49,7 @@ func TestStromgrenBudget(t *testing.T) {
 	// Q / (alpha_B n_e n) (Strömgren 1939, ApJ 89, 526; alpha_B = 2.6e-13
 	// cm^3/s, Osterbrock & Ferland 2006, from memory), with n_e counting
 	// the electrons of singly ionized helium (electronsPerHydrogen).
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	const nH, dx = 10.0, 1.0
 	g := latticeGas(21, dx, nH, u)
 	q := 1e48 // photons per second: R_S about 6.8 pc at n = 10
@@ -91,7 +91,7 @@ func TestStromgrenBudget(t *testing.T) {
 func TestRadiationPressureMomentum(t *testing.T) {
 	// Light absorbed once carries momentum L/c (common practice): 1e6 Lsun
 	// (IAU 2015 B3 nominal Lsun) for 1 Myr gives L t / c.
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	l := 1e6 * units.SolarLuminosity
 	e := l * units.Megayear / u.EnergyErg()
 	want := l * units.Megayear / units.SpeedOfLight / u.MomentumGCmPS()
@@ -110,7 +110,7 @@ func TestRadiationPressureMomentum(t *testing.T) {
 }
 
 func TestChannelSchemesPassTheHarness(t *testing.T) {
-	u := feedbacktest.Units()
+	u := units.ParsecSolarMassKms()
 	wind := func(s feedback.Star) feedback.Source {
 		// 1e-3 Msun at 2000 km/s.
 		src := feedback.Source{Star: s, Channel: yields.MassiveWinds, Mass: 1e-3, Energy: 0.5 * 1e-3 * 2000 * 2000}
@@ -155,7 +155,7 @@ func TestStepperSingleStarHundredMyr(t *testing.T) {
 	// One star of 1e4 Msun stepped from 0 to 100 Myr: the released mass and
 	// metals equal the yields integral over that time to round-off, and the
 	// number of supernovae matches its expectation over many seeds.
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
 	const formed = 1e4
@@ -204,7 +204,7 @@ func TestStepperSingleStarHundredMyr(t *testing.T) {
 }
 
 func TestStepperSuggestsSmallerStep(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
 	g := uniformGas(3, 200, 100, 1, u)
@@ -223,7 +223,7 @@ func TestStepperSuggestsSmallerStep(t *testing.T) {
 }
 
 func TestStepperDelayedCoolingFlags(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
 	g := uniformGas(4, 300, 100, 1, u)
@@ -257,7 +257,7 @@ func TestStepperTypeIaIronAndWindEnergy(t *testing.T) {
 	// ARA&A 52, 107; from memory) for a t^-1 delay-time distribution. The massive-star winds of a young step carry the kinetic
 	// energy 1/2 M v^2 of the documented 2000 km/s wind (Lamers & Cassinelli
 	// 1999 terminal speeds, from memory).
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
 	g := uniformGas(21, 400, 1e4, 1, u)
@@ -291,7 +291,7 @@ func TestStepperTypeIaIronAndWindEnergy(t *testing.T) {
 }
 
 func TestStepperBitwiseForAnyWorkerCount(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
 	base := uniformGas(31, 1500, 100, 3, u)
@@ -335,7 +335,7 @@ func TestStepperBitwiseForAnyWorkerCount(t *testing.T) {
 }
 
 func BenchmarkStep(b *testing.B) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	if err != nil {
 		b.Fatal(err)
@@ -376,7 +376,7 @@ func TestStepperKeepsReturnedReleasesInTheStarsFrame(t *testing.T) {
 	// A moving star with no gas in reach: its mass stays on it (mass loss
 	// exactly 0) and the supernova energy it carries to the next step is the
 	// explosion energy alone, not the ejecta's kinetic energy in the lab.
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
 	g := uniformGas(41, 50, 10, 1, u)
@@ -399,7 +399,7 @@ func TestStepperKeepsReturnedReleasesInTheStarsFrame(t *testing.T) {
 }
 
 func TestStepperRejectsUnusableStars(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
 	g := uniformGas(42, 50, 10, 1, u)

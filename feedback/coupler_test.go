@@ -75,16 +75,12 @@ func coupleOnce(t *testing.T, g *audit.GasArrays, cfg feedback.Config, srcs []fe
 	return out, rep
 }
 
-func pcMsunKms() units.CodeUnits {
-	return units.CodeUnits{LengthCm: units.Parsec, MassG: units.SolarMass, VelocityCmPS: units.Kilometre}
-}
-
 func TestTerminalMomentumUnresolved(t *testing.T) {
 	// Gas elements of 1e4 Msun at n = 1: 64 neighbors hold 6.4e5 Msun, far
 	// above the shell-formation mass (1.54e3 Msun, Kim & Ostriker 2015, from
 	// memory), so every neighbor is capped and the radial momentum is the
 	// terminal momentum, 2.17e5 Msun km/s at n = 1 (Kim & Ostriker 2015).
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	for _, fit := range []feedback.RemnantFit{feedback.KimOstriker2015, feedback.CioffiMcKeeBertschinger1988} {
 		g := uniformGas(1, 400, 1e4, 1, u)
 		out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.TerminalMomentum{Fit: fit}, Neighbors: 64},
@@ -102,7 +98,7 @@ func TestTerminalMomentumResolved(t *testing.T) {
 	// energy-conserving sweep-up, between the free-ejecta momentum
 	// sqrt(2 M_ej E) (about 3.2e4 Msun km/s for 10 Msun, REFERENCES.md) and
 	// sqrt(2 (M_ej + M_swept) E), the bound with all energy kinetic.
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := uniformGas(2, 300, 0.5, 1, u)
 	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Neighbors: 64}, []feedback.Source{supernova(1, u)})
 	e := units.FOE / u.EnergyErg()
@@ -127,7 +123,7 @@ func TestSedovSplitOfKineticScheme(t *testing.T) {
 	// default fraction leaves 28% of the energy kinetic and 72% thermal,
 	// the Sedov–Taylor partition for gamma = 5/3 (Chevalier 1974, from
 	// memory).
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := uniformGas(3, 400, 100, 1, u)
 	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.DefaultKinetic(), Neighbors: 64}, []feedback.Source{supernova(1, u)})
 	heat, total := 0.0, 0.0
@@ -142,7 +138,7 @@ func TestSedovSplitOfKineticScheme(t *testing.T) {
 func TestSameAnswerInTwoUnitSystems(t *testing.T) {
 	// One physical set-up in parsec/Msun/km/s and in kpc/1e10 Msun/km/s
 	// must give the same radial momentum and radiated energy in cgs.
-	systems := []units.CodeUnits{pcMsunKms(), units.Astro()}
+	systems := []units.CodeUnits{units.ParsecSolarMassKms(), units.Astro()}
 	var p, rad []float64
 	for _, u := range systems {
 		g := uniformGas(4, 300, 300, 3, u)
@@ -155,7 +151,7 @@ func TestSameAnswerInTwoUnitSystems(t *testing.T) {
 }
 
 func TestBitwiseIdenticalForWorkersAndStarOrder(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	base := uniformGas(5, 2000, 50, 2, u)
 	rng := rand.New(rand.NewPCG(5, 5))
 	var srcs []feedback.Source
@@ -207,7 +203,7 @@ type hostParticle struct {
 }
 
 func TestArrayOfStructsFloat32Host(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	soa := uniformGas(6, 200, 100, 1, u)
 	parts := make([]hostParticle, soa.Len())
 	for i := range parts {
@@ -259,7 +255,7 @@ func TestArrayOfStructsFloat32Host(t *testing.T) {
 }
 
 func TestColumnsThatOverlapAreRefused(t *testing.T) {
-	g := uniformGas(7, 10, 1, 1, pcMsunKms())
+	g := uniformGas(7, 10, 1, 1, units.ParsecSolarMassKms())
 	view := g.View()
 	view.InternalEnergy = view.Mass // the same memory written twice
 	require.ErrorContains(t, view.Validate(), "overlap")
@@ -272,7 +268,7 @@ func TestColumnsThatOverlapAreRefused(t *testing.T) {
 }
 
 func TestBadInputLosesNothing(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	cases := []struct {
 		name   string
 		mutate func(g *audit.GasArrays, s *feedback.Source)
@@ -325,7 +321,7 @@ func TestBadInputLosesNothing(t *testing.T) {
 }
 
 func TestNoNeighborsReturnsRelease(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := uniformGas(9, 10, 10, 1, u)
 	// A host list whose row for the star is empty.
 	f, err := neighbor.NewHostLists(g.Packed(), g.ID, neighbor.Box{}, []int{0, 0}, []int{})
@@ -342,7 +338,7 @@ func TestNoNeighborsReturnsRelease(t *testing.T) {
 }
 
 func TestApplyRejectsBadRecordsWithoutWriting(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := uniformGas(10, 50, 10, 1, u)
 	out, _ := coupleOnce(t, g.Clone(), feedback.Config{Units: u, Neighbors: 16}, []feedback.Source{supernova(1, u)})
 	before := g.Clone()
@@ -364,25 +360,25 @@ func TestApplyRejectsBadRecordsWithoutWriting(t *testing.T) {
 func TestConfigErrors(t *testing.T) {
 	for _, cfg := range []feedback.Config{
 		{},
-		{Units: pcMsunKms(), Neighbors: -1},
-		{Units: pcMsunKms(), Radius: math.NaN()},
-		{Units: pcMsunKms(), Workers: -2},
-		{Units: pcMsunKms(), Weighting: 9},
-		{Units: pcMsunKms(), Box: neighbor.Box{Size: [3]float64{-1, 0, 0}}},
+		{Units: units.ParsecSolarMassKms(), Neighbors: -1},
+		{Units: units.ParsecSolarMassKms(), Radius: math.NaN()},
+		{Units: units.ParsecSolarMassKms(), Workers: -2},
+		{Units: units.ParsecSolarMassKms(), Weighting: 9},
+		{Units: units.ParsecSolarMassKms(), Box: neighbor.Box{Size: [3]float64{-1, 0, 0}}},
 	} {
 		_, err := feedback.NewCoupler(cfg)
 		assert.Error(t, err, "%+v", cfg)
 	}
-	c, err := feedback.NewCoupler(feedback.Config{Units: pcMsunKms()})
+	c, err := feedback.NewCoupler(feedback.Config{Units: units.ParsecSolarMassKms()})
 	require.NoError(t, err)
 	assert.Error(t, c.Couple(nil, nil, nil, &feedback.Output{}))
-	g := uniformGas(1, 5, 1, 1, pcMsunKms())
+	g := uniformGas(1, 5, 1, 1, units.ParsecSolarMassKms())
 	assert.Error(t, c.Couple(g.View(), nil, nil, &feedback.Output{}))
 	assert.Error(t, c.Couple(g.View(), nil, nil, nil))
 }
 
 func TestIDIndexResolvesRecordsFromAnotherRank(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := uniformGas(11, 60, 10, 1, u)
 	out, _ := coupleOnce(t, g.Clone(), feedback.Config{Units: u, Neighbors: 16}, []feedback.Source{supernova(1, u)})
 	// The receiving rank holds the same elements in reverse order.
@@ -425,7 +421,7 @@ func TestIDIndexResolvesRecordsFromAnotherRank(t *testing.T) {
 }
 
 func TestCoupleAllocatesNothingInSteadyState(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := uniformGas(1, 2000, 100, 1, u)
 	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
 	require.NoError(t, err)
@@ -447,7 +443,7 @@ func TestCoupleAllocatesNothingInSteadyState(t *testing.T) {
 }
 
 func TestApplierRejectsDuplicatesAndKeepsRecordOrder(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := uniformGas(14, 300, 10, 1, u)
 	out, _ := coupleOnce(t, g.Clone(), feedback.Config{Units: u, Neighbors: 16}, []feedback.Source{supernova(1, u), supernova(2, u)})
 	recs := append([]feedback.Record(nil), out.Records...)
@@ -499,7 +495,7 @@ func (s overflowing) Deposit(nb *feedback.Neighborhood, out []feedback.Deposit) 
 }
 
 func TestNonFiniteDepositsAreReturnedNotWritten(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := uniformGas(15, 100, 10, 1, u)
 	c, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: overflowing{}, Neighbors: 16})
 	require.NoError(t, err)

@@ -17,7 +17,7 @@ import (
 // light, zero photoheating heats nothing, and settings for which zero has
 // no meaning are refused; the defaults come from the Default functions.
 func TestZeroSettingsMeanZero(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	radial := func(t *testing.T, s feedback.Scheme) float64 {
 		g := uniformGas(14, 200, 100, 1, u)
 		out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: s, Neighbors: 32}, []feedback.Source{supernova(1, u)})

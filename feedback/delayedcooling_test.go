@@ -24,7 +24,7 @@ func TestDelayedCoolingFlagsTheInnerDeposit(t *testing.T) {
 	// inner scheme's deposit unchanged, plus the hold of the blast-wave
 	// estimate t = 10^6.85 yr E51^0.32 n^0.34 (P/1e4 k)^-0.70 (McKee &
 	// Ostriker 1977 as used by Stinson et al. 2006, MNRAS 373, 1074).
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	for _, inner := range []feedback.Scheme{nil, feedback.Kinetic{}} {
 		plain := inner
 		if plain == nil {

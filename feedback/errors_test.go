@@ -31,7 +31,7 @@ func kindsOf(err error) []error {
 // Every failure matches the sentinel of its kind with errors.Is, and no
 // other (an undeposited release also matches its reason's kind).
 func TestErrorKinds(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	coupleOne := func(t *testing.T, mutate func(g *audit.GasArrays, src *feedback.Source), cfg feedback.Config, finder func(g *audit.GasArrays) neighbor.Finder) error {
 		g := uniformGas(21, 40, 10, 1, u)
 		src := supernova(5, u)

@@ -18,7 +18,7 @@ import (
 // 1 cm^-3, with random velocities of rms vel km/s per axis, in pc, Msun,
 // km/s.
 func windGas(seed uint64, n int, vel float64) *audit.GasArrays {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := uniformGas(seed, n, 100, 1, u)
 	rng := rand.New(rand.NewPCG(seed, 77))
 	for i := range g.Mass {
@@ -33,7 +33,7 @@ func windGas(seed uint64, n int, vel float64) *audit.GasArrays {
 // windStar releases one supernova and newly formed stars from a star
 // moving at v (km/s) at pos.
 func windStar(id int64, pos, v [3]float64, formed float64) feedback.Source {
-	src := supernova(id, pcMsunKms())
+	src := supernova(id, units.ParsecSolarMassKms())
 	src.Star.Pos, src.Star.Vel = pos, v
 	src.NewStellarMass = formed
 	return src
@@ -58,7 +58,7 @@ func TestKickedWindsExpectedMass(t *testing.T) {
 	// ID); the mean kicked mass must lie within 4 standard errors of
 	// eta m_*, the variance of one star's kicked mass being
 	// sum_j m_j^2 p (1 - p).
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := windGas(3, 200, 0)
 	const k, nStars = 40, 3000
 	s := feedback.DefaultKickedWinds()
@@ -106,7 +106,7 @@ func TestKickedWindsKickSpeedIsExactlyTheWindSpeed(t *testing.T) {
 	// the mass-weighted velocity of the element and the ejecta it takes in,
 	// in the star's frame, along the chosen direction; the recoil goes to
 	// the others.
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	vStar := [3]float64{120, -40, 15}
 	for _, dir := range []feedback.KickDirection{feedback.KickRadial, feedback.KickAlongAxis, feedback.KickAlongRotationAxis} {
 		g := windGas(5, 300, 30)
@@ -189,7 +189,7 @@ func TestMomentumDrivenScalings(t *testing.T) {
 
 	// Through the coupler: a host-given dispersion of 150 km/s launches at
 	// 450 km/s.
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := windGas(8, 200, 5)
 	md := feedback.DefaultMomentumDrivenWinds()
 	md.Basis = feedback.LoadPerFormedMass
@@ -215,7 +215,7 @@ func TestMomentumDrivenScalings(t *testing.T) {
 }
 
 func TestKickedWindsEnergyBudget(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	e := units.FOE / u.EnergyErg()
 	for _, c := range []struct {
 		name     string
@@ -318,7 +318,7 @@ func TestKickedWindsPassTheHarness(t *testing.T) {
 }
 
 func TestKickedWindsBitwiseForAnyWorkerCount(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	base := windGas(12, 600, 20)
 	var srcs []feedback.Source
 	for i := 0; i < 90; i++ {

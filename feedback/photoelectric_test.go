@@ -30,7 +30,7 @@ func TestFUVFieldInverseSquareInClearGas(t *testing.T) {
 	assert.InEpsilon(t, 52.24, feedback.FUVFieldAt(1e39, 10*units.Parsec, 0), 1e-3)
 	assert.InEpsilon(t, 52.24/4, feedback.FUVFieldAt(1e39, 20*units.Parsec, 0), 1e-3)
 
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := latticeGas(9, 2, 1, u) // 2 pc spacing: element radius 1.24 pc
 	star := [3]float64{0.3, -0.2, 0.1}
 	const lum = 1e39
@@ -59,7 +59,7 @@ func TestFUVFieldIsAttenuatedByTheDustInFront(t *testing.T) {
 	// With dust, each element sees exp(-tau) of the clear field, tau the
 	// column of the gas nearer the star (plus half its own) times the
 	// opacity scaled with metallicity.
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := latticeGas(7, 2, 30, u)
 	star := [3]float64{0.3, -0.2, 0.1}
 	s := feedback.DefaultPhotoelectricHeating()
@@ -127,7 +127,7 @@ func TestPhotoelectricHeatingRateOpticallyThin(t *testing.T) {
 	// In optically thin gas each element gets 1e-24 eps G0 erg/s per
 	// hydrogen nucleus over the step (Bakes & Tielens 1994), eps at its own
 	// x = G0 sqrt(T) / n_e, scaled with Z / Z_sun.
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := latticeGas(7, 2, 1, u)
 	star := [3]float64{0.3, -0.2, 0.1}
 	s := feedback.PhotoelectricHeating{FUVOpacity: 1, ElectronFraction: 1e-2} // tau << 1, cap far away
@@ -150,7 +150,7 @@ func TestPhotoelectricHeatingRateOpticallyThin(t *testing.T) {
 }
 
 func TestPhotoelectricHeatNeverExceedsAbsorbedLight(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	star := [3]float64{0.3, -0.2, 0.1}
 	const lum = 1e39
 	for _, kappa := range []float64{1e-6, 1e-2, 1, 1000, 1e6} {
@@ -179,7 +179,7 @@ func TestPhotoelectricHeatNeverExceedsAbsorbedLight(t *testing.T) {
 }
 
 func TestPhotoelectricHeatingPassesTheHarness(t *testing.T) {
-	u := feedbacktest.Units()
+	u := units.ParsecSolarMassKms()
 	light := func(s feedback.Star) feedback.Source {
 		// A young cluster's far-ultraviolet light, 3e5 Lsun for 0.1 Myr.
 		return feedback.Source{Star: s, Energy: 3e5 * units.SolarLuminosity * 0.1 * units.Megayear / u.EnergyErg(),
@@ -199,7 +199,7 @@ func TestPhotoelectricHeatingPassesTheHarness(t *testing.T) {
 }
 
 func TestPhotoelectricHeatingRefusesBadInput(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := latticeGas(3, 2, 1, u)
 	cases := []struct {
 		name   string
@@ -246,7 +246,7 @@ func TestStepperLightsTheGasWithThePopulationsFarUltraviolet(t *testing.T) {
 	// far-ultraviolet luminosity over the step over 4 pi r^2, in Habing
 	// units (inverse-square arithmetic), and with dust the heat it
 	// deposits is paid out of the light radiation pressure couples.
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
 	myr := units.Megayear / u.TimeS()

@@ -39,7 +39,7 @@ func (panickingFinder) Nearest(neighbor.Query, int, []neighbor.Neighbor) ([]neig
 // returned as ErrInternal through the normal error path, at any worker
 // count; nothing is deposited and the coupler serves the next call.
 func TestCouplerRecoversWorkerPanics(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g := uniformGas(5, 2000, 100, 1, u)
 	var srcs []feedback.Source
 	for s := 0; s < 100; s++ {
@@ -82,7 +82,7 @@ func TestCouplerRecoversWorkerPanics(t *testing.T) {
 // The stepper recovers panics in its shared neighbor search and in every
 // channel's coupler the same way.
 func TestStepperRecoversWorkerPanics(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
 	g := uniformGas(8, 1500, 100, 3, u)

@@ -28,7 +28,7 @@ func latticeOfMass(n int, m, nH float64, u units.CodeUnits) (*audit.GasArrays, f
 // (in units of the energy) and whether the star was capped.
 func coupledRemnant(t *testing.T, fit feedback.RemnantFit, w feedback.Weighting, mc float64, offset [3]float64) (p, heat float64, capped bool) {
 	t.Helper()
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	g, dx := latticeOfMass(9, mc/32, 1, u)
 	src := supernova(1, u)
 	for a := range offset {
@@ -50,7 +50,7 @@ func coupledRemnant(t *testing.T, fit feedback.RemnantFit, w feedback.Weighting,
 // momentum and the heat the gas keeps are continuous in the coupled mass
 // across it. Coupled masses from 0.3 to 30 switch masses in 2% steps.
 func TestRemnantSwitchIsContinuousInCoupledMass(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	for _, fit := range []feedback.RemnantFit{feedback.KimOstriker2015, feedback.CioffiMcKeeBertschinger1988} {
 		rem := fit.Remnant(units.FOE, 1, 0.0134)
 		ms := rem.SwitchMass / units.SolarMass
@@ -86,7 +86,7 @@ func TestRemnantSwitchIsContinuousInCoupledMass(t *testing.T) {
 // (Remnant.MomentumAt, checked against the paper in the package's tests).
 // Exact conservation is checked by coupleOnce.
 func TestRemnantMomentumDoesNotDependOnWeighting(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	e := units.FOE / u.EnergyErg()
 	offsets := map[string][3]float64{"near a site": {0.01, 0.02, 0.03}, "cell centre": {0.5, 0.5, 0.5}}
 	for _, fit := range []feedback.RemnantFit{feedback.KimOstriker2015, feedback.CioffiMcKeeBertschinger1988} {
@@ -121,7 +121,7 @@ func TestRemnantMomentumDoesNotDependOnWeighting(t *testing.T) {
 // Msun elements: 32 of them are far above the cooling mass of even one
 // step's 3000 supernovae.
 func TestPopulationMomentumDoesNotDependOnStepSize(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	pop, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
 	myr := units.Megayear / u.TimeS()

@@ -19,7 +19,7 @@ import (
 // released (the same amounts the default layout carries in its Iron and
 // Oxygen slots), the metals column the metals, and the ledger balances.
 func TestStepperWithChosenSpecies(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	cfg := yields.DefaultConfig()
 	var err error
 	cfg.Species, err = yields.ParseSpeciesSet("Fe,O")
@@ -84,7 +84,7 @@ func TestStepperWithChosenSpecies(t *testing.T) {
 }
 
 func TestChosenSpeciesMismatches(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	feo, err := yields.ParseSpeciesSet("Fe,O")
 	require.NoError(t, err)
 	cfg := yields.DefaultConfig()

@@ -20,7 +20,7 @@ import (
 // what is returned, as the stepper does; elements of 1e3 Msun cost about
 // 13 supernovae each at 10^7.5 K and elements of 1e5 Msun about 1300.
 func TestStochasticHeatingGivesTheJump(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	jump := math.Pow(10, 7.5)
 	// T = (2/3) mu m_p u / k for a monatomic gas of mean molecular weight
 	// mu = 0.59 (ionized gas; common practice).

@@ -68,14 +68,8 @@ const DefaultMinTemperature = 1.0
 // solar mass and km/s, with the default thermodynamics of package cooling,
 // no cooling, DefaultCourant and one worker.
 func DefaultGridConfig(cells int, size float64) GridConfig {
-	return GridConfig{Cells: cells, Size: size, Units: Units(), Thermo: cooling.DefaultGas(),
+	return GridConfig{Cells: cells, Size: size, Units: units.ParsecSolarMassKms(), Thermo: cooling.DefaultGas(),
 		Courant: DefaultCourant, Limiter: DefaultLimiter, MinTemperature: DefaultMinTemperature, Workers: 1}
-}
-
-// Units are the testbed's code units: parsec, solar mass and km/s (code
-// time about 0.978 Myr, code energy 1.99e43 erg).
-func Units() units.CodeUnits {
-	return units.CodeUnits{LengthCm: units.Parsec, MassG: units.SolarMass, VelocityCmPS: units.Kilometre}
 }
 
 // Grid is a uniform Cartesian grid in a periodic box that solves the Euler

@@ -44,7 +44,7 @@ func stirredGrid(t testing.TB, n, workers int, seed uint64) *Grid {
 // supernova is one 1e51 erg supernova with 10 Msun of ejecta (1 Msun of
 // metals) from a star at rest at p, in the testbed's units.
 func supernova(p [3]float64, step uint64, dt float64) feedback.Source {
-	u := Units()
+	u := units.ParsecSolarMassKms()
 	m := 10 * units.SolarMass / u.MassG
 	src := feedback.Source{Star: feedback.Star{ID: 1, Pos: p, Metallicity: 0.0134}, Channel: yields.CoreCollapse,
 		Mass: m, Energy: 1e51 / u.EnergyErg(), Events: 1, Step: step, Duration: dt}

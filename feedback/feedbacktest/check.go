@@ -9,6 +9,7 @@ import (
 	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/neighbor"
+	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
 // Options tune the checks. DefaultOptions is the standard strict set;
@@ -104,7 +105,7 @@ func couple(scheme feedback.Scheme, sc Scenario, opts Options, workers int, sour
 	if k > g.Len() {
 		k = g.Len()
 	}
-	c, err := feedback.NewCoupler(feedback.Config{Units: Units(), Scheme: scheme, Weighting: opts.Weighting,
+	c, err := feedback.NewCoupler(feedback.Config{Units: units.ParsecSolarMassKms(), Scheme: scheme, Weighting: opts.Weighting,
 		SkipIsotropyCorrection: opts.SkipIsotropyCorrection, Neighbors: k, Workers: workers, Box: sc.Box})
 	if err != nil {
 		return nil, err

@@ -24,12 +24,6 @@ import (
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
-// Units are the code units the scenarios are written in: parsec, solar
-// mass and km/s.
-func Units() units.CodeUnits {
-	return units.CodeUnits{LengthCm: units.Parsec, MassG: units.SolarMass, VelocityCmPS: units.Kilometre}
-}
-
 // Species tracked by the scenario gas.
 func trackedSpecies() []yields.Species {
 	return []yields.Species{yields.Metals, yields.Hydrogen, yields.Helium, yields.Oxygen, yields.Iron}
@@ -52,7 +46,7 @@ type Scenario struct {
 // SupernovaRelease is a single 1e51 erg supernova ejecting 10 Msun, in the
 // scenario units: the release every scenario star makes.
 func SupernovaRelease(star feedback.Star) feedback.Source {
-	u := Units()
+	u := units.ParsecSolarMassKms()
 	s := feedback.Source{Star: star, Channel: yields.CoreCollapse, Mass: 10, Events: 1,
 		Energy: units.FOE / u.EnergyErg()}
 	s.Species[yields.Hydrogen] = 5.5
@@ -66,7 +60,7 @@ func SupernovaRelease(star feedback.Star) feedback.Source {
 // newGas makes n elements with the given positions generator, density n_H
 // (cm^-3) and temperature-like specific energy.
 func newGas(n int, pos func(i int) [3]float64, mass float64, nH float64, rng *rand.Rand, vel float64, idBase int64) *audit.GasArrays {
-	u := Units()
+	u := units.ParsecSolarMassKms()
 	rho := nH * feedback.MassPerHydrogen * units.ProtonMass / u.DensityGCm3()
 	g := &audit.GasArrays{Species: trackedSpecies()}
 	for a := 0; a < 3; a++ {

@@ -83,6 +83,13 @@ func Astro() CodeUnits {
 	return CodeUnits{LengthCm: 1e3 * Parsec, MassG: 1e10 * SolarMass, VelocityCmPS: Kilometre}
 }
 
+// ParsecSolarMassKms returns the system of star-cluster and interstellar
+// medium simulations: parsec, solar mass and km/s (code time about 0.98
+// Myr).
+func ParsecSolarMassKms() CodeUnits {
+	return CodeUnits{LengthCm: Parsec, MassG: SolarMass, VelocityCmPS: Kilometre}
+}
+
 // Validate reports an error unless the three factors are finite and positive.
 func (u CodeUnits) Validate() error {
 	for _, f := range []struct {
