@@ -42,7 +42,7 @@ func koTable(t *testing.T) *feedback.RemnantTable {
 // a table holding the Kim & Ostriker 2015 fit's values couples the same
 // momentum and heat as the fit itself, below and past the switch.
 func TestTerminalMomentumTableLikeFit(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	tab := koTable(t)
 	msf := feedback.KimOstriker2015.Remnant(units.FOE, 1, yields.SolarMetals).SwitchMass / units.SolarMass
 	for _, mc := range []float64{0.3 * msf, 3 * msf, 30 * msf} {
@@ -73,7 +73,7 @@ func TestTerminalMomentumTableLikeFit(t *testing.T) {
 // Gas outside the table's grid returns the release undeposited with
 // ErrOutsideRemnantTable; a clamping table couples it at the grid's edge.
 func TestTerminalMomentumTableOutsideGrid(t *testing.T) {
-	u := pcMsunKms()
+	u := units.ParsecSolarMassKms()
 	tab := koTable(t)
 	g, _ := latticeOfMass(9, 100, 1e3, u) // n = 1000 cm^-3: above the grid
 	src := supernova(1, u)
