@@ -230,8 +230,8 @@ func TestPhotonReachIsDeterministic(t *testing.T) {
 	base, dx := latticeOfMass(17, 10, 1, u)
 	dt := units.Megayear / u.TimeS()
 	var srcs []feedback.Source
-	for s := 0; s < 40; s++ {
-		photons := 1e48 * (1 + float64(s%5)) * units.Megayear
+	for s := 0; s < 20; s++ {
+		photons := 2e47 * (1 + float64(s%3)) * units.Megayear
 		srcs = append(srcs, feedback.Source{Star: feedback.Star{ID: int64(s + 1), Pos: [3]float64{float64(s%7-3) * dx, float64(s%5-2) * dx, 0.3 * dx}},
 			Channel: yields.Photoionization, Photons: photons, Duration: dt, Energy: photons * 3 * 1.602176634e-12 / u.EnergyErg()})
 	}
