@@ -10,6 +10,7 @@ import (
 
 	"github.com/ejecta-dev/ejecta/bench/cooling"
 	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
@@ -40,10 +41,12 @@ func TestCalibratedTableReproducesSolver(t *testing.T) {
 	tab, err := feedback.ReadRemnantTable(strings.NewReader(sb.String()))
 	require.NoError(t, err)
 	for _, c := range cases {
-		rem, err := tab.Remnant(units.FOE, c.Density, c.Metallicity)
+		rem, err := tab.Remnant(units.FOE, c.Density, c.Metallicity*yields.SolarMetals)
 		require.NoError(t, err)
-		assert.InEpsilon(t, c.Result.ShellFormation.Momentum, rem.TerminalMomentum, 0.02, "n = %v", c.Density)
+		assert.InEpsilon(t, c.Result.ShellFormation.Momentum, rem.SwitchMomentum, 0.02, "n = %v", c.Density)
+		assert.InEpsilon(t, c.Result.ShellFormation.Mass, rem.SwitchMass, 0.02, "n = %v", c.Density)
 		assert.InEpsilon(t, c.Result.ShellFormation.ShockRadius, rem.CoolingRadius, 0.02, "n = %v", c.Density)
+		assert.InEpsilon(t, c.Result.Late.Momentum, rem.TerminalMomentum, 0.02, "n = %v", c.Density)
 	}
 	if testing.Short() {
 		return
@@ -52,9 +55,9 @@ func TestCalibratedTableReproducesSolver(t *testing.T) {
 	mid.Density = 10
 	res, err := Run(mid)
 	require.NoError(t, err)
-	rem, err := tab.Remnant(units.FOE, 10, 1)
+	rem, err := tab.Remnant(units.FOE, 10, yields.SolarMetals)
 	require.NoError(t, err)
-	assert.InEpsilon(t, res.ShellFormation.Momentum, rem.TerminalMomentum, 0.05, "log-midpoint against a direct run")
+	assert.InEpsilon(t, res.ShellFormation.Momentum, rem.SwitchMomentum, 0.05, "log-midpoint against a direct run")
 }
 
 // Cases do not depend on the number of workers, and a user's cooling table

@@ -13,42 +13,48 @@ import (
 // ErrConfig marks an invalid configuration.
 var ErrConfig = errors.New("invalid remnant configuration")
 
-// Config describes one remnant run. Zero fields take the defaults
-// documented on each (ThermalFraction excepted: zero is a valid choice);
-// start from DefaultConfig.
+// Config describes one remnant run. Start from DefaultConfig: every
+// setting is used as given (no zero stands for a default), and New refuses
+// settings that have no meaning.
 type Config struct {
 	// Density is the ambient hydrogen number density n_H in cm^-3.
 	Density float64
 	// Metallicity is the ambient (and ejecta) metallicity in solar units;
 	// it selects the built-in cooling curve when Cooling is nil.
 	Metallicity float64
-	// Energy is the explosion energy in erg (default 1e51).
+	// Energy is the explosion energy in erg (DefaultConfig: 1e51).
 	Energy float64
-	// EjectaMass is the ejecta mass in Msun (default 3, our own choice).
+	// EjectaMass is the ejecta mass in Msun (DefaultConfig: 3, our own
+	// choice).
 	EjectaMass float64
-	// AmbientTemperature is the ambient temperature in K; zero means the
-	// thermal equilibrium of the cooling curve at Density (or 1e4 K with
-	// cooling off).
+	// AmbientAtEquilibrium sets the ambient temperature to the thermal
+	// equilibrium of the cooling curve at Density (DefaultConfig: true;
+	// with NoCooling, where there is no equilibrium, 1e4 K); otherwise
+	// AmbientTemperature is used.
+	AmbientAtEquilibrium bool
+	// AmbientTemperature is the ambient temperature in K when
+	// AmbientAtEquilibrium is false (DefaultConfig: 1e4).
 	AmbientTemperature float64
 	// Cooling is the cooling curve; nil means cooling.Builtin(Metallicity).
 	Cooling *cooling.Curve
 	// NoCooling switches radiative cooling and heating off.
 	NoCooling bool
-	// Gas relates temperature and internal energy (default
+	// Gas relates temperature and internal energy (DefaultConfig:
 	// cooling.DefaultGas()). The hydrodynamics use its Gamma.
 	Gas cooling.Gas
 	// ZonesPerShellRadius sets the resolution: zones across the estimated
-	// shell-formation radius (default 100). The grid is uniform in radius.
+	// shell-formation radius (DefaultConfig: 100). The grid is uniform in
+	// radius.
 	ZonesPerShellRadius int
 	// DomainShellRadii is the outer radius in estimated shell-formation
-	// radii (default 3).
+	// radii (DefaultConfig: 3).
 	DomainShellRadii float64
 	// EndShellTimes is the run length in estimated shell-formation times
-	// (default 10).
+	// (DefaultConfig: 10).
 	EndShellTimes float64
-	// InitialZones is the number of zones the ejecta start in (default 8;
-	// the initial radius must stay below a third of the shell-formation
-	// radius, Kim & Ostriker 2015).
+	// InitialZones is the number of zones the ejecta start in
+	// (DefaultConfig: 8; the initial radius must stay below a third of the
+	// shell-formation radius, Kim & Ostriker 2015).
 	InitialZones int
 	// ThermalFraction is the share of the energy the ejecta start with as
 	// heat, the rest being the kinetic energy of homologous expansion.
@@ -57,58 +63,32 @@ type Config struct {
 	// the shell-formation point does not depend on the split once the
 	// ejecta have swept up several times their mass).
 	ThermalFraction float64
-	// CFL is the Courant number (default 0.4).
+	// CFL is the Courant number (DefaultConfig: 0.4).
 	CFL float64
 	// CoolingStep limits the step to this fraction of the shortest cooling
 	// time among zones hotter than 2e4 K, but never below a tenth of the
-	// Courant step (default 0.3; the cooling itself is exact at any step).
+	// Courant step (DefaultConfig: 0.3; the cooling itself is exact at any
+	// step).
 	CoolingStep float64
-	// Limiter is the slope limiter of the reconstruction (default
+	// Limiter is the slope limiter of the reconstruction (DefaultConfig:
 	// monotonized central).
 	Limiter hydro.Limiter
-	// HistorySamples is the number of log-spaced history records (default
-	// 200).
+	// HistorySamples is the number of log-spaced history records
+	// (DefaultConfig: 200).
 	HistorySamples int
 }
 
 // DefaultConfig is a 1e51 erg supernova with 3 Msun of ejecta in solar
-// metallicity gas of n_H = 1 cm^-3, with the built-in cooling.
+// metallicity gas of n_H = 1 cm^-3 at its thermal equilibrium, with the
+// built-in cooling, at the default resolution and run length.
 func DefaultConfig() Config {
-	return Config{Density: 1, Metallicity: 1, ThermalFraction: 0.5}.withDefaults()
-}
-
-func (c Config) withDefaults() Config {
-	if c.Energy == 0 {
-		c.Energy = units.FOE
+	return Config{
+		Density: 1, Metallicity: 1, Energy: units.FOE, EjectaMass: 3,
+		AmbientAtEquilibrium: true, AmbientTemperature: 1e4,
+		Gas: cooling.DefaultGas(), ZonesPerShellRadius: 100, DomainShellRadii: 3, EndShellTimes: 10,
+		InitialZones: 8, ThermalFraction: 0.5, CFL: 0.4, CoolingStep: 0.3,
+		Limiter: hydro.MonotonizedCentral, HistorySamples: 200,
 	}
-	if c.EjectaMass == 0 {
-		c.EjectaMass = 3
-	}
-	if c.Gas == (cooling.Gas{}) {
-		c.Gas = cooling.DefaultGas()
-	}
-	if c.ZonesPerShellRadius == 0 {
-		c.ZonesPerShellRadius = 100
-	}
-	if c.DomainShellRadii == 0 {
-		c.DomainShellRadii = 3
-	}
-	if c.EndShellTimes == 0 {
-		c.EndShellTimes = 10
-	}
-	if c.InitialZones == 0 {
-		c.InitialZones = 8
-	}
-	if c.CFL == 0 {
-		c.CFL = 0.4
-	}
-	if c.CoolingStep == 0 {
-		c.CoolingStep = 0.3
-	}
-	if c.HistorySamples == 0 {
-		c.HistorySamples = 200
-	}
-	return c
 }
 
 func (c Config) validate() error {
@@ -122,8 +102,8 @@ func (c Config) validate() error {
 		return fmt.Errorf("remnant: energy %v erg, want finite > 0: %w", c.Energy, ErrConfig)
 	case !pos(c.EjectaMass):
 		return fmt.Errorf("remnant: ejecta mass %v Msun, want finite > 0: %w", c.EjectaMass, ErrConfig)
-	case !(c.AmbientTemperature >= 0) || math.IsInf(c.AmbientTemperature, 0):
-		return fmt.Errorf("remnant: ambient temperature %v K, want finite >= 0: %w", c.AmbientTemperature, ErrConfig)
+	case !c.AmbientAtEquilibrium && !pos(c.AmbientTemperature):
+		return fmt.Errorf("remnant: ambient temperature %v K, want finite > 0: %w", c.AmbientTemperature, ErrConfig)
 	case c.ZonesPerShellRadius < 8 || c.ZonesPerShellRadius > 1<<16:
 		return fmt.Errorf("remnant: %d zones per shell radius, want 8 to 65536: %w", c.ZonesPerShellRadius, ErrConfig)
 	case !(c.DomainShellRadii >= 1) || c.DomainShellRadii > 100:
@@ -132,17 +112,21 @@ func (c Config) validate() error {
 		return fmt.Errorf("remnant: run length %v shell times, want (0, 1000]: %w", c.EndShellTimes, ErrConfig)
 	case c.InitialZones < 2:
 		return fmt.Errorf("remnant: %d initial zones, want >= 2: %w", c.InitialZones, ErrConfig)
+	case float64(c.InitialZones) > float64(c.ZonesPerShellRadius)/3:
+		return fmt.Errorf("remnant: %d initial zones reach past a third of the shell-formation radius (%d zones; Kim & Ostriker 2015): %w", c.InitialZones, c.ZonesPerShellRadius, ErrConfig)
 	case !(c.ThermalFraction >= 0 && c.ThermalFraction <= 1):
 		return fmt.Errorf("remnant: thermal fraction %v, want in [0, 1]: %w", c.ThermalFraction, ErrConfig)
 	case !(c.CFL > 0 && c.CFL <= 0.8):
 		return fmt.Errorf("remnant: CFL %v, want in (0, 0.8]: %w", c.CFL, ErrConfig)
 	case !pos(c.CoolingStep):
 		return fmt.Errorf("remnant: cooling step fraction %v, want finite > 0: %w", c.CoolingStep, ErrConfig)
+	case c.Limiter > hydro.FirstOrder:
+		return fmt.Errorf("remnant: limiter %v: %w", c.Limiter, ErrConfig)
 	case c.HistorySamples < 2 || c.HistorySamples > 1<<20:
 		return fmt.Errorf("remnant: %d history samples, want 2 to 2^20: %w", c.HistorySamples, ErrConfig)
 	}
 	if err := c.Gas.Validate(); err != nil {
-		return fmt.Errorf("remnant: %w", err)
+		return fmt.Errorf("remnant: %w: %w", ErrConfig, err)
 	}
 	return nil
 }

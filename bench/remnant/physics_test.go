@@ -7,6 +7,7 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"github.com/ejecta-dev/ejecta/bench/cooling"
 	"github.com/ejecta-dev/ejecta/bench/hydro"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
@@ -21,6 +22,7 @@ func TestUniformMediumStaysAtRest(t *testing.T) {
 		cfg := DefaultConfig()
 		cfg.NoCooling = noCooling
 		cfg.ZonesPerShellRadius = 20
+		cfg.InitialZones = 4
 		s, err := New(cfg)
 		require.NoError(t, err)
 		for i := range s.u {
@@ -51,6 +53,7 @@ func sedovRadius(e, t, rho float64) float64 {
 func TestSedovTaylor(t *testing.T) {
 	cfg := DefaultConfig()
 	cfg.NoCooling = true
+	cfg.AmbientAtEquilibrium = false
 	cfg.AmbientTemperature = 1e3 // cold enough that the counter-pressure is negligible
 	cfg.EjectaMass = 1
 	cfg.ThermalFraction = 1 // a point explosion, as in the similarity solution
@@ -218,4 +221,29 @@ func TestStepAllocationFreeAndDeterministic(t *testing.T) {
 	b, err := Run(cfg)
 	require.NoError(t, err)
 	assert.Equal(t, a, b)
+}
+
+func TestConfigErrors(t *testing.T) {
+	for name, change := range map[string]func(*Config){
+		"zero density":        func(c *Config) { c.Density = 0 },
+		"NaN metallicity":     func(c *Config) { c.Metallicity = math.NaN() },
+		"zero energy":         func(c *Config) { c.Energy = 0 },
+		"negative ejecta":     func(c *Config) { c.EjectaMass = -1 },
+		"zero temperature":    func(c *Config) { c.AmbientAtEquilibrium, c.AmbientTemperature = false, 0 },
+		"few zones":           func(c *Config) { c.ZonesPerShellRadius = 4 },
+		"small domain":        func(c *Config) { c.DomainShellRadii = 0.5 },
+		"zero run":            func(c *Config) { c.EndShellTimes = 0 },
+		"big initial remnant": func(c *Config) { c.InitialZones = 40 },
+		"thermal fraction":    func(c *Config) { c.ThermalFraction = 1.5 },
+		"CFL":                 func(c *Config) { c.CFL = 0 },
+		"cooling step":        func(c *Config) { c.CoolingStep = 0 },
+		"limiter":             func(c *Config) { c.Limiter = 17 },
+		"history":             func(c *Config) { c.HistorySamples = 1 },
+		"gas":                 func(c *Config) { c.Gas = cooling.Gas{} },
+	} {
+		cfg := DefaultConfig()
+		change(&cfg)
+		_, err := New(cfg)
+		assert.ErrorIs(t, err, ErrConfig, name)
+	}
 }

@@ -103,7 +103,6 @@ type Sample struct {
 
 // New sets up a run: the grid, the ambient medium, and the ejecta.
 func New(cfg Config) (*Solver, error) {
-	cfg = cfg.withDefaults()
 	if err := cfg.validate(); err != nil {
 		return nil, err
 	}
@@ -146,8 +145,8 @@ func New(cfg Config) (*Solver, error) {
 	// Ambient medium.
 	rho0 := s.gas.MassDensity(cfg.Density)
 	t0 := cfg.AmbientTemperature
-	if t0 == 0 {
-		t0 = 1e4
+	if cfg.AmbientAtEquilibrium {
+		t0 = 1e4 // without cooling there is no equilibrium: the default warm gas
 		if s.curve != nil {
 			t0 = s.curve.EquilibriumTemperature(cfg.Density)
 			if math.IsInf(t0, 0) {
