@@ -25,13 +25,15 @@ type applyReportABI struct {
 
 // touchedABI mirrors ejecta_touched.
 type touchedABI struct {
-	GasIndex         int64
-	GasID            int64
-	MaxKick          float64
-	MaxHeating       float64
-	HoldCoolingUntil float64
-	Flags            uint32
-	Reserved         int32
+	GasIndex            int64
+	GasID               int64
+	MaxKick             float64
+	MaxHeating          float64
+	HoldCoolingUntil    float64
+	HydroDecoupledUntil float64
+	FUVField            float64
+	Flags               uint32
+	Reserved            int32
 }
 
 // apply applies located records to the bound gas, keeping the timestep
@@ -122,7 +124,8 @@ func entryCopyTouched(h uint64, dst *touchedABI, capacity int64, written *int64)
 		return copyOut(dst, capacity, written, "touched", "touched elements", len(s.touched), func(k int, d *touchedABI) {
 			t := &s.touched[k]
 			*d = touchedABI{GasIndex: int64(t.Index), GasID: t.ID, MaxKick: t.MaxKick, MaxHeating: t.MaxHeating,
-				HoldCoolingUntil: t.HoldCoolingUntil, Flags: uint32(t.Flags)}
+				HoldCoolingUntil: t.HoldCoolingUntil, HydroDecoupledUntil: t.HydroDecoupledUntil, FUVField: t.FUVField,
+				Flags: uint32(t.Flags)}
 		})
 	})
 }

@@ -69,7 +69,7 @@ extern "C" {
 
 /* Version of this header's binary interface: bumped when a struct layout or
  * a function signature changes. */
-#define EJECTA_ABI_VERSION 3
+#define EJECTA_ABI_VERSION 4
 
 /* ---- error codes ---------------------------------------------------- */
 
@@ -211,6 +211,10 @@ extern "C" {
 #define EJECTA_FLAG_HOLD_COOLING 8u
 /* The element was chosen by stochastic heating. */
 #define EJECTA_FLAG_STOCHASTIC 16u
+/* The element was launched into a kicked wind: the host should leave it
+ * out of hydrodynamic forces (pressure and viscosity, both ways) until
+ * hydro_decoupled_until (code time from the step start). */
+#define EJECTA_FLAG_HYDRO_DECOUPLED 32u
 
 /* Sizes of the name arrays in ejecta_config. */
 #define EJECTA_NAME_CAPACITY 48
@@ -260,7 +264,14 @@ typedef struct ejecta_config {
   /* NUL-terminated names: scheme "thermal-dump", "kinetic",
    * "terminal-momentum", "stochastic-heating", "delayed-cooling" (a
    * thermal dump whose records ask the host to hold cooling),
-   * "stellar-winds", "radiation-pressure" or "photoionization"; remnant_fit
+   * "stellar-winds", "radiation-pressure", "photoionization",
+   * "photoelectric-heating" (a star's energy is its far-ultraviolet light
+   * over duration; records carry fuv_field), "kicked-winds" (decoupled
+   * winds of 484 km/s loading 2 Msun per 1e49 erg of supernova energy,
+   * paid from the star's energy; records flag EJECTA_FLAG_HYDRO_DECOUPLED),
+   * "kicked-winds-momentum-driven" (speed and loading from the star's
+   * dispersion, or the gas's when 0), and either with "-formed-mass"
+   * appended (loading 2 times the star's new_stellar_mass); remnant_fit
    * (terminal-momentum and stellar-winds)
    * "kim-ostriker-2015" or "cioffi-mckee-bertschinger-1988"; weighting
    * "kernel-volume" or "solid-angle". An empty remnant_fit or weighting
@@ -339,13 +350,20 @@ typedef struct ejecta_star {
    * light for radiation pressure), number of discrete events (supernovae;
    * 0 for continuous release), hydrogen-ionizing photons emitted over the
    * step and the step's duration (code time; both used by
-   * photoionization, 0 otherwise). All finite and >= 0. */
+   * photoionization, duration also by photoelectric-heating, 0
+   * otherwise). All finite and >= 0. */
   double ejected_mass;
   double species_mass[EJECTA_NUM_SPECIES];
   double energy;
   double events;
   double photons;
   double duration;
+  /* Kicked winds: the stellar mass the star formed this step (code mass;
+   * used by schemes that load their wind per formed mass, 0 otherwise),
+   * and the one-dimensional velocity dispersion of its galaxy (code
+   * velocity; 0 lets kicked-winds-momentum-driven measure the gas's). */
+  double new_stellar_mass;
+  double dispersion;
 } ejecta_star;
 
 /* One star's deposit into one gas element. */
@@ -372,6 +390,12 @@ typedef struct ejecta_record {
    * unit mass (timestep help). */
   double kick;
   double heating;
+  /* With EJECTA_FLAG_HYDRO_DECOUPLED: code time from the step start. */
+  double hydro_decoupled_until;
+  /* Far-ultraviolet field (6-13.6 eV) the star makes at the element, in
+   * Habing units G0 (photoelectric heating; 0 otherwise), for hosts with
+   * their own cooling or chemistry. */
+  double fuv_field;
 } ejecta_record;
 
 /* An amount of every conserved quantity, code units: mass, mass per
@@ -411,6 +435,11 @@ typedef struct ejecta_ledger {
    * of the touched gas plus what was released. */
   double momentum_scale;
   double energy_scale;
+  /* The deposited energy as the schemes split it: kinetic energy the gas
+   * gained in each star's frame (what kicks used of the release, e.g. a
+   * kicked wind's share of the supernova energy), and heat. */
+  double kick_energy;
+  double heat;
 } ejecta_ledger;
 
 /* What an ejecta_apply_* call did. */
@@ -434,13 +463,16 @@ typedef struct ejecta_apply_report {
 
 /* Timestep help for one element that received records in the last apply:
  * the largest speed change and heating per unit mass any single record gave
- * it, and the union of the flags. */
+ * it, the latest hold times, the summed far-ultraviolet field of the stars
+ * that lit it (G0), and the union of the flags. */
 typedef struct ejecta_touched {
   int64_t gas_index;
   int64_t gas_id;
   double max_kick;
   double max_heating;
   double hold_cooling_until;
+  double hydro_decoupled_until;
+  double fuv_field;
   uint32_t flags;
   int32_t reserved;
 } ejecta_touched;
@@ -494,6 +526,11 @@ typedef struct ejecta_population_config {
    * for the blast-wave time (EJECTA_FLAG_HOLD_COOLING with
    * hold_cooling_until in the records and ejecta_touched). Default 0. */
   int32_t delayed_cooling;
+  /* Photoelectric heating by the population's far-ultraviolet light
+   * (EJECTA_CHANNEL_PHOTOELECTRIC_HEATING; records carry fuv_field), 1 on
+   * and 0 off. Default 1. */
+  int32_t photoelectric_heating;
+  int32_t reserved;
 } ejecta_population_config;
 
 /* One star particle as a population step sees it, code units. */

@@ -78,6 +78,8 @@ func abiMismatches() []string {
 	eq("star.events", unsafe.Offsetof(cs.events), unsafe.Offsetof(gs.Events))
 	eq("star.photons", unsafe.Offsetof(cs.photons), unsafe.Offsetof(gs.Photons))
 	eq("star.duration", unsafe.Offsetof(cs.duration), unsafe.Offsetof(gs.Duration))
+	eq("star.new_stellar_mass", unsafe.Offsetof(cs.new_stellar_mass), unsafe.Offsetof(gs.NewStellarMass))
+	eq("star.dispersion", unsafe.Offsetof(cs.dispersion), unsafe.Offsetof(gs.Dispersion))
 
 	var cr C.ejecta_record
 	var gr recordABI
@@ -95,6 +97,8 @@ func abiMismatches() []string {
 	eq("record.hold_cooling_until", unsafe.Offsetof(cr.hold_cooling_until), unsafe.Offsetof(gr.HoldCoolingUntil))
 	eq("record.kick", unsafe.Offsetof(cr.kick), unsafe.Offsetof(gr.Kick))
 	eq("record.heating", unsafe.Offsetof(cr.heating), unsafe.Offsetof(gr.Heating))
+	eq("record.hydro_decoupled_until", unsafe.Offsetof(cr.hydro_decoupled_until), unsafe.Offsetof(gr.HydroDecoupledUntil))
+	eq("record.fuv_field", unsafe.Offsetof(cr.fuv_field), unsafe.Offsetof(gr.FUVField))
 
 	var cq C.ejecta_quantities
 	var gq quantitiesABI
@@ -113,6 +117,8 @@ func abiMismatches() []string {
 	eq("ledger.limited", unsafe.Offsetof(cl.limited), unsafe.Offsetof(gl.Limited))
 	eq("ledger.max_isotropy_residual", unsafe.Offsetof(cl.max_isotropy_residual), unsafe.Offsetof(gl.MaxIsotropyResidual))
 	eq("ledger.energy_scale", unsafe.Offsetof(cl.energy_scale), unsafe.Offsetof(gl.EnergyScale))
+	eq("ledger.kick_energy", unsafe.Offsetof(cl.kick_energy), unsafe.Offsetof(gl.KickEnergy))
+	eq("ledger.heat", unsafe.Offsetof(cl.heat), unsafe.Offsetof(gl.Heat))
 
 	var ca C.ejecta_apply_report
 	var ga applyReportABI
@@ -126,6 +132,8 @@ func abiMismatches() []string {
 	eq("sizeof touched", unsafe.Sizeof(ct), unsafe.Sizeof(gt))
 	eq("touched.max_kick", unsafe.Offsetof(ct.max_kick), unsafe.Offsetof(gt.MaxKick))
 	eq("touched.hold_cooling_until", unsafe.Offsetof(ct.hold_cooling_until), unsafe.Offsetof(gt.HoldCoolingUntil))
+	eq("touched.hydro_decoupled_until", unsafe.Offsetof(ct.hydro_decoupled_until), unsafe.Offsetof(gt.HydroDecoupledUntil))
+	eq("touched.fuv_field", unsafe.Offsetof(ct.fuv_field), unsafe.Offsetof(gt.FUVField))
 	eq("touched.flags", unsafe.Offsetof(ct.flags), unsafe.Offsetof(gt.Flags))
 
 	var cpc C.ejecta_population_config
@@ -139,6 +147,7 @@ func abiMismatches() []string {
 	eq("population_config.radiation_pressure", unsafe.Offsetof(cpc.radiation_pressure), unsafe.Offsetof(gpc.RadiationPressure))
 	eq("population_config.photoionization", unsafe.Offsetof(cpc.photoionization), unsafe.Offsetof(gpc.Photoionization))
 	eq("population_config.delayed_cooling", unsafe.Offsetof(cpc.delayed_cooling), unsafe.Offsetof(gpc.DelayedCooling))
+	eq("population_config.photoelectric_heating", unsafe.Offsetof(cpc.photoelectric_heating), unsafe.Offsetof(gpc.PhotoelectricHeating))
 
 	var csp C.ejecta_star_particle
 	var gsp starParticleABI
@@ -202,6 +211,7 @@ func abiMismatches() []string {
 		{"EJECTA_FLAG_IONIZED", C.EJECTA_FLAG_IONIZED, int64(feedback.FlagIonized)},
 		{"EJECTA_FLAG_HOLD_COOLING", C.EJECTA_FLAG_HOLD_COOLING, int64(feedback.FlagHoldCooling)},
 		{"EJECTA_FLAG_STOCHASTIC", C.EJECTA_FLAG_STOCHASTIC, int64(feedback.FlagStochastic)},
+		{"EJECTA_FLAG_HYDRO_DECOUPLED", C.EJECTA_FLAG_HYDRO_DECOUPLED, int64(feedback.FlagHydroDecoupled)},
 	}
 	for _, k := range flags {
 		eqi(k.name, k.c, k.g)

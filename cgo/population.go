@@ -31,6 +31,8 @@ type populationConfigABI struct {
 	RadiationPressure    int32
 	Photoionization      int32
 	DelayedCooling       int32
+	PhotoelectricHeating int32
+	Reserved             int32
 }
 
 type starParticleABI struct {
@@ -72,7 +74,7 @@ func defaultPopulationConfig() populationConfigABI {
 	c := populationConfigABI{
 		LightestStarMass: yields.DefaultLightestStarMass, HeaviestStarMass: yields.DefaultHeaviestStarMass,
 		MaxSupernovaePerStep: feedback.DefaultMaxSupernovaePerStep,
-		Winds:                1, RadiationPressure: 1, Photoionization: 1,
+		Winds:                1, RadiationPressure: 1, Photoionization: 1, PhotoelectricHeating: 1,
 	}
 	copy(c.IMF[:], yields.Kroupa.String())
 	return c
@@ -176,6 +178,10 @@ func (s *session) enablePopulation(c *populationConfigABI) error {
 	if err != nil {
 		return err
 	}
+	photoelectric, err := switchOn("photoelectric_heating", c.PhotoelectricHeating)
+	if err != nil {
+		return err
+	}
 	model, err := populationModel(c, s.cfg.Species)
 	if err != nil {
 		return err
@@ -184,6 +190,7 @@ func (s *session) enablePopulation(c *populationConfigABI) error {
 	cfg.Seed = s.seed
 	cfg.SkipWinds, cfg.SkipRadiation, cfg.SkipPhotoionization = !winds, !radiation, !ionization
 	cfg.DelayedCooling = cooling
+	cfg.SkipPhotoelectric = !photoelectric
 	if c.MaxSupernovaePerStep != 0 { // ejecta.h: 0 means the default
 		cfg.MaxSupernovaePerStep = c.MaxSupernovaePerStep
 	}

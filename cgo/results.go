@@ -10,20 +10,22 @@ import (
 
 // recordABI mirrors ejecta_record.
 type recordABI struct {
-	GasIndex         int64
-	GasID            int64
-	StarID           int64
-	Channel          int32
-	Flags            uint32
-	Mass             float64
-	SpeciesMass      [numSpecies]float64
-	Momentum         [3]float64
-	Energy           float64
-	Heat             float64
-	Radiated         float64
-	HoldCoolingUntil float64
-	Kick             float64
-	Heating          float64
+	GasIndex            int64
+	GasID               int64
+	StarID              int64
+	Channel             int32
+	Flags               uint32
+	Mass                float64
+	SpeciesMass         [numSpecies]float64
+	Momentum            [3]float64
+	Energy              float64
+	Heat                float64
+	Radiated            float64
+	HoldCoolingUntil    float64
+	Kick                float64
+	Heating             float64
+	HydroDecoupledUntil float64
+	FUVField            float64
 }
 
 // quantitiesABI mirrors ejecta_quantities.
@@ -49,6 +51,8 @@ type ledgerABI struct {
 	RadialMomentum      float64
 	MomentumScale       float64
 	EnergyScale         float64
+	KickEnergy          float64
+	Heat                float64
 }
 
 func recordToABI(r *feedback.Record, d *recordABI) {
@@ -57,6 +61,7 @@ func recordToABI(r *feedback.Record, d *recordABI) {
 		Channel: int32(r.Channel), Flags: uint32(r.Flags),
 		Mass: r.Mass, SpeciesMass: r.Species, Momentum: r.Momentum, Energy: r.Energy, Heat: r.Heat,
 		Radiated: r.Radiated, HoldCoolingUntil: r.HoldCoolingUntil, Kick: r.Kick, Heating: r.Heating,
+		HydroDecoupledUntil: r.HydroDecoupledUntil, FUVField: r.FUVField,
 	}
 }
 
@@ -66,6 +71,7 @@ func recordFromABI(d *recordABI) feedback.Record {
 		Deposit: feedback.Deposit{
 			Mass: d.Mass, Species: d.SpeciesMass, Momentum: d.Momentum, Energy: d.Energy, Heat: d.Heat,
 			Radiated: d.Radiated, Flags: feedback.Flags(d.Flags), HoldCoolingUntil: d.HoldCoolingUntil,
+			HydroDecoupledUntil: d.HydroDecoupledUntil, FUVField: d.FUVField,
 		},
 		Kick: d.Kick, Heating: d.Heating,
 	}
@@ -86,6 +92,7 @@ func ledgerToABI(l *feedback.Ledger) ledgerABI {
 		Stars: int64(l.Stars), Skipped: int64(l.Skipped), Capped: int64(l.Capped), Limited: int64(l.Limited),
 		MaxIsotropyResidual: l.MaxIsotropyResidual, SumIsotropyResidual: l.SumIsotropyResidual,
 		RadialMomentum: l.RadialMomentum, MomentumScale: l.MomentumScale, EnergyScale: l.EnergyScale,
+		KickEnergy: l.KickEnergy, Heat: l.Heat,
 	}
 }
 
@@ -96,6 +103,7 @@ func ledgerFromABI(l *ledgerABI) feedback.Ledger {
 		Stars: int(l.Stars), Skipped: int(l.Skipped), Capped: int(l.Capped), Limited: int(l.Limited),
 		MaxIsotropyResidual: l.MaxIsotropyResidual, SumIsotropyResidual: l.SumIsotropyResidual,
 		RadialMomentum: l.RadialMomentum, MomentumScale: l.MomentumScale, EnergyScale: l.EnergyScale,
+		KickEnergy: l.KickEnergy, Heat: l.Heat,
 	}
 }
 

@@ -19,20 +19,22 @@ const (
 
 // starABI mirrors ejecta_star.
 type starABI struct {
-	ID          int64
-	Position    [3]float64
-	Velocity    [3]float64
-	Mass        float64
-	Metallicity float64
-	Age         float64
-	Channel     int32
-	Reserved    int32
-	EjectedMass float64
-	SpeciesMass [numSpecies]float64
-	Energy      float64
-	Events      float64
-	Photons     float64
-	Duration    float64
+	ID             int64
+	Position       [3]float64
+	Velocity       [3]float64
+	Mass           float64
+	Metallicity    float64
+	Age            float64
+	Channel        int32
+	Reserved       int32
+	EjectedMass    float64
+	SpeciesMass    [numSpecies]float64
+	Energy         float64
+	Events         float64
+	Photons        float64
+	Duration       float64
+	NewStellarMass float64
+	Dispersion     float64
 }
 
 // batch is the scratch in which both kinds of step prepare their stars:
@@ -184,6 +186,7 @@ func starSource(st *starABI) (feedback.Source, error) {
 			Metallicity: st.Metallicity, Age: st.Age},
 		Channel: yields.Channel(st.Channel), Mass: st.EjectedMass, Species: st.SpeciesMass,
 		Energy: st.Energy, Events: st.Events, Photons: st.Photons, Duration: st.Duration,
+		NewStellarMass: st.NewStellarMass, Dispersion: st.Dispersion,
 	}
 	if st.Channel < 0 || yields.Channel(st.Channel) >= yields.NumChannels {
 		return src, fail(codeInvalidArgument, "star %d: channel %d is not a channel code", st.ID, st.Channel)

@@ -194,13 +194,17 @@ func DefaultMomentumDrivenWinds() KickedWinds {
 	return s
 }
 
-// Name is "kicked-winds", or "kicked-winds-momentum-driven" with
-// MomentumDrivenWind scaling.
+// Name is "kicked-winds", with "-momentum-driven" for MomentumDrivenWind
+// scaling and "-formed-mass" for LoadPerFormedMass appended.
 func (s KickedWinds) Name() string {
+	name := "kicked-winds"
 	if s.Scaling == MomentumDrivenWind {
-		return "kicked-winds-momentum-driven"
+		name += "-momentum-driven"
 	}
-	return "kicked-winds"
+	if s.Basis == LoadPerFormedMass {
+		name += "-formed-mass"
+	}
+	return name
 }
 
 // streamKickedWinds separates the kicked-wind draws from the other draws

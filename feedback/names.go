@@ -26,11 +26,28 @@ func DefaultSchemeOptions() SchemeOptions {
 
 // SchemeNames lists the built-in schemes' names, as Name returns them.
 func SchemeNames() []string {
-	return []string{
+	names := []string{
 		ThermalDump{}.Name(), Kinetic{}.Name(), TerminalMomentum{}.Name(), StochasticHeating{}.Name(),
 		DelayedCooling{}.Name(), Winds{}.Name(), RadiationPressure{}.Name(), Photoionization{}.Name(),
-		PhotoelectricHeating{}.Name(), DefaultKickedWinds().Name(), DefaultMomentumDrivenWinds().Name(),
+		PhotoelectricHeating{}.Name(),
 	}
+	for _, s := range kickedWindsVariants() {
+		names = append(names, s.Name())
+	}
+	return names
+}
+
+// kickedWindsVariants are the kicked-wind schemes reachable by name:
+// constant and momentum-driven, loaded per supernova energy or per formed
+// stellar mass.
+func kickedWindsVariants() []KickedWinds {
+	var out []KickedWinds
+	for _, s := range []KickedWinds{DefaultKickedWinds(), DefaultMomentumDrivenWinds()} {
+		out = append(out, s)
+		s.Basis = LoadPerFormedMass
+		out = append(out, s)
+	}
+	return out
 }
 
 // SchemeByName builds a built-in scheme from its name and options (start
@@ -60,14 +77,12 @@ func SchemeByName(name string, o SchemeOptions) (Scheme, error) {
 		return Photoionization{}, nil
 	case PhotoelectricHeating{}.Name():
 		return DefaultPhotoelectricHeating(), nil
-	case DefaultKickedWinds().Name():
-		s := DefaultKickedWinds()
-		s.Seed = o.Seed
-		return s, nil
-	case DefaultMomentumDrivenWinds().Name():
-		s := DefaultMomentumDrivenWinds()
-		s.Seed = o.Seed
-		return s, nil
+	}
+	for _, s := range kickedWindsVariants() {
+		if name == s.Name() {
+			s.Seed = o.Seed
+			return s, nil
+		}
 	}
 	return nil, errorf(ErrUnknownName, "scheme %q: want one of %s", name, strings.Join(SchemeNames(), ", "))
 }

@@ -2,8 +2,9 @@
 ! through ejecta_mod: one star particle of 5e3 Msun formed, stepped three
 ! times through ejecta_step_population on a gas lattice, with the yields
 ! table named on the command line (or the built-in population without
-! one). Checks that every ledger balances and that the star's mass loss is
-! what the gas gained; prints key=value lines and "result pass", or stops
+! one). Checks that every ledger balances, that the star's mass loss is
+! what the gas gained, and that the records of the far-ultraviolet channel
+! (and only those) carry a field G0; prints key=value lines and "result pass", or stops
 ! with a non-zero code. Code units: pc, Msun, km/s.
 program ejecta_population_host
   use, intrinsic :: iso_c_binding
@@ -26,17 +27,21 @@ program ejecta_population_host
   type(ejecta_star_result) :: res(1)
   type(ejecta_ledger) :: led
   type(ejecta_apply_report) :: rep
+  type(ejecta_record), allocatable :: recs(:)
+  type(ejecta_touched) :: touched_one
   character(kind=c_char), allocatable, target :: path(:)
   character(len=512) :: arg, msg
   character(kind=c_char) :: cmsg(256)
-  integer(c_int64_t) :: ctx, written, k
+  integer(c_int64_t) :: ctx, written, k, n_rec
   integer(c_size_t) :: stride
   real(c_double) :: h, m0, lost, suggested
-  integer :: i, ix, iy, iz, a, fails, supernovae
+  integer :: i, ix, iy, iz, a, fails, supernovae, lit
   integer(c_int) :: rc
 
   fails = 0
-  if (c_sizeof(star(1)) /= 96 .or. c_sizeof(res(1)) /= 40 .or. c_sizeof(pc) /= 96) &
+  allocate(recs(1))
+  if (c_sizeof(star(1)) /= 96 .or. c_sizeof(res(1)) /= 40 .or. c_sizeof(pc) /= 104 .or. &
+       c_sizeof(recs(1)) /= 224 .or. c_sizeof(led) /= 504 .or. c_sizeof(touched_one) /= 64) &
        call fail('struct sizes differ from ejecta.h')
 
   allocate(gas(n_gas))
@@ -100,6 +105,7 @@ program ejecta_population_host
 
   lost = 0
   supernovae = 0
+  lit = 0
   do k = 0, n_steps - 1
      call must(ejecta_step_population(ctx, star, 1_c_int64_t, 1.5d0 * myr, k, EJECTA_NEIGHBORS_OWN_FINDER, &
           c_null_ptr, c_null_ptr), 'population step')
@@ -111,6 +117,18 @@ program ejecta_population_host
      if (written /= 1 .or. res(1)%id /= star(1)%id) call fail('results')
      if (abs(res(1)%mass_loss - led%deposited%mass) > 1.0d-12 * res(1)%mass_loss) call fail('mass loss vs ledger')
      call must(ejecta_suggested_step(ctx, suggested), 'suggested step')
+     call must(ejecta_record_count(ctx, n_rec), 'record count')
+     deallocate(recs)
+     allocate(recs(max(n_rec, 1_c_int64_t)))
+     call must(ejecta_copy_records(ctx, recs, n_rec, written), 'records')
+     do i = 1, int(written)
+        if (recs(i)%channel == EJECTA_CHANNEL_PHOTOELECTRIC_HEATING) then
+           lit = lit + 1
+           if (.not. (recs(i)%fuv_field > 0)) call fail('far-ultraviolet record without a field')
+        else if (recs(i)%fuv_field /= 0) then
+           call fail('a field on a record of another channel')
+        end if
+     end do
      call must(ejecta_apply_step_records(ctx, rep), 'apply')
      star(1)%mass = star(1)%mass - res(1)%mass_loss
      star(1)%carried_energy = res(1)%carried_energy
@@ -120,8 +138,11 @@ program ejecta_population_host
   end do
   print '(a,g0.17,a,g0.17)', 'star_mass_loss=', lost, ' gas_mass_gain=', sum(gas%mass) - m0
   print '(a,i0)', 'supernovae_cc=', supernovae
+  print '(a,i0)', 'lit_records=', lit
+  if (lit == 0) call fail('no far-ultraviolet records')
   if (abs(sum(gas%mass) - m0 - lost) > 1.0d-12 * m0) call fail('gas gain differs from the star''s loss')
   if (lost <= 0) call fail('no mass lost')
+  deallocate(recs)
   call must(ejecta_destroy(ctx), 'destroy')
 
   if (fails > 0) then

@@ -21,7 +21,7 @@ module ejecta_mod
        EJECTA_ERR_BUSY = 10, EJECTA_ERR_UNDEPOSITED = 11, EJECTA_ERR_IMBALANCE = 12, &
        EJECTA_ERR_ALREADY_APPLIED = 13, EJECTA_ERR_NO_POPULATION = 14, EJECTA_ERR_YIELDS_TABLE = 15, &
        EJECTA_ERR_REMNANT_TABLE = 16, EJECTA_ERR_INTERNAL = 99
-  integer(c_int32_t), parameter, public :: EJECTA_ABI_VERSION = 3
+  integer(c_int32_t), parameter, public :: EJECTA_ABI_VERSION = 4
   ! Element types.
   integer(c_int32_t), parameter, public :: EJECTA_FLOAT64 = 1, EJECTA_FLOAT32 = 2, &
        EJECTA_INT64 = 3, EJECTA_INT32 = 4
@@ -41,7 +41,8 @@ module ejecta_mod
   integer(c_int32_t), parameter, public :: EJECTA_NEIGHBORS_OWN_FINDER = 0, EJECTA_NEIGHBORS_HOST_ROWS = 1
   integer(c_int32_t), parameter, public :: EJECTA_LOCATE_BY_INDEX = 0, EJECTA_LOCATE_BY_ID = 1
   integer(c_int32_t), parameter, public :: EJECTA_FLAG_CAPPED = 1, EJECTA_FLAG_LIMITED = 2, &
-       EJECTA_FLAG_IONIZED = 4, EJECTA_FLAG_HOLD_COOLING = 8, EJECTA_FLAG_STOCHASTIC = 16
+       EJECTA_FLAG_IONIZED = 4, EJECTA_FLAG_HOLD_COOLING = 8, EJECTA_FLAG_STOCHASTIC = 16, &
+       EJECTA_FLAG_HYDRO_DECOUPLED = 32
 
   ! ejecta_config (seed is uint64_t in C: use non-negative values).
   type, bind(c), public :: ejecta_config
@@ -79,6 +80,7 @@ module ejecta_mod
      real(c_double) :: ejected_mass = 0
      real(c_double) :: species_mass(EJECTA_NUM_SPECIES) = 0
      real(c_double) :: energy = 0, events = 0, photons = 0, duration = 0
+     real(c_double) :: new_stellar_mass = 0, dispersion = 0
   end type ejecta_star
 
   type, bind(c), public :: ejecta_record
@@ -88,6 +90,7 @@ module ejecta_mod
      real(c_double) :: species_mass(EJECTA_NUM_SPECIES)
      real(c_double) :: momentum(3)
      real(c_double) :: energy, heat, radiated, hold_cooling_until, kick, heating
+     real(c_double) :: hydro_decoupled_until, fuv_field
   end type ejecta_record
 
   type, bind(c), public :: ejecta_quantities
@@ -103,6 +106,7 @@ module ejecta_mod
      integer(c_int64_t) :: stars, skipped, capped, limited
      real(c_double) :: max_isotropy_residual, sum_isotropy_residual
      real(c_double) :: radial_momentum, momentum_scale, energy_scale
+     real(c_double) :: kick_energy, heat
   end type ejecta_ledger
 
   type, bind(c), public :: ejecta_apply_report
@@ -115,6 +119,7 @@ module ejecta_mod
   type, bind(c), public :: ejecta_touched
      integer(c_int64_t) :: gas_index, gas_id
      real(c_double) :: max_kick, max_heating, hold_cooling_until
+     real(c_double) :: hydro_decoupled_until, fuv_field
      integer(c_int32_t) :: flags, reserved
   end type ejecta_touched
 
@@ -126,6 +131,7 @@ module ejecta_mod
      real(c_double) :: lightest_star_mass, heaviest_star_mass, max_supernovae_per_step
      type(c_ptr) :: yields_table = c_null_ptr
      integer(c_int32_t) :: winds, radiation_pressure, photoionization, delayed_cooling
+     integer(c_int32_t) :: photoelectric_heating, reserved
   end type ejecta_population_config
 
   type, bind(c), public :: ejecta_star_particle
