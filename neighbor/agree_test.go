@@ -89,8 +89,7 @@ var testBoxes = []Box{
 	{Size: [3]float64{0.75, 1.5, 0.5}},
 }
 
-// TestFindersAgreeWithReferences checks that Tree, KyroyFinder and
-// HostLists return exactly what brute force and gonum's k-d tree return:
+// TestFindersAgreeWithReferences checks that Tree and HostLists return exactly what brute force and gonum's k-d tree return:
 // same indices, same order (ties by ID), same Dist2 bits.
 func TestFindersAgreeWithReferences(t *testing.T) {
 	seeds := 4
@@ -106,8 +105,6 @@ func TestFindersAgreeWithReferences(t *testing.T) {
 				brute := &bruteFinder{box, pos, ids}
 				gon := newGonumFinder(pos, ids, box)
 				tree, err := NewTree(pos, ids, box)
-				require.NoError(t, err)
-				kyr, err := NewKyroyFinder(pos, ids, box)
 				require.NoError(t, err)
 				queries := queryPoints(rng, box, 20)
 				const reach = 0.45
@@ -128,7 +125,7 @@ func TestFindersAgreeWithReferences(t *testing.T) {
 					for _, f := range []struct {
 						name string
 						f    Finder
-					}{{"tree", tree}, {"kyroy", kyr}, {"gonum", gon}} {
+					}{{"tree", tree}, {"gonum", gon}} {
 						got, err = f.f.Nearest(q, k, got)
 						require.NoError(t, err)
 						requireSame(t, want, got, "%s nearest k=%d %s", f.name, k, ctx)
@@ -148,7 +145,7 @@ func TestFindersAgreeWithReferences(t *testing.T) {
 					for _, f := range []struct {
 						name string
 						f    Finder
-					}{{"tree", tree}, {"kyroy", kyr}, {"gonum", gon}, {"host", host}} {
+					}{{"tree", tree}, {"gonum", gon}, {"host", host}} {
 						if f.name == "host" && r > reach {
 							continue
 						}
@@ -175,8 +172,7 @@ func TestSelectionIndependentOfInputOrder(t *testing.T) {
 		ids2[i] = ids[p]
 	}
 	builders := map[string]func(pos []float64, ids []int64) (Finder, error){
-		"tree":  func(p []float64, i []int64) (Finder, error) { return NewTree(p, i, box) },
-		"kyroy": func(p []float64, i []int64) (Finder, error) { return NewKyroyFinder(p, i, box) },
+		"tree": func(p []float64, i []int64) (Finder, error) { return NewTree(p, i, box) },
 	}
 	for name, build := range builders {
 		a, err := build(pos, ids)

@@ -15,7 +15,6 @@ type builder struct {
 func builders() []builder {
 	return []builder{
 		{"tree", func(p []float64, i []int64, b Box) (Finder, error) { return NewTree(p, i, b) }},
-		{"kyroy", func(p []float64, i []int64, b Box) (Finder, error) { return NewKyroyFinder(p, i, b) }},
 		{"host", func(p []float64, i []int64, b Box) (Finder, error) {
 			all := make([]int, len(i))
 			for j := range all {

@@ -129,21 +129,6 @@ func BenchmarkNearest(b *testing.B) {
 				}
 			}
 		})
-		b.Run(fmt.Sprintf("kyroy/n=%d", n), func(b *testing.B) {
-			g := gas(n)
-			f, err := NewKyroyFinder(g.pos, g.ids, g.box)
-			if err != nil {
-				b.Fatal(err)
-			}
-			buf := make([]Neighbor, 0, 4*benchK)
-			b.ReportAllocs()
-			b.ResetTimer()
-			for i := 0; i < b.N; i++ {
-				if buf, err = f.Nearest(g.queries[i%len(g.queries)], benchK, buf); err != nil {
-					b.Fatal(err)
-				}
-			}
-		})
 		b.Run(fmt.Sprintf("gonum/n=%d", n), func(b *testing.B) {
 			g := gas(n)
 			gb := newGonumBench(g)
@@ -223,16 +208,6 @@ func BenchmarkBuild(b *testing.B) {
 			b.ResetTimer()
 			for i := 0; i < b.N; i++ {
 				if err := tree.Rebuild(g.pos, g.ids); err != nil {
-					b.Fatal(err)
-				}
-			}
-		})
-		b.Run(fmt.Sprintf("kyroy/n=%d", n), func(b *testing.B) {
-			g := gas(n)
-			b.ReportAllocs()
-			b.ResetTimer()
-			for i := 0; i < b.N; i++ {
-				if _, err := NewKyroyFinder(g.pos, g.ids, g.box); err != nil {
 					b.Fatal(err)
 				}
 			}

@@ -22,12 +22,10 @@ func TestConcurrentQueries(t *testing.T) {
 	offsets, indices := hostRows(rng, &bruteFinder{box, pos, ids}, queries, 0.3)
 	tree, err := NewTree(pos, ids, box)
 	require.NoError(t, err)
-	kyr, err := NewKyroyFinder(pos, ids, box)
-	require.NoError(t, err)
 	host, err := NewHostLists(pos, ids, box, offsets, indices)
 	require.NoError(t, err)
 
-	for name, f := range map[string]Finder{"tree": tree, "kyroy": kyr, "host": host} {
+	for name, f := range map[string]Finder{"tree": tree, "host": host} {
 		type answer struct{ near, within []Neighbor }
 		want := make([]answer, len(queries))
 		for s, qp := range queries {
