@@ -93,6 +93,21 @@ func (d *drives) sources(s SchemeSpec, sn []feedback.Source, u units.CodeUnits) 
 	return nil, fmt.Errorf("scheme %s: unknown drive %d", s.Name, s.Drive)
 }
 
+// RemnantTableSchemeName is the name of the variant RemnantTableScheme
+// builds.
+const RemnantTableSchemeName = "terminal-momentum-table"
+
+// RemnantTableScheme is the terminal-momentum variant that takes its
+// remnant from a remnant table (feedback.RemnantTable, e.g. calibrated with
+// "ejecta remnant -calibrate" for a host's own cooling), clamped to the
+// table's grid so that every set-up density couples; label says where the
+// table came from.
+func RemnantTableScheme(tab *feedback.RemnantTable, label string) SchemeSpec {
+	return SchemeSpec{Name: RemnantTableSchemeName,
+		Description: "terminal momentum from the remnant table " + label + " (clamped to its grid)",
+		Scheme:      feedback.TerminalMomentum{Table: tab.WithOutsideGrid(feedback.ClampToGrid)}}
+}
+
 // Schemes returns every variant the runner knows, in a fixed order. A new
 // scheme in package feedback is compared by adding one line here.
 func Schemes() []SchemeSpec {

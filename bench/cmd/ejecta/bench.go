@@ -11,6 +11,7 @@ import (
 	"github.com/schollz/progressbar/v3"
 
 	"github.com/ejecta-dev/ejecta/bench"
+	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
@@ -18,6 +19,7 @@ import (
 // benchFlags are the settings of the bench command.
 type benchFlags struct {
 	suite, schemes, setups, out, gasDir string
+	remnantTable                        string
 	lengthCm, massG, velocityCmPS       float64
 	boxSize                             float64
 	neighbors, workers                  int
@@ -42,6 +44,7 @@ func runBench(args []string, stdout, stderr io.Writer) int {
 	var f benchFlags
 	fs.StringVar(&f.suite, "suite", "quick", "suite to run: quick (seconds) or full (more resolutions, longer timing)")
 	fs.StringVar(&f.schemes, "schemes", "", "comma-separated schemes to compare (default all; see -list)")
+	fs.StringVar(&f.remnantTable, "remnant-table", "", "also compare the terminal-momentum scheme with its remnant from this remnant table (\"ejecta remnant -calibrate\" writes one), as "+bench.RemnantTableSchemeName)
 	fs.StringVar(&f.setups, "setups", "", "comma-separated built-in set-ups to run (default all; see -list)")
 	fs.StringVar(&f.out, "out", "ejecta-out", "directory receiving results.json, the CSV tables and the PNG plots")
 	fs.StringVar(&f.gasDir, "gas", "", "directory of .npy arrays holding your own gas (pos, vel, mass, density, internal_energy; optional id, metallicity, stars); replaces the built-in set-ups. Every position must lie in the box of -box-size; a star outside the region the gas fills is refused")
@@ -120,6 +123,13 @@ func benchResult(f *benchFlags, stderr io.Writer) (*bench.Result, error) {
 	schemes, err := bench.SelectSchemes(splitList(f.schemes))
 	if err != nil {
 		return nil, err
+	}
+	if f.remnantTable != "" {
+		tab, err := feedback.ReadRemnantTableFile(f.remnantTable)
+		if err != nil {
+			return nil, err
+		}
+		schemes = append(schemes, bench.RemnantTableScheme(tab, f.remnantTable))
 	}
 	if f.neighbors < 0 {
 		return nil, fmt.Errorf("neighbor count %d must be positive", f.neighbors)

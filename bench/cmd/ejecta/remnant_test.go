@@ -109,3 +109,32 @@ func TestRemnantCalibrate(t *testing.T) {
 	assert.Greater(t, rows[0].ShellMomentum, rows[1].ShellMomentum, "p_sf falls with density")
 	assert.Contains(t, out.String(), "remnant table:")
 }
+
+// A calibrated remnant table joins the scheme comparison as its own
+// variant; a malformed one is refused with its line.
+func TestBenchWithRemnantTable(t *testing.T) {
+	dir := t.TempDir()
+	var out, errOut bytes.Buffer
+	require.Equal(t, 0, run([]string{"remnant", "-calibrate", "-zones", "30", "-densities", "1,100", "-metallicities", "1",
+		"-out", dir, "-quiet"}, &out, &errOut), errOut.String())
+	table := filepath.Join(dir, "remnant-table.csv")
+	benchOut := t.TempDir()
+	code, stdout, stderr := runCLI("bench", "-quiet", "-skip-speed", "-out", benchOut, "-setups", "uniform-lattice",
+		"-schemes", "terminal-momentum", "-remnant-table", table)
+	require.Equal(t, 0, code, stderr)
+	assert.Contains(t, stdout, "terminal-momentum-table")
+	res := readResult(t, benchOut)
+	found := false
+	for _, c := range res.Convergence {
+		if c.Scheme == "terminal-momentum-table" {
+			found = true
+			assert.Positive(t, c.RadialMomentumMsunKms)
+		}
+	}
+	assert.True(t, found)
+	bad := filepath.Join(dir, "bad.csv")
+	require.NoError(t, os.WriteFile(bad, []byte(feedback.RemnantTableHeader+"\n1,1,x,1,1,1,1,1,1,1\n"), 0o644))
+	code, _, stderr = runCLI("bench", "-quiet", "-skip-speed", "-out", benchOut, "-remnant-table", bad)
+	assert.NotEqual(t, 0, code)
+	assert.Contains(t, stderr, "line 2")
+}
