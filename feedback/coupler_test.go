@@ -96,7 +96,8 @@ func TestTerminalMomentumResolved(t *testing.T) {
 	// Elements of 0.5 Msun: 64 neighbors hold 32 Msun, far below the
 	// cooling mass, so no neighbor is capped and the momentum is that of
 	// energy-conserving sweep-up, between the free-ejecta momentum
-	// sqrt(2 M_ej E) (about 3.2e4 Msun km/s for 10 Msun, REFERENCES.md) and
+	// sqrt(2 M_ej E) (about 3.2e4 Msun km/s for 10 Msun and 1e51 erg,
+	// arithmetic from the definition) and
 	// sqrt(2 (M_ej + M_swept) E), the bound with all energy kinetic.
 	u := units.ParsecSolarMassKms()
 	g := uniformGas(2, 300, 0.5, 1, u)

@@ -12,7 +12,7 @@ import (
 
 func TestFreeEjectaMomentum(t *testing.T) {
 	// 10 Msun carrying 1e51 erg: sqrt(2 M E) is about 3.2e4 Msun km/s
-	// (arithmetic from the definition; REFERENCES.md).
+	// (arithmetic from the definition).
 	p := FreeEjectaMomentum(10*units.SolarMass, units.FOE) / units.MsunKms
 	assert.InDelta(t, 3.17e4, p, 0.01e4)
 }
@@ -56,9 +56,11 @@ func TestRemnantFits(t *testing.T) {
 }
 
 func TestShellFormationConsistency(t *testing.T) {
-	// REFERENCES.md: sqrt(2 * 0.28 * E * M_sf) with the Sedov kinetic
-	// fraction lands within about 10% of p_sf, M_sf = 1.54e3 Msun n^-0.26
-	// (Kim & Ostriker 2015, from memory).
+	// A check that needs no memory of the fit's momentum: the momentum
+	// sqrt(2 * 0.28 * E * M_sf) of the shell-formation mass carrying the
+	// Sedov-Taylor kinetic fraction (Chevalier 1974, ApJ 188, 501; from
+	// memory) lands within about 10% of p_sf, M_sf = 1.54e3 Msun n^-0.26
+	// (Kim & Ostriker 2015, ApJ 802, 99; from memory).
 	for _, n := range []float64{0.1, 1, 10, 100} {
 		msf := 1.54e3 * units.SolarMass * math.Pow(n, -0.26)
 		p := math.Sqrt(2*SedovKineticFraction*units.FOE*msf) / units.MsunKms

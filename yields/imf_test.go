@@ -80,9 +80,9 @@ func TestIMFSlopes(t *testing.T) {
 }
 
 // Core-collapse supernovae per Msun formed, 8–100 Msun progenitors over a
-// 0.1–100 Msun IMF. Outside values (REFERENCES.md, from memory / common
-// practice): about 0.0074 for Salpeter, 0.01–0.012 for Kroupa and Chabrier
-// ("one SN per ~100 Msun"). The Salpeter value is quoted to two figures, so
+// 0.1–100 Msun IMF. Outside values (common practice, from memory): about
+// 0.0074 for Salpeter, 0.01–0.012 for Kroupa and Chabrier ("one SN per
+// ~100 Msun"). The Salpeter value is quoted to two figures, so
 // it is checked to 1% (half a unit in the last figure is 0.7%); the others
 // against the quoted range.
 func TestSupernovaePerMsunFormed(t *testing.T) {

@@ -9,7 +9,7 @@ import (
 )
 
 // Main-sequence lifetimes near solar metallicity: about 10 Gyr at 1 Msun and
-// roughly 30–40 Myr at 8 Msun (REFERENCES.md; common practice, from memory).
+// roughly 30–40 Myr at 8 Msun (common practice, from memory).
 // "About 10 Gyr" is checked as 8–12 Gyr.
 func TestLifetimesAgainstKnownStars(t *testing.T) {
 	for _, z := range []float64{0.0134, 0.02} {

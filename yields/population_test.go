@@ -120,7 +120,8 @@ func TestCoreCollapseTiming(t *testing.T) {
 	l, err := NewLifetimes(0.0134)
 	require.NoError(t, err)
 	// No supernova before the most massive star dies; all of them by the
-	// lifetime of the lightest progenitor (8 Msun: 30–40 Myr, REFERENCES.md).
+	// lifetime of the lightest progenitor (8 Msun: 30–40 Myr; common
+	// practice, from memory).
 	early, err := p.Release(0, 0.999*l.Lifetime(100), 0.0134)
 	require.NoError(t, err)
 	assert.Zero(t, early.Channels[CoreCollapse].Events)

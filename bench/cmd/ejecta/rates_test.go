@@ -32,8 +32,8 @@ func TestRatesJSON(t *testing.T) {
 		snLo, snHi float64
 	}{
 		// Core-collapse SNe per Msun formed, 8–100 Msun over 0.1–100 Msun
-		// (REFERENCES.md, from memory / common practice): ~0.0074 Salpeter,
-		// 0.01–0.012 Kroupa and Chabrier.
+		// (common practice, from memory: "one supernova per ~100 Msun"):
+		// ~0.0074 Salpeter, 0.01–0.012 Kroupa and Chabrier.
 		{"salpeter", 0.0073, 0.0075},
 		{"kroupa", 0.010, 0.012},
 		{"chabrier", 0.010, 0.012},
