@@ -60,8 +60,17 @@
 // 1988 — once it is not, with the post-cooling heat of Thornton et al.
 // 1998 and the rest booked as radiated; the star's total is computed from
 // the coupled mass and then shared, so it does not depend on the
-// weighting, and N supernovae in a step are N remnants). Users write their
-// own Scheme and check it with package feedbacktest.
+// weighting, and N supernovae in a step are N remnants). The light
+// channels have schemes of their own: RadiationPressure, Photoionization,
+// and PhotoelectricHeating, which gives every neighbor the far-ultraviolet
+// field G0 it sees (Deposit.FUVField) and the heat dust photoelectrons
+// deposit (Bakes & Tielens 1994). KickedWinds is the decoupled-wind subgrid
+// variant explicit feedback is compared with (Springel & Hernquist 2003;
+// momentum-driven scalings of Oppenheimer & Davé 2006): it launches gas
+// drawn at random at the wind speed, paid from the supernova energy, and
+// flags it for the host to keep out of hydrodynamic forces
+// (FlagHydroDecoupled). Users write their own Scheme and check it with
+// package feedbacktest.
 //
 // # Frames and energy
 //
