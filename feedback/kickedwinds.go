@@ -443,25 +443,15 @@ func (s KickedWinds) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
 	}
 
 	// Scale every kick by the largest factor whose kinetic energy the
-	// budget pays for. The energy each element needs, max(dKE_j(f), 0), is
-	// convex in f and zero at f = 0, so the affordable factors form an
-	// interval [0, f*] that bisection finds.
+	// budget pays for. The energy the kicks need, the sum over neighbors of
+	// max(dKE_j(f), 0), is convex in the factor f and zero at f = 0, so the
+	// affordable factors form an interval [0, f*]: Newton's method from
+	// f = 1 approaches f* from above, and a last check (bisection if it
+	// fails) makes sure the budget covers the factor taken.
 	E := src.Energy
 	scale := 1.0
 	if nk > 0 && s.kineticNeed(nb, out, 1) > E {
-		lo, hi := 0.0, 1.0
-		for it := 0; it < 80 && hi-lo > 0; it++ {
-			mid := 0.5 * (lo + hi)
-			if mid == lo || mid == hi {
-				break
-			}
-			if s.kineticNeed(nb, out, mid) <= E {
-				lo = mid
-			} else {
-				hi = mid
-			}
-		}
-		scale = lo
+		scale = s.affordable(nb, out, E)
 		nb.limited = true
 	}
 	used := s.kineticNeed(nb, out, scale)
@@ -517,6 +507,62 @@ func (s KickedWinds) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
 		nb.pscale += norm(kick)
 	}
 	return 0, nil
+}
+
+// affordable is the largest factor f in [0, 1] with kineticNeed(f) <= e,
+// given kineticNeed(1) > e.
+func (s KickedWinds) affordable(nb *Neighborhood, out []Deposit, e float64) float64 {
+	if !(e > 0) {
+		return 0
+	}
+	// dKE_j(f) = a_j f^2 + b_j f + c_j, in scratch the scheme does not use.
+	a, b, c := nb.Momentum, nb.HeatCap, nb.EnergyWeight
+	src := nb.Source
+	for j := range out {
+		m := nb.Mass[j]
+		dm := nb.Weight[j] * src.Mass
+		mt := m + dm
+		k, w := out[j].Momentum, nb.RelVel[j]
+		a[j] = dot(k, k) / (2 * mt)
+		b[j] = m * dot(w, k) / mt
+		c[j] = -m * dm * dot(w, w) / (2 * mt)
+	}
+	f := 1.0
+	for it := 0; it < 200; it++ {
+		g, slope := -e, 0.0
+		for j := range a {
+			if q := (a[j]*f+b[j])*f + c[j]; q > 0 {
+				g += q
+				slope += 2*a[j]*f + b[j]
+			}
+		}
+		if g <= 0 || !(slope > 0) {
+			break
+		}
+		next := math.Max(f-g/slope, 0)
+		if !(next < f) {
+			break
+		}
+		f = next
+	}
+	for _, try := range [...]float64{f, f * (1 - 1e-12)} {
+		if s.kineticNeed(nb, out, try) <= e {
+			return try
+		}
+	}
+	lo, hi := 0.0, f
+	for it := 0; it < 200; it++ {
+		mid := 0.5 * (lo + hi)
+		if mid == lo || mid == hi {
+			break
+		}
+		if s.kineticNeed(nb, out, mid) <= e {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return lo
 }
 
 // kineticNeed is the energy the star-frame kicks held in out[j].Momentum,

@@ -441,3 +441,28 @@ func TestStepperWithKickedWindsIsBitwiseForAnyWorkerCount(t *testing.T) {
 		}
 	}
 }
+
+func TestNewSchemesAllocateNothingInSteadyState(t *testing.T) {
+	u := units.ParsecSolarMassKms()
+	g := windGas(1, 2000, 10)
+	var srcs []feedback.Source
+	for i := 0; i < 100; i++ {
+		s := windStar(int64(i+1), [3]float64{g.Pos[0][i], g.Pos[1][i], g.Pos[2][i] + 0.1}, [3]float64{5, 0, 0}, 300)
+		s.Duration = 0.1 * units.Megayear / u.TimeS() // for the light scheme
+		srcs = append(srcs, s)
+	}
+	short := feedback.DefaultKickedWinds() // 1e51 erg cannot pay every kick: the limited path too
+	short.Basis = feedback.LoadPerFormedMass
+	for _, scheme := range []feedback.Scheme{feedback.DefaultKickedWinds(), feedback.DefaultMomentumDrivenWinds(), short,
+		feedback.DefaultPhotoelectricHeating()} {
+		c, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: scheme})
+		require.NoError(t, err)
+		var out feedback.Output
+		view := g.View()
+		f := treeOf(t, g)
+		require.NoError(t, c.Couple(view, f, srcs, &out))
+		require.Empty(t, out.Problems)
+		allocs := testing.AllocsPerRun(5, func() { _ = c.Couple(view, f, srcs, &out) })
+		assert.Zero(t, allocs, "%s: allocations per call of 100 stars", scheme.Name())
+	}
+}
