@@ -40,8 +40,9 @@
  *   running returns EJECTA_ERR_BUSY and changes nothing. Separate contexts
  *   share no state and may be used from separate threads at once. The
  *   context-free functions (ejecta_version, ejecta_config_defaults,
- *   ejecta_population_defaults, ejecta_ledger_balanced) may be called from
- *   any thread at any time.
+ *   ejecta_population_defaults, ejecta_ledger_balanced, ejecta_dump_open)
+ *   may be called from any thread at any time. Audit dump sessions
+ *   (ejecta_dump_*) follow the same rule as contexts.
  *   ejecta itself may run worker threads inside a call
  *   (ejecta_config.worker_threads); they have finished when the call
  *   returns.
@@ -83,7 +84,9 @@ extern "C" {
 /* A scheme, remnant fit or weighting name is not known, or a name field is
  * not NUL-terminated inside its array. */
 #define EJECTA_ERR_UNKNOWN_NAME 3
-/* The context handle is 0, was destroyed, or is not an ejecta context. */
+/* The context handle is 0, was destroyed, or is not an ejecta context; or
+ * (ejecta_dump_* calls) the dump handle is 0, was closed, or is not a dump
+ * session. */
 #define EJECTA_ERR_INVALID_CONTEXT 4
 /* A step or apply was called before any gas was bound. */
 #define EJECTA_ERR_NO_GAS 5
@@ -131,6 +134,9 @@ extern "C" {
 /* config.remnant_table could not be read or is malformed; the message
  * names the file and the line. */
 #define EJECTA_ERR_REMNANT_TABLE 16
+/* An audit dump's directory or one of its files could not be created or
+ * written (ejecta_dump_*); the message names the path and the reason. */
+#define EJECTA_ERR_DUMP_FILE 17
 /* An internal failure: a panic in the library or in a scheme, or a fault
  * reading or writing host memory through a bad column pointer, in the
  * calling thread or in any of ejecta's worker threads. It never ends the
@@ -568,6 +574,69 @@ typedef struct ejecta_star_result {
   int64_t supernovae_ia;
 } ejecta_star_result;
 
+/* ---- audit dumps ---------------------------------------------------------
+ *
+ * A host that injects feedback with its own code (no ejecta step needed)
+ * writes one step for the conservation audit ("ejecta audit -manifest
+ * DIR/manifest.json", or package feedback/audit) through a dump session:
+ *
+ *   ejecta_dump d;
+ *   ejecta_dump_open("dump/step42", NULL, box_size, &d, why, sizeof why);
+ *   ejecta_dump_gas_before(d, &gas);    the same ejecta_gas it binds with
+ *   ... the host's own feedback sub-step, changing the gas in place ...
+ *   ejecta_dump_gas_after(d, &gas);
+ *   ejecta_dump_stars(d, &stars);       each star's release (any number of
+ *                                       calls; count 0 for none)
+ *   ejecta_dump_finish(d);              writes the manifest
+ *   ejecta_dump_close(&d);
+ *
+ * The calls only read the host's memory and write files: every snapshot is
+ * written when it is taken (the host may change its gas as soon as the call
+ * returns), and ejecta keeps no pointer. The directory then holds NumPy
+ * .npy arrays (gas_before/, gas_after/, stars/) and manifest.json, the
+ * layout documented in cgo/README.md and "go doc ./feedback/audit
+ * Manifest", in the host's code units. A dump session is used by one
+ * thread at a time (a concurrent call returns EJECTA_ERR_BUSY); separate
+ * sessions are independent. ejecta_dump_last_error gives the reason of a
+ * failed call on a session. */
+
+/* An opaque dump session handle. 0 is never a valid session. */
+typedef uint64_t ejecta_dump;
+
+/* The stars of a step, column by column (as ejecta_gas describes gas),
+ * with what each released into the gas, in code units. position,
+ * velocity and every release column are required except radiated. */
+typedef struct ejecta_star_columns {
+  /* Number of stars, >= 0. */
+  int64_t count;
+  /* Star IDs (integer columns, or integral floats). */
+  ejecta_field id;
+  ejecta_field position[3];
+  ejecta_field velocity[3];
+  /* How far the star's feedback reaches: gas farther than this from the
+   * star must not change (code length, >= 0). */
+  ejecta_field coupling_radius;
+  /* Mass released into the gas (>= 0); it moves with the star, so it
+   * brings the momentum ejecta_mass * velocity. */
+  ejecta_field ejecta_mass;
+  /* Energy released in the star's frame (explosion, wind, heat; >= 0): the
+   * gas's total energy (thermal plus lab-frame kinetic) must grow by
+   * energy + ejecta_mass * |velocity|^2 / 2 - radiated. */
+  ejecta_field energy;
+  /* Optional (data NULL: none): energy the host booked as radiated away
+   * (>= 0). */
+  ejecta_field radiated;
+  /* Number of species released (0..EJECTA_NUM_SPECIES): species[k] is the
+   * species code (of the dump's set, see ejecta_dump_open) of
+   * species_mass[k], a column of released species mass (>= 0). A species
+   * the gas tracks and no star lists counts as released zero. May be NULL
+   * when n_species is 0. */
+  int32_t n_species;
+  int32_t reserved;
+  const int32_t *species;
+  const ejecta_field *species_mass;
+} ejecta_star_columns;
+
 #ifndef EJECTA_NO_PROTOTYPES
 
 /* ---- library ---------------------------------------------------------- */
@@ -865,6 +934,92 @@ int ejecta_suggested_step(ejecta_context context, double *dt);
  * (channel out of range). */
 int ejecta_get_channel_ledger(ejecta_context context, int32_t channel,
                               ejecta_ledger *ledger);
+
+/* ---- audit dumps (see the types section) -------------------------------- */
+
+/* ejecta_dump_open starts a dump session writing into directory (a
+ * NUL-terminated path of at most 4095 bytes, created with its parents if
+ * missing; files of an earlier dump there are overwritten, and its
+ * manifest.json is removed now, so the directory is not taken for a
+ * finished dump until ejecta_dump_finish). species is the species set the
+ * species codes of the gas and star columns refer to: NULL or "" for the
+ * default set (the EJECTA_SPECIES_* codes), or a comma-separated list of
+ * chemical symbols as for ejecta_choose_species (codes 1, 2, ... in that
+ * order; 0 the total metals) — pass the same list as the host's context,
+ * if it has one. box_size is the periodic box side per axis (code length;
+ * 0 leaves an axis open), or NULL for an open box. The handle goes to
+ * *dump (0 on failure); on failure a NUL-terminated reason goes to
+ * error_text (capacity bytes; may be NULL when capacity is 0). Errors:
+ * EJECTA_ERR_NULL_POINTER (directory or dump NULL),
+ * EJECTA_ERR_INVALID_ARGUMENT (directory empty or not NUL-terminated,
+ * species list malformed: unknown symbol, an element twice, "Z" listed,
+ * more than EJECTA_NUM_SPECIES - 1 elements; box side negative or not
+ * finite), EJECTA_ERR_DUMP_FILE (the directory or its folders cannot be
+ * created). Thread safe. */
+int ejecta_dump_open(const char *directory, const char *species,
+                     const double box_size[3], ejecta_dump *dump,
+                     char *error_text, int64_t capacity);
+
+/* ejecta_dump_gas_before writes the gas as it is before the host's
+ * feedback sub-step: positions, velocities, masses, specific internal
+ * energies, IDs and the species fractions listed (codes of the dump's
+ * set), read through the descriptor's columns at this call (density and
+ * smoothing_length are not read and may be NULL; columns may be of any
+ * element type). Call it once per session. Errors:
+ * EJECTA_ERR_NULL_POINTER (gas, a required column, species lists with
+ * n_species > 0), EJECTA_ERR_INVALID_ARGUMENT (count <= 0, unknown element
+ * type, stride smaller than or not a multiple of the element, misaligned
+ * data, species code outside the set or repeated, two elements with one
+ * ID, called twice), EJECTA_ERR_BAD_VALUE (a value NaN or infinite, an
+ * ID in a float column not an integer; the message names the column and
+ * the element), EJECTA_ERR_DUMP_FILE. Nothing is written on error. */
+int ejecta_dump_gas_before(ejecta_dump dump, const ejecta_gas *gas);
+
+/* ejecta_dump_gas_after writes the gas after the host's feedback
+ * sub-step, as ejecta_dump_gas_before. The elements must be those of the
+ * gas before (the same IDs, in any order) with the same species listed;
+ * negative masses or energies are written as they are (the audit reports
+ * them). Errors: those of ejecta_dump_gas_before, and
+ * EJECTA_ERR_INVALID_ARGUMENT also for a count or species list other than
+ * the gas before's, an ID missing or new, no gas before written yet, or a
+ * second call. */
+int ejecta_dump_gas_after(ejecta_dump dump, const ejecta_gas *gas);
+
+/* ejecta_dump_stars adds stars and their releases to the dump, read
+ * through the columns of *stars at this call and kept until
+ * ejecta_dump_finish writes them. It may be called any number of times
+ * (e.g. once per star, or per channel: a star listed twice releases
+ * twice), at any point before ejecta_dump_finish; a step without stars
+ * calls it once with count 0. Errors: EJECTA_ERR_NULL_POINTER (stars, a
+ * required column, species lists with n_species > 0),
+ * EJECTA_ERR_INVALID_ARGUMENT (count < 0, unknown element type, bad stride
+ * or alignment, species code outside the set or repeated),
+ * EJECTA_ERR_BAD_VALUE (a value NaN or infinite, or a radius or release
+ * negative; the message names the column and the star). Nothing is added
+ * on error. */
+int ejecta_dump_stars(ejecta_dump dump, const ejecta_star_columns *stars);
+
+/* ejecta_dump_finish writes the stars and then manifest.json, which makes
+ * the directory a complete dump: "ejecta audit -manifest
+ * DIRECTORY/manifest.json" audits it. Afterwards only
+ * ejecta_dump_last_error and ejecta_dump_close accept the session.
+ * Errors: EJECTA_ERR_INVALID_ARGUMENT (the gas before, the gas after or
+ * the stars not written yet; already finished), EJECTA_ERR_DUMP_FILE. */
+int ejecta_dump_finish(ejecta_dump dump);
+
+/* ejecta_dump_close ends the session *dump and sets *dump to 0; the files
+ * written stay (without ejecta_dump_finish there is no manifest). Closing
+ * 0 is a no-op returning EJECTA_OK. Errors: EJECTA_ERR_NULL_POINTER,
+ * EJECTA_ERR_INVALID_CONTEXT (closed already), EJECTA_ERR_BUSY. */
+int ejecta_dump_close(ejecta_dump *dump);
+
+/* ejecta_dump_last_error writes the message of the last failed call on
+ * the session (empty after a success) as ejecta_last_error does for a
+ * context. Errors: EJECTA_ERR_NULL_POINTER (buffer NULL with
+ * capacity > 0), EJECTA_ERR_INVALID_CONTEXT, EJECTA_ERR_BUSY,
+ * EJECTA_ERR_BUFFER_TOO_SMALL (truncated; *length is the full length). */
+int ejecta_dump_last_error(ejecta_dump dump, char *buffer, int64_t capacity,
+                           int64_t *length);
 
 /* ---- ledger arithmetic -------------------------------------------------- */
 

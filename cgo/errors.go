@@ -30,6 +30,7 @@ const (
 	codeNoPopulation    int32 = 14
 	codeYieldsTable     int32 = 15
 	codeRemnantTable    int32 = 16
+	codeDumpFile        int32 = 17
 	codeInternal        int32 = 99
 )
 

@@ -139,3 +139,39 @@ func ejecta_species_count(context C.ejecta_context, count *C.int32_t) C.int {
 func ejecta_species_symbol(context C.ejecta_context, code C.int32_t, buffer *C.char, capacity C.int64_t) C.int {
 	return C.int(entrySpeciesSymbol(uint64(context), int32(code), (*byte)(unsafe.Pointer(buffer)), int64(capacity)))
 }
+
+//export ejecta_dump_open
+func ejecta_dump_open(directory, species *C.char, boxSize *C.double, dump *C.ejecta_dump, errorText *C.char, capacity C.int64_t) C.int {
+	return C.int(entryDumpOpen((*byte)(unsafe.Pointer(directory)), (*byte)(unsafe.Pointer(species)), (*[3]float64)(unsafe.Pointer(boxSize)),
+		(*uint64)(unsafe.Pointer(dump)), (*byte)(unsafe.Pointer(errorText)), int64(capacity)))
+}
+
+//export ejecta_dump_gas_before
+func ejecta_dump_gas_before(dump C.ejecta_dump, gas *C.ejecta_gas) C.int {
+	return C.int(entryDumpGasBefore(uint64(dump), (*gasABI)(unsafe.Pointer(gas))))
+}
+
+//export ejecta_dump_gas_after
+func ejecta_dump_gas_after(dump C.ejecta_dump, gas *C.ejecta_gas) C.int {
+	return C.int(entryDumpGasAfter(uint64(dump), (*gasABI)(unsafe.Pointer(gas))))
+}
+
+//export ejecta_dump_stars
+func ejecta_dump_stars(dump C.ejecta_dump, stars *C.ejecta_star_columns) C.int {
+	return C.int(entryDumpStars(uint64(dump), (*starColumnsABI)(unsafe.Pointer(stars))))
+}
+
+//export ejecta_dump_finish
+func ejecta_dump_finish(dump C.ejecta_dump) C.int {
+	return C.int(entryDumpFinish(uint64(dump)))
+}
+
+//export ejecta_dump_close
+func ejecta_dump_close(dump *C.ejecta_dump) C.int {
+	return C.int(entryDumpClose((*uint64)(unsafe.Pointer(dump))))
+}
+
+//export ejecta_dump_last_error
+func ejecta_dump_last_error(dump C.ejecta_dump, buffer *C.char, capacity C.int64_t, length *C.int64_t) C.int {
+	return C.int(entryDumpLastError(uint64(dump), (*byte)(unsafe.Pointer(buffer)), int64(capacity), (*int64)(unsafe.Pointer(length))))
+}

@@ -168,6 +168,20 @@ func abiMismatches() []string {
 	eq("star_result.supernovae_cc", unsafe.Offsetof(csr.supernovae_cc), unsafe.Offsetof(gsr.SupernovaeCC))
 	eq("star_result.supernovae_ia", unsafe.Offsetof(csr.supernovae_ia), unsafe.Offsetof(gsr.SupernovaeIa))
 
+	var cdc C.ejecta_star_columns
+	var gdc starColumnsABI
+	eq("sizeof star_columns", unsafe.Sizeof(cdc), unsafe.Sizeof(gdc))
+	eq("star_columns.id", unsafe.Offsetof(cdc.id), unsafe.Offsetof(gdc.ID))
+	eq("star_columns.position", unsafe.Offsetof(cdc.position), unsafe.Offsetof(gdc.Position))
+	eq("star_columns.velocity", unsafe.Offsetof(cdc.velocity), unsafe.Offsetof(gdc.Velocity))
+	eq("star_columns.coupling_radius", unsafe.Offsetof(cdc.coupling_radius), unsafe.Offsetof(gdc.CouplingRadius))
+	eq("star_columns.ejecta_mass", unsafe.Offsetof(cdc.ejecta_mass), unsafe.Offsetof(gdc.EjectaMass))
+	eq("star_columns.energy", unsafe.Offsetof(cdc.energy), unsafe.Offsetof(gdc.Energy))
+	eq("star_columns.radiated", unsafe.Offsetof(cdc.radiated), unsafe.Offsetof(gdc.Radiated))
+	eq("star_columns.n_species", unsafe.Offsetof(cdc.n_species), unsafe.Offsetof(gdc.NSpecies))
+	eq("star_columns.species", unsafe.Offsetof(cdc.species), unsafe.Offsetof(gdc.Species))
+	eq("star_columns.species_mass", unsafe.Offsetof(cdc.species_mass), unsafe.Offsetof(gdc.SpeciesMass))
+
 	consts := []namedCode{
 		{"EJECTA_OK", C.EJECTA_OK, int64(codeOK)},
 		{"EJECTA_ERR_NULL_POINTER", C.EJECTA_ERR_NULL_POINTER, int64(codeNullPointer)},
@@ -186,6 +200,7 @@ func abiMismatches() []string {
 		{"EJECTA_ERR_NO_POPULATION", C.EJECTA_ERR_NO_POPULATION, int64(codeNoPopulation)},
 		{"EJECTA_ERR_YIELDS_TABLE", C.EJECTA_ERR_YIELDS_TABLE, int64(codeYieldsTable)},
 		{"EJECTA_ERR_REMNANT_TABLE", C.EJECTA_ERR_REMNANT_TABLE, int64(codeRemnantTable)},
+		{"EJECTA_ERR_DUMP_FILE", C.EJECTA_ERR_DUMP_FILE, int64(codeDumpFile)},
 		{"EJECTA_ERR_INTERNAL", C.EJECTA_ERR_INTERNAL, int64(codeInternal)},
 		{"EJECTA_ABI_VERSION", C.EJECTA_ABI_VERSION, int64(abiVersion)},
 		{"EJECTA_NAME_CAPACITY", C.EJECTA_NAME_CAPACITY, nameCapacity},

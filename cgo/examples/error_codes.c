@@ -8,6 +8,7 @@
  * runs on the same context (from a second thread), a gas element whose
  * metal mass fraction is above 1, a tampered ledger, records applied
  * twice, a population step without a population, a missing yields table,
+ * an audit dump into a directory that cannot be created,
  * and a gas column the process may not read (a fault in ejecta's worker
  * threads, which must come back as an error, not end the process).
  *
@@ -63,6 +64,7 @@ static const struct {
     {EJECTA_ERR_NO_POPULATION, "EJECTA_ERR_NO_POPULATION"},
     {EJECTA_ERR_YIELDS_TABLE, "EJECTA_ERR_YIELDS_TABLE"},
     {EJECTA_ERR_REMNANT_TABLE, "EJECTA_ERR_REMNANT_TABLE"},
+    {EJECTA_ERR_DUMP_FILE, "EJECTA_ERR_DUMP_FILE"},
     {EJECTA_ERR_INTERNAL, "EJECTA_ERR_INTERNAL"},
 };
 #define N_CODES (int)(sizeof codes / sizeof codes[0])
@@ -318,6 +320,11 @@ int main(void) {
   ejecta_population_defaults(&pc);
   pc.yields_table = "/nonexistent/table.csv";
   EXPECT(ejecta_enable_population(ctx, &pc), EJECTA_ERR_YIELDS_TABLE, ctx, "missing table");
+
+  /* DUMP_FILE: an audit dump into a directory that cannot be created. */
+  ejecta_dump dump = 0;
+  EXPECT(ejecta_dump_open("/dev/null/dump", NULL, NULL, &dump, msg, sizeof msg), EJECTA_ERR_DUMP_FILE, 0, "unwritable dump directory");
+  CHECK(dump == 0, "no session after a failed open");
 
   /* INVALID_CONTEXT on a destroyed context. */
   ejecta_context stale = ctx;

@@ -20,7 +20,7 @@ module ejecta_mod
        EJECTA_ERR_NEIGHBORS = 7, EJECTA_ERR_BUFFER_TOO_SMALL = 8, EJECTA_ERR_UNKNOWN_GAS = 9, &
        EJECTA_ERR_BUSY = 10, EJECTA_ERR_UNDEPOSITED = 11, EJECTA_ERR_IMBALANCE = 12, &
        EJECTA_ERR_ALREADY_APPLIED = 13, EJECTA_ERR_NO_POPULATION = 14, EJECTA_ERR_YIELDS_TABLE = 15, &
-       EJECTA_ERR_REMNANT_TABLE = 16, EJECTA_ERR_INTERNAL = 99
+       EJECTA_ERR_REMNANT_TABLE = 16, EJECTA_ERR_DUMP_FILE = 17, EJECTA_ERR_INTERNAL = 99
   integer(c_int32_t), parameter, public :: EJECTA_ABI_VERSION = 4
   ! Element types.
   integer(c_int32_t), parameter, public :: EJECTA_FLOAT64 = 1, EJECTA_FLOAT32 = 2, &
@@ -146,6 +146,19 @@ module ejecta_mod
      integer(c_int64_t) :: supernovae_cc, supernovae_ia
   end type ejecta_star_result
 
+  ! ejecta_star_columns: the stars of a step and their releases, column by
+  ! column, for ejecta_dump_stars (radiated optional: leave its data
+  ! c_null_ptr). species is c_loc of int32 codes, species_mass c_loc of an
+  ! ejecta_field array.
+  type, bind(c), public :: ejecta_star_columns
+     integer(c_int64_t) :: count = 0
+     type(ejecta_field) :: id, position(3), velocity(3)
+     type(ejecta_field) :: coupling_radius, ejecta_mass, energy, radiated
+     integer(c_int32_t) :: n_species = 0, reserved = 0
+     type(c_ptr) :: species = c_null_ptr
+     type(c_ptr) :: species_mass = c_null_ptr
+  end type ejecta_star_columns
+
   public :: ejecta_population_defaults, ejecta_enable_population, ejecta_step_population, &
        ejecta_copy_star_results, ejecta_suggested_step, ejecta_get_channel_ledger, ejecta_c_string, &
        ejecta_choose_species, ejecta_species_count, ejecta_species_symbol
@@ -154,6 +167,9 @@ module ejecta_mod
        ejecta_copy_records, ejecta_get_ledger, ejecta_apply_step_records, &
        ejecta_apply_records, ejecta_copy_touched, ejecta_ledger_balanced
   public :: ejecta_set_name, ejecta_strided, ejecta_error_text, ejecta_create_checked
+  public :: ejecta_dump_open, ejecta_dump_gas_before, ejecta_dump_gas_after, ejecta_dump_stars, &
+       ejecta_dump_finish, ejecta_dump_close, ejecta_dump_last_error, ejecta_dump_open_checked, &
+       ejecta_dump_error_text
 
   interface
      integer(c_int) function ejecta_version(buffer, capacity, abi_version) bind(c, name='ejecta_version')
@@ -339,6 +355,57 @@ module ejecta_mod
        integer(c_int32_t), value :: channel
        type(ejecta_ledger), intent(out) :: ledger
      end function ejecta_get_channel_ledger
+
+     ! Audit dumps (ejecta.h "audit dumps"): a dump session handle is an
+     ! integer(c_int64_t), 0 when none. directory and species are
+     ! NUL-terminated (ejecta_c_string); species '' (just the NUL) is the
+     ! default set. box_size: zeros for an open box. ejecta_dump_open_checked
+     ! takes Fortran strings.
+     integer(c_int) function ejecta_dump_open(directory, species, box_size, dump, error_text, capacity) &
+          bind(c, name='ejecta_dump_open')
+       import :: c_int, c_int64_t, c_char, c_double
+       character(kind=c_char), intent(in) :: directory(*), species(*)
+       real(c_double), intent(in) :: box_size(3)
+       integer(c_int64_t), intent(out) :: dump
+       character(kind=c_char), intent(out) :: error_text(*)
+       integer(c_int64_t), value :: capacity
+     end function ejecta_dump_open
+
+     integer(c_int) function ejecta_dump_gas_before(dump, gas) bind(c, name='ejecta_dump_gas_before')
+       import :: c_int, c_int64_t, ejecta_gas
+       integer(c_int64_t), value :: dump
+       type(ejecta_gas), intent(in) :: gas
+     end function ejecta_dump_gas_before
+
+     integer(c_int) function ejecta_dump_gas_after(dump, gas) bind(c, name='ejecta_dump_gas_after')
+       import :: c_int, c_int64_t, ejecta_gas
+       integer(c_int64_t), value :: dump
+       type(ejecta_gas), intent(in) :: gas
+     end function ejecta_dump_gas_after
+
+     integer(c_int) function ejecta_dump_stars(dump, stars) bind(c, name='ejecta_dump_stars')
+       import :: c_int, c_int64_t, ejecta_star_columns
+       integer(c_int64_t), value :: dump
+       type(ejecta_star_columns), intent(in) :: stars
+     end function ejecta_dump_stars
+
+     integer(c_int) function ejecta_dump_finish(dump) bind(c, name='ejecta_dump_finish')
+       import :: c_int, c_int64_t
+       integer(c_int64_t), value :: dump
+     end function ejecta_dump_finish
+
+     integer(c_int) function ejecta_dump_close(dump) bind(c, name='ejecta_dump_close')
+       import :: c_int, c_int64_t
+       integer(c_int64_t), intent(inout) :: dump
+     end function ejecta_dump_close
+
+     integer(c_int) function ejecta_dump_last_error(dump, buffer, capacity, length) bind(c, name='ejecta_dump_last_error')
+       import :: c_int, c_int64_t, c_char
+       integer(c_int64_t), value :: dump
+       character(kind=c_char), intent(out) :: buffer(*)
+       integer(c_int64_t), value :: capacity
+       integer(c_int64_t), intent(out) :: length
+     end function ejecta_dump_last_error
   end interface
 
 contains
@@ -428,5 +495,49 @@ contains
        message(i:i) = buf(i)
     end do
   end function ejecta_create_checked
+
+  ! ejecta_dump_open_checked opens a dump session from Fortran strings
+  ! (trailing blanks dropped; species blank for the default set) and
+  ! returns the error text of a failed open in message (blank on success).
+  integer(c_int) function ejecta_dump_open_checked(directory, species, box_size, dump, message) result(rc)
+    character(len=*), intent(in) :: directory, species
+    real(c_double), intent(in) :: box_size(3)
+    integer(c_int64_t), intent(out) :: dump
+    character(len=*), intent(out) :: message
+    character(kind=c_char), allocatable :: dir_c(:), species_c(:)
+    character(kind=c_char) :: buf(512)
+    integer :: i
+    call ejecta_c_string(directory, dir_c)
+    call ejecta_c_string(species, species_c)
+    buf = c_null_char
+    rc = ejecta_dump_open(dir_c, species_c, box_size, dump, buf, int(size(buf), c_int64_t))
+    message = ' '
+    do i = 1, min(len(message), size(buf))
+       if (buf(i) == c_null_char) exit
+       message(i:i) = buf(i)
+    end do
+  end function ejecta_dump_open_checked
+
+  ! ejecta_dump_error_text returns the last error message of a dump session
+  ! as a Fortran string (up to 1023 characters).
+  function ejecta_dump_error_text(dump) result(text)
+    integer(c_int64_t), intent(in) :: dump
+    character(len=:), allocatable :: text
+    character(kind=c_char) :: buf(1024)
+    integer(c_int64_t) :: length
+    integer(c_int) :: rc
+    integer :: i, n
+    buf = c_null_char
+    rc = ejecta_dump_last_error(dump, buf, int(size(buf), c_int64_t), length)
+    n = 0
+    do i = 1, size(buf)
+       if (buf(i) == c_null_char) exit
+       n = i
+    end do
+    allocate(character(len=n) :: text)
+    do i = 1, n
+       text(i:i) = buf(i)
+    end do
+  end function ejecta_dump_error_text
 
 end module ejecta_mod
