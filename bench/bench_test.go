@@ -35,6 +35,7 @@ func BenchmarkSchemes(b *testing.B) {
 			var floor TouchFloor
 			var out feedback.Output
 			var touched []feedback.Touched
+			var applier feedback.Applier
 			var tFloor, tScheme time.Duration
 			b.ResetTimer()
 			for i := 0; i < b.N; i++ {
@@ -46,7 +47,7 @@ func BenchmarkSchemes(b *testing.B) {
 				if err := cp.Couple(gas, tree, sources, &out); err != nil {
 					b.Fatal(err)
 				}
-				if touched, _, err = feedback.Apply(gas, out.Records, touched); err != nil {
+				if touched, _, err = applier.Apply(gas, out.Records, touched); err != nil {
 					b.Fatal(err)
 				}
 				tFloor += t1.Sub(t0)

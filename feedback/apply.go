@@ -51,6 +51,21 @@ type ApplyReport struct {
 	ShortfallElements int
 }
 
+// Applier adds records to the gas in place (Apply), keeping its ordering
+// scratch from call to call, so applying every step allocates nothing once
+// the scratch has grown. The zero value is ready to use; one Applier serves
+// one call at a time.
+type Applier struct {
+	keys []applyKey
+}
+
+// applyKey is the order Apply sums in, with the record it stands for.
+type applyKey struct {
+	gas, star int64
+	channel   int32
+	index     int32
+}
+
 // Apply adds records to the gas in place. It orders the records by gas
 // ID, star ID and channel (without moving them), then sums each element's
 // records in that fixed order, so the result is bitwise the same whatever
@@ -66,27 +81,7 @@ type ApplyReport struct {
 // two indices, the same gas, star and channel twice, non-finite values,
 // negative mass) fails the call and leaves the gas untouched. touched (may
 // be nil) is reused to return the timestep help, one entry per element, in
-// gas-ID order. Apply allocates its ordering scratch on every call; an
-// Applier keeps it.
-func Apply(gas *Gas, records []Record, touched []Touched) ([]Touched, ApplyReport, error) {
-	var a Applier
-	return a.Apply(gas, records, touched)
-}
-
-// Applier applies records like Apply, keeping its scratch from call to
-// call. One Applier serves one call at a time.
-type Applier struct {
-	keys []applyKey
-}
-
-// applyKey is the order Apply sums in, with the record it stands for.
-type applyKey struct {
-	gas, star int64
-	channel   int32
-	index     int32
-}
-
-// Apply is the function Apply with reused scratch.
+// gas-ID order.
 func (ap *Applier) Apply(gas *Gas, records []Record, touched []Touched) ([]Touched, ApplyReport, error) {
 	var rep ApplyReport
 	touched = touched[:0]

@@ -185,7 +185,7 @@ func TestStepperSingleStarHundredMyr(t *testing.T) {
 			require.NoError(t, st.Step(view, f, []feedback.StarParticle{star}, uint64(step), dt, &out))
 			require.Empty(t, out.Problems)
 			require.NoError(t, out.Ledger.Balanced(1e-12))
-			_, rep, err := feedback.Apply(view, out.Records, nil)
+			_, rep, err := new(feedback.Applier).Apply(view, out.Records, nil)
 			require.NoError(t, err)
 			assert.Zero(t, rep.Shortfall)
 			total.Add(&out.Ledger)
@@ -316,7 +316,7 @@ func TestStepperBitwiseForAnyWorkerCount(t *testing.T) {
 			view := g.View()
 			require.NoError(t, st.Step(view, f, stars, 7, myr, &out))
 			require.NoError(t, out.Ledger.Balanced(1e-12))
-			_, _, err = feedback.Apply(view, out.Records, nil)
+			_, _, err = new(feedback.Applier).Apply(view, out.Records, nil)
 			require.NoError(t, err)
 			if radius != 0 {
 				continue // a different neighborhood; balanced is all we ask

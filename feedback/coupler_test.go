@@ -70,7 +70,7 @@ func coupleOnce(t *testing.T, g *audit.GasArrays, cfg feedback.Config, srcs []fe
 	require.NoError(t, c.Couple(view, f, srcs, out))
 	require.Empty(t, out.Problems)
 	require.NoError(t, out.Ledger.Balanced(1e-12))
-	_, rep, err := feedback.Apply(view, out.Records, nil)
+	_, rep, err := new(feedback.Applier).Apply(view, out.Records, nil)
 	require.NoError(t, err)
 	return out, rep
 }
@@ -240,7 +240,7 @@ func TestArrayOfStructsFloat32Host(t *testing.T) {
 	src := supernova(9, u)
 	require.NoError(t, c.Couple(gas, f, []feedback.Source{src}, &out))
 	require.NoError(t, out.Ledger.Balanced(1e-12))
-	_, _, err = feedback.Apply(gas, out.Records, nil)
+	_, _, err = new(feedback.Applier).Apply(gas, out.Records, nil)
 	require.NoError(t, err)
 
 	// The same deposit on the struct-of-arrays copy gives the same gas.
@@ -351,7 +351,7 @@ func TestApplyRejectsBadRecordsWithoutWriting(t *testing.T) {
 	} {
 		recs := append([]feedback.Record(nil), out.Records...)
 		bad(&recs[len(recs)-1])
-		_, _, err := feedback.Apply(g.View(), recs, nil)
+		_, _, err := new(feedback.Applier).Apply(g.View(), recs, nil)
 		require.Error(t, err)
 		assert.Equal(t, before.Mass, g.Mass)
 		assert.Equal(t, before.Energy, g.Energy)
@@ -407,10 +407,10 @@ func TestIDIndexResolvesRecordsFromAnotherRank(t *testing.T) {
 	require.NoError(t, err)
 	recs := append([]feedback.Record(nil), out.Records...)
 	require.NoError(t, x.Resolve(recs))
-	_, _, err = feedback.Apply(rev.View(), recs, nil)
+	_, _, err = new(feedback.Applier).Apply(rev.View(), recs, nil)
 	require.NoError(t, err)
 	ref := g.Clone()
-	_, _, err = feedback.Apply(ref.View(), append([]feedback.Record(nil), out.Records...), nil)
+	_, _, err = new(feedback.Applier).Apply(ref.View(), append([]feedback.Record(nil), out.Records...), nil)
 	require.NoError(t, err)
 	for i := 0; i < n; i++ {
 		assert.Equal(t, ref.Mass[i], rev.Mass[n-1-i])
@@ -450,7 +450,7 @@ func TestApplierRejectsDuplicatesAndKeepsRecordOrder(t *testing.T) {
 	recs := append([]feedback.Record(nil), out.Records...)
 	before := g.Clone()
 	twice := append(append([]feedback.Record(nil), recs...), recs[3])
-	_, _, err := feedback.Apply(g.View(), twice, nil)
+	_, _, err := new(feedback.Applier).Apply(g.View(), twice, nil)
 	require.ErrorContains(t, err, "applied twice")
 	assert.Equal(t, before.Mass, g.Mass, "nothing written")
 

@@ -83,14 +83,15 @@
 // negative (gas already moving outward fast), all the star's kicks are
 // scaled down together, which keeps momentum conserved (FlagLimited).
 //
-// # Records, Apply and the ledger
+// # Records, the Applier and the ledger
 //
 // Couple writes Records (gas index and ID, star ID, dm, dm per species,
 // lab-frame dp, total energy change, heat, flags, kick and heating for the
 // host's timestep limiter) and a Ledger: In = Deposited + Radiated +
 // Undeposited to round-off, with a star that has no gas around it returned
-// undeposited. Records can be applied in place (Apply) or routed to the rank
-// that owns a ghost element first (IDIndex). Apply sums each element's
+// undeposited. Records can be applied in place (Applier.Apply, which keeps its
+// scratch from step to step) or routed to the rank
+// that owns a ghost element first (IDIndex). The Applier sums each element's
 // records in a fixed order (gas ID, then star ID, then channel) and sets the
 // internal energy so the element's total energy grows by exactly the
 // records' energy: the final gas is bitwise the same for any number of

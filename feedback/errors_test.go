@@ -100,7 +100,7 @@ func TestErrorKinds(t *testing.T) {
 		}, []error{feedback.ErrNoNeighbors, feedback.ErrUndeposited}},
 		{"record for an element the gas lacks", func(t *testing.T) error {
 			g := uniformGas(1, 10, 10, 1, u)
-			_, _, err := feedback.Apply(g.View(), []feedback.Record{{GasIndex: 10, GasID: 1}}, nil)
+			_, _, err := new(feedback.Applier).Apply(g.View(), []feedback.Record{{GasIndex: 10, GasID: 1}}, nil)
 			return err
 		}, []error{feedback.ErrUnknownGas}},
 		{"record for an ID not held here", func(t *testing.T) error {
@@ -113,7 +113,7 @@ func TestErrorKinds(t *testing.T) {
 			g := uniformGas(1, 10, 10, 1, u)
 			r := feedback.Record{GasIndex: 0, GasID: g.ID[0]}
 			r.Mass = -1
-			_, _, err := feedback.Apply(g.View(), []feedback.Record{r}, nil)
+			_, _, err := new(feedback.Applier).Apply(g.View(), []feedback.Record{r}, nil)
 			return err
 		}, []error{feedback.ErrBadValue}},
 		{"unknown scheme", func(t *testing.T) error {

@@ -49,7 +49,8 @@ func ExampleCoupler_Couple() {
 	if err := coupler.Couple(gas, finder, []feedback.Source{sn}, &out); err != nil {
 		panic(err)
 	}
-	if _, _, err := feedback.Apply(gas, out.Records, nil); err != nil {
+	var applier feedback.Applier // keep it from step to step
+	if _, _, err := applier.Apply(gas, out.Records, nil); err != nil {
 		panic(err)
 	}
 	fmt.Println("records:", len(out.Records))

@@ -427,7 +427,7 @@ func TestStepperWithKickedWindsIsBitwiseForAnyWorkerCount(t *testing.T) {
 			}
 		}
 		assert.Positive(t, decoupled)
-		_, _, err = feedback.Apply(view, out.Records, nil)
+		_, _, err = new(feedback.Applier).Apply(view, out.Records, nil)
 		require.NoError(t, err)
 		if ref == nil {
 			ref = g

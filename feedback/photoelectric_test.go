@@ -301,7 +301,7 @@ func TestStepperLightsTheGasWithThePopulationsFarUltraviolet(t *testing.T) {
 			} else {
 				assert.Zero(t, pe.Heat)
 			}
-			touched, _, err := feedback.Apply(view, out.Records, nil)
+			touched, _, err := new(feedback.Applier).Apply(view, out.Records, nil)
 			require.NoError(t, err)
 			for _, tc := range touched {
 				assert.Greater(t, tc.FUVField, 0.0, "every touched element was lit")

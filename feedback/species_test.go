@@ -47,7 +47,7 @@ func TestStepperWithChosenSpecies(t *testing.T) {
 	view := g.View()
 	require.NoError(t, st.Step(view, f, []feedback.StarParticle{star}, 0, 30*myr, &out))
 	require.NoError(t, out.Ledger.Balanced(1e-12))
-	_, _, err = feedback.Apply(view, out.Records, nil)
+	_, _, err = new(feedback.Applier).Apply(view, out.Records, nil)
 	require.NoError(t, err)
 
 	gained := func(c int) float64 {

@@ -36,7 +36,8 @@ func ExampleStepper_Step() {
 	if err := stepper.Step(view, finder, []feedback.StarParticle{star}, 0, myr, &out); err != nil {
 		panic(err)
 	}
-	if _, _, err := feedback.Apply(view, out.Records, nil); err != nil {
+	var applier feedback.Applier // keep it from step to step
+	if _, _, err := applier.Apply(view, out.Records, nil); err != nil {
 		panic(err)
 	}
 	fmt.Println("balanced:", out.Ledger.Balanced(1e-12) == nil)

@@ -57,7 +57,7 @@ func TestStochasticHeatingGivesTheJump(t *testing.T) {
 			require.Empty(t, out.Problems)
 			require.NoError(t, out.Ledger.Balanced(1e-12))
 			before := append([]float64(nil), g.Energy...)
-			_, _, err := feedback.Apply(view, out.Records, nil)
+			_, _, err := new(feedback.Applier).Apply(view, out.Records, nil)
 			require.NoError(t, err)
 			for _, r := range out.Records {
 				if r.Flags&feedback.FlagStochastic == 0 {

@@ -119,7 +119,7 @@ func couple(scheme feedback.Scheme, sc Scenario, opts Options, workers int, sour
 	if err := c.Couple(view, f, sources, &r.out); err != nil {
 		return nil, err
 	}
-	_, r.report, err = feedback.Apply(view, r.out.Records, nil)
+	_, r.report, err = new(feedback.Applier).Apply(view, r.out.Records, nil)
 	if err != nil {
 		return nil, err
 	}
