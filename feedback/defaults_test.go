@@ -1,6 +1,7 @@
 package feedback_test
 
 import (
+	"math"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -53,6 +54,45 @@ func TestZeroSettingsMeanZero(t *testing.T) {
 		cfg.MaxSupernovaePerStep = 0
 		_, err = feedback.NewStepper(cfg)
 		assert.ErrorIs(t, err, feedback.ErrInvalidArgument)
+	})
+	t.Run("scheme options", func(t *testing.T) {
+		o := feedback.DefaultSchemeOptions()
+		for _, tc := range []struct {
+			name string
+			want feedback.Scheme
+		}{
+			{"radiation-pressure", feedback.DefaultRadiationPressure()},
+			{"stellar-winds", feedback.DefaultWinds(feedback.KimOstriker2015)},
+			{"photoionization", feedback.Photoionization{}},
+		} {
+			s, err := feedback.SchemeByName(tc.name, o)
+			require.NoError(t, err)
+			assert.Equal(t, tc.want, s, tc.name)
+		}
+		o.MaxInfraredBoost, o.PhotonReach, o.WindEventEnergy = math.Inf(1), 500, 1e49
+		s, err := feedback.SchemeByName("radiation-pressure", o)
+		require.NoError(t, err)
+		assert.Equal(t, math.Inf(1), s.(feedback.RadiationPressure).MaxInfraredBoost)
+		s, err = feedback.SchemeByName("photoionization", o)
+		require.NoError(t, err)
+		assert.Equal(t, feedback.Photoionization{Reach: 500}, s)
+		s, err = feedback.SchemeByName("stellar-winds", o)
+		require.NoError(t, err)
+		assert.Equal(t, 1e49, s.(feedback.Winds).EventEnergy)
+		for _, tc := range []struct {
+			name   string
+			change func(o *feedback.SchemeOptions)
+		}{
+			{"radiation-pressure", func(o *feedback.SchemeOptions) { o.MaxInfraredBoost = 0 }},
+			{"radiation-pressure", func(o *feedback.SchemeOptions) { o.MaxInfraredBoost = math.NaN() }},
+			{"stellar-winds", func(o *feedback.SchemeOptions) { o.WindEventEnergy = 0 }},
+			{"photoionization", func(o *feedback.SchemeOptions) { o.PhotonReach = -1 }},
+		} {
+			o := feedback.DefaultSchemeOptions()
+			tc.change(&o)
+			_, err := feedback.SchemeByName(tc.name, o)
+			assert.ErrorIs(t, err, feedback.ErrInvalidArgument, tc.name)
+		}
 	})
 	t.Run("photoheating", func(t *testing.T) {
 		pop, err := yields.NewPopulation(yields.DefaultConfig())

@@ -15,13 +15,27 @@ type SchemeOptions struct {
 	// TemperatureJump (K) sets stochastic heating.
 	Seed            uint64
 	TemperatureJump float64
+	// MaxInfraredBoost bounds radiation pressure's infrared trapping
+	// factor (RadiationPressure.MaxInfraredBoost): at least 1, +Inf for
+	// no bound.
+	MaxInfraredBoost float64
+	// PhotonReach bounds photoionization's search for gas to ionize
+	// (Photoionization.Reach); zero keeps it to the coupler's neighbors.
+	PhotonReach int
+	// WindEventEnergy is the energy in erg of one remnant stellar winds
+	// count their energy in (Winds.EventEnergy).
+	WindEventEnergy float64
 }
 
 // DefaultSchemeOptions are the published defaults: the Kim & Ostriker 2015
-// fit, the Sedov–Taylor kinetic fraction SedovKineticFraction and
-// DefaultTemperatureJump, with seed 0.
+// fit, the Sedov–Taylor kinetic fraction SedovKineticFraction,
+// DefaultTemperatureJump, the infrared boost bound and wind event energy
+// of DefaultRadiationPressure and DefaultWinds, no photon search growth,
+// with seed 0.
 func DefaultSchemeOptions() SchemeOptions {
-	return SchemeOptions{Fit: KimOstriker2015, KineticFraction: SedovKineticFraction, TemperatureJump: DefaultTemperatureJump}
+	return SchemeOptions{Fit: KimOstriker2015, KineticFraction: SedovKineticFraction, TemperatureJump: DefaultTemperatureJump,
+		MaxInfraredBoost: DefaultRadiationPressure().MaxInfraredBoost, PhotonReach: Photoionization{}.Reach,
+		WindEventEnergy: DefaultWinds(KimOstriker2015).EventEnergy}
 }
 
 // SchemeNames lists the built-in schemes' names, as Name returns them.
@@ -51,8 +65,9 @@ func kickedWindsVariants() []KickedWinds {
 }
 
 // SchemeByName builds a built-in scheme from its name and options (start
-// from DefaultSchemeOptions); radiation pressure takes its defaults
-// (DefaultRadiationPressure). The scheme is checked (Validate).
+// from DefaultSchemeOptions); every option is used as given (zero
+// included), and the scheme is checked (Validate). Radiation pressure
+// takes its opacities from DefaultRadiationPressure.
 func SchemeByName(name string, o SchemeOptions) (Scheme, error) {
 	switch name {
 	case ThermalDump{}.Name():
@@ -68,13 +83,15 @@ func SchemeByName(name string, o SchemeOptions) (Scheme, error) {
 	case DelayedCooling{}.Name():
 		return DelayedCooling{}, nil
 	case Winds{}.Name():
-		w := DefaultWinds(o.Fit)
-		w.Table = o.Table
-		return w, nil
+		w := Winds{Fit: o.Fit, Table: o.Table, EventEnergy: o.WindEventEnergy}
+		return w, w.Validate()
 	case RadiationPressure{}.Name():
-		return DefaultRadiationPressure(), nil
+		r := DefaultRadiationPressure()
+		r.MaxInfraredBoost = o.MaxInfraredBoost
+		return r, r.Validate()
 	case Photoionization{}.Name():
-		return Photoionization{}, nil
+		p := Photoionization{Reach: o.PhotonReach}
+		return p, p.Validate()
 	case PhotoelectricHeating{}.Name():
 		return DefaultPhotoelectricHeating(), nil
 	}
