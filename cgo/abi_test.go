@@ -148,10 +148,27 @@ func TestConfigErrors(t *testing.T) {
 		{"NaN length", func(c *configABI) { c.LengthCm = math.NaN() }, codeInvalidArgument, "units"},
 		{"zero mass unit", func(c *configABI) { c.MassG = 0 }, codeInvalidArgument, "units"},
 		{"negative count", func(c *configABI) { c.NeighborCount = -1 }, codeInvalidArgument, "neighbor_count"},
+		{"zero count", func(c *configABI) { c.NeighborCount = 0 }, codeInvalidArgument, "neighbor_count 0 must be >= 1"},
+		{"zero count in radius mode", func(c *configABI) { c.NeighborCount, c.CouplingRadius = 0, 3 }, codeInvalidArgument, "neighbor_count"},
+		{"empty remnant fit", func(c *configABI) { c.RemnantFit = [nameCapacity]byte{} }, codeUnknownName, "remnant fit \"\""},
+		{"empty weighting", func(c *configABI) { c.Weighting = [nameCapacity]byte{} }, codeUnknownName, "weighting \"\""},
+		{"empty scheme", func(c *configABI) { c.Scheme = [nameCapacity]byte{} }, codeUnknownName, "scheme \"\""},
 		{"NaN radius", func(c *configABI) { c.CouplingRadius = math.NaN() }, codeInvalidArgument, "coupling_radius"},
 		{"negative box", func(c *configABI) { c.BoxSize[1] = -1 }, codeInvalidArgument, "box"},
 		{"too many workers", func(c *configABI) { c.WorkerThreads = 5000 }, codeInvalidArgument, "worker_threads"},
+		{"zero workers", func(c *configABI) { c.WorkerThreads = 0 }, codeInvalidArgument, "worker_threads 0 outside 1..4096"},
 		{"kinetic fraction", func(c *configABI) { c.KineticFraction = 1.5 }, codeInvalidArgument, "kinetic_fraction"},
+		{"zero kinetic fraction", func(c *configABI) { c.KineticFraction = 0 }, codeOK, ""},
+		{"NaN kinetic fraction", func(c *configABI) { c.KineticFraction = math.NaN() }, codeInvalidArgument, "kinetic_fraction"},
+		{"infrared boost below 1", func(c *configABI) { c.MaxInfraredBoost = 0.5 }, codeInvalidArgument, "max_infrared_boost 0.5"},
+		{"zero infrared boost", func(c *configABI) { c.MaxInfraredBoost = 0 }, codeInvalidArgument, "max_infrared_boost"},
+		{"NaN infrared boost", func(c *configABI) { c.MaxInfraredBoost = math.NaN() }, codeInvalidArgument, "max_infrared_boost"},
+		{"unbounded infrared boost", func(c *configABI) { c.MaxInfraredBoost = math.Inf(1) }, codeOK, ""},
+		{"no infrared boost", func(c *configABI) { c.MaxInfraredBoost = 1 }, codeOK, ""},
+		{"zero wind event energy", func(c *configABI) { c.WindEventEnergyErg = 0 }, codeInvalidArgument, "wind_event_energy_erg"},
+		{"infinite wind event energy", func(c *configABI) { c.WindEventEnergyErg = math.Inf(1) }, codeInvalidArgument, "wind_event_energy_erg"},
+		{"negative photon reach", func(c *configABI) { c.PhotonReach = -1 }, codeInvalidArgument, "photon_reach"},
+		{"photon reach", func(c *configABI) { c.PhotonReach = 5000 }, codeOK, ""},
 		{"isotropy flag", func(c *configABI) { c.IsotropyCorrection = 2 }, codeInvalidArgument, "isotropy"},
 	}
 	for _, tc := range tests {
@@ -401,9 +418,9 @@ func TestRecordsFromAnotherRank(t *testing.T) {
 // Whatever the input, no call may end in an internal error (a recovered
 // panic), and a step that succeeds must leave a balanced ledger.
 func FuzzEntryPoints(f *testing.F) {
-	f.Add("terminal-momentum", "", int64(27), int64(88), uint8(1), uint64(1), int32(8), 0.0, int64(3))
+	f.Add("terminal-momentum", "kernel-volume", int64(27), int64(88), uint8(1), uint64(1), int32(8), 0.0, int64(3))
 	f.Add("kinetic", "solid-angle", int64(64), int64(96), uint8(0), uint64(2), int32(16), 2.5, int64(5))
-	f.Add("thermal-dump", "kernel-volume", int64(8), int64(4), uint8(2), uint64(3), int32(0), 0.0, int64(1))
+	f.Add("thermal-dump", "kernel-volume", int64(8), int64(4), uint8(2), uint64(3), int32(2), 0.0, int64(1))
 	f.Add("nonsense", "", int64(-1), int64(0), uint8(9), uint64(4), int32(-3), -1.0, int64(0))
 	f.Add("kinetic", "", int64(40), int64(48), uint8(3), uint64(5), int32(4), math.NaN(), int64(-2))
 	f.Fuzz(func(t *testing.T, scheme, weighting string, count, stride int64, typ uint8, seed uint64, k int32, radius float64, nStars int64) {

@@ -28,7 +28,16 @@
  * - Units: every quantity passed in or out is in the host's code units, as
  *   declared once in ejecta_config (cm, g and cm/s per code unit of length,
  *   mass and velocity; time is length/velocity, energy mass*velocity^2,
- *   density mass/length^3, specific energy velocity^2).
+ *   density mass/length^3, specific energy velocity^2), except settings
+ *   whose name or comment states their unit (length_cm, mass_g,
+ *   velocity_cm_per_s, wind_event_energy_erg, the IMF masses in Msun).
+ * - Configs: every field of ejecta_config and ejecta_population_config
+ *   means what it says, zero included: no value stands for "the
+ *   default", and a value that has no meaning (a neighbor count of 0) is
+ *   refused. Fill a config with ejecta_config_defaults or
+ *   ejecta_population_defaults, which write the library's defaults into
+ *   every field, then change what you need; a config left zeroed is
+ *   refused (its units are 0).
  * - Indices are 0-based everywhere (Fortran hosts subtract 1).
  * - Ownership: ejecta never keeps or frees a pointer handed to it except the
  *   gas columns bound with ejecta_bind_gas, which it reads and writes until
@@ -68,9 +77,13 @@
 extern "C" {
 #endif
 
-/* Version of this header's binary interface: bumped when a struct layout or
- * a function signature changes. */
-#define EJECTA_ABI_VERSION 4
+/* Version of this header's binary interface: bumped when a struct layout,
+ * a function signature or the meaning of a field changes. 5: every config
+ * field means what it says, zero included (no zero stands for a default;
+ * start from ejecta_config_defaults / ejecta_population_defaults), and
+ * ejecta_config gains photon_reach, max_infrared_boost and
+ * wind_event_energy_erg. */
+#define EJECTA_ABI_VERSION 5
 
 /* ---- error codes ---------------------------------------------------- */
 
@@ -232,41 +245,57 @@ extern "C" {
 typedef uint64_t ejecta_context;
 
 /* Everything a context is created with. Fill it with ejecta_config_defaults
- * first, then change what you need. */
+ * first, then change what you need: every field is used as it is (the
+ * defaults named below are what ejecta_config_defaults writes). */
 typedef struct ejecta_config {
   /* Code units: cm, g and cm/s per code unit of length, mass and velocity.
-   * Finite and positive. */
+   * Finite and positive. Default 1, 1, 1 (cgs). */
   double length_cm;
   double mass_g;
   double velocity_cm_per_s;
   /* Kinetic scheme: fraction of the energy handed out as radial kinetic
-   * energy, in [0, 1]; 0 means the Sedov-Taylor value 0.28. Ignored by the
-   * other schemes. */
+   * energy, in [0, 1]; 0 gives no kinetic energy (all heat). Default the
+   * Sedov-Taylor value 0.28. Ignored by the other schemes. */
   double kinetic_fraction;
   /* Radius mode: when > 0, each star couples to every gas element within
    * this distance (code length), and neighbor_count is ignored. With
-   * host rows, the members of the row within the radius. */
+   * host rows, the members of the row within the radius. 0 (default):
+   * count mode. */
   double coupling_radius;
-  /* Periodic box side per axis (code length); 0 leaves the axis open. */
+  /* Periodic box side per axis (code length); 0 leaves the axis open
+   * (default). */
   double box_size[3];
   /* Seed of the counter-based random streams: the draws of stochastic
    * schemes (stochastic-heating) and the supernovae of population steps.
    * Every draw is keyed by (seed, star ID, the step_index the host passes
    * to the step), never by how many calls a context has run, so a
    * restarted context, or a rank that skipped a step because it had no
-   * stars, draws the same numbers for a star as one that ran through. */
+   * stars, draws the same numbers for a star as one that ran through.
+   * Default 0. */
   uint64_t seed;
   /* Count mode: each star couples to its neighbor_count nearest gas
    * elements (host rows: nearest of its row, which must be at least that
-   * long). 0 means 32. Must be >= 0. */
+   * long). At least 1 (also in radius mode, where it is not used).
+   * Default 32. */
   int32_t neighbor_count;
-  /* Goroutines used inside a step; 0 means 1; at most 4096. Results do not
-   * depend on it. */
+  /* Threads ejecta uses inside a step, 1 to 4096. Default 1. Results do
+   * not depend on it. */
   int32_t worker_threads;
   /* 1: apply the isotropy correction to weights and momenta (default);
    * 0: do not (for comparisons). */
   int32_t isotropy_correction;
-  int32_t reserved;
+  /* Photoionization (the scheme, and the channel of population steps):
+   * while a star's ionizing photons are more than its nearest gas can
+   * absorb, ejecta's own finder searches further out, nearest first,
+   * until they are absorbed, up to photon_reach elements in all, so the
+   * ionized mass reaches the Stromgren mass however finely the gas is
+   * resolved (with host rows the search ends with the row). Photons the
+   * reached gas cannot absorb are returned as escaped. 0 (default), or a
+   * value not above the neighbors a star couples to, keeps the photons to
+   * those neighbors. With growth the result depends on the gas a rank
+   * holds: an MPI host must hold ghost gas out to the Stromgren radius
+   * for results to be the same on any number of ranks. >= 0. */
+  int32_t photon_reach;
   /* NUL-terminated names: scheme "thermal-dump", "kinetic",
    * "terminal-momentum", "stochastic-heating", "delayed-cooling" (a
    * thermal dump whose records ask the host to hold cooling),
@@ -280,8 +309,10 @@ typedef struct ejecta_config {
    * appended (loading 2 times the star's new_stellar_mass); remnant_fit
    * (terminal-momentum and stellar-winds)
    * "kim-ostriker-2015" or "cioffi-mckee-bertschinger-1988"; weighting
-   * "kernel-volume" or "solid-angle". An empty remnant_fit or weighting
-   * takes the default (kim-ostriker-2015, kernel-volume). */
+   * "kernel-volume" or "solid-angle". Every name must be given (an empty
+   * name is unknown). Defaults terminal-momentum, kim-ostriker-2015,
+   * kernel-volume. The remnant fit (or remnant_table) is also that of the
+   * winds of population steps. */
   char scheme[EJECTA_NAME_CAPACITY];
   char remnant_fit[EJECTA_NAME_CAPACITY];
   char weighting[EJECTA_NAME_CAPACITY];
@@ -291,8 +322,20 @@ typedef struct ejecta_config {
    * terminal-momentum and stellar-winds schemes take the remnant from it
    * instead of remnant_fit. Gas outside the table's grid returns the
    * star's release undeposited (EJECTA_ERR_UNDEPOSITED). Read once, at
-   * ejecta_create; errors: EJECTA_ERR_REMNANT_TABLE. */
+   * ejecta_create; errors: EJECTA_ERR_REMNANT_TABLE. Default NULL. */
   const char *remnant_table;
+  /* Radiation pressure (the scheme, and the channel of population steps):
+   * the bound on the infrared trapping factor 1 + tau_IR that boosts the
+   * momentum of the absorbed light beyond L/c (radiation-hydrodynamic
+   * studies find at most a few times L/c). At least 1 (1: no infrared
+   * boost); INFINITY leaves it unbounded. Default 3. */
+  double max_infrared_boost;
+  /* Stellar winds (the scheme, and the wind channels of population
+   * steps): the energy of one remnant the wind energy is counted in, in
+   * erg whatever the code units; the wind couples as energy/this many
+   * remnants of the remnant fit or table. Finite and > 0. Default 1e51
+   * (one supernova's). */
+  double wind_event_energy_erg;
 } ejecta_config;
 
 /* One column of the host's gas: element i is at byte address
@@ -493,34 +536,36 @@ typedef struct ejecta_touched {
  * channel and keeps records and ledger exactly as ejecta_step does.
  *
  * The population has its own struct and call rather than fields of
- * ejecta_config so that ejecta_config's layout, and every host that fills
- * it, stays as it is: a context without a population behaves exactly as
+ * ejecta_config: a context without a population behaves exactly as
  * before, and a host that wants population steps adds one call after
  * ejecta_create. The scheme, remnant fit, weighting, neighbors, units,
  * box, workers and seed of the context's ejecta_config apply: the scheme
- * couples the supernovae, winds use the remnant fit of the scheme (when it
- * has one), radiation pressure and photoionization their built-in
- * schemes. */
+ * couples the supernovae; winds use remnant_fit (or remnant_table) and
+ * wind_event_energy_erg, radiation pressure max_infrared_boost and
+ * photoionization photon_reach, as the schemes of those names do;
+ * photoelectric heating its built-in scheme. */
 
 /* A stellar population model. Fill it with ejecta_population_defaults
- * first, then change what you need. */
+ * first, then change what you need: every field is used as it is (the
+ * defaults named below are what ejecta_population_defaults writes). */
 typedef struct ejecta_population_config {
   /* NUL-terminated initial mass function of the built-in population:
    * "salpeter" (Salpeter 1955), "kroupa" (Kroupa 2001) or "chabrier"
-   * (Chabrier 2003); empty means kroupa. */
+   * (Chabrier 2003). Default kroupa. */
   char imf[EJECTA_NAME_CAPACITY];
-  /* IMF mass range in Msun (whatever the code units); 0 means 0.1 and
-   * 100. Finite, >= 0, min < max. */
+  /* IMF mass range in Msun (whatever the code units): finite,
+   * 0 < lightest < heaviest. Default 0.1 and 100. */
   double lightest_star_mass;
   double heaviest_star_mass;
   /* A step in which some star expects more supernovae than this makes
-   * ejecta_suggested_step report a smaller step; 0 means 10; >= 0. */
+   * ejecta_suggested_step report a smaller step: > 0, INFINITY never
+   * suggests one. Default 10. */
   double max_supernovae_per_step;
   /* NULL or "": the built-in population above. Otherwise the path of a
    * yields table in ejecta's CSV format (testdata/yields/README.md; at
    * most 4095 bytes, NUL-terminated), read once by
    * ejecta_enable_population; the table replaces the built-in population,
-   * so the IMF fields are then only checked, not used. */
+   * so the IMF fields are then only checked, not used. Default NULL. */
   const char *yields_table;
   /* Channel switches, 1 on and 0 off: stellar winds (massive and AGB; off
    * also keeps their mass on the star), radiation pressure,
@@ -649,10 +694,12 @@ typedef struct ejecta_star_columns {
  * bytes; capacity 0 writes nothing). Thread safe. */
 int ejecta_version(char *buffer, int64_t capacity, int32_t *abi_version);
 
-/* ejecta_config_defaults fills *config with the defaults: cgs code units
- * (1, 1, 1), scheme "terminal-momentum" with "kim-ostriker-2015",
- * weighting "kernel-volume", isotropy correction on, 32 neighbors, no
- * coupling radius, open box, seed 0, one worker. Errors:
+/* ejecta_config_defaults fills every field of *config with the library's
+ * defaults: cgs code units (1, 1, 1), scheme "terminal-momentum" with
+ * "kim-ostriker-2015", no remnant table, weighting "kernel-volume",
+ * isotropy correction on, 32 neighbors, no coupling radius, open box,
+ * seed 0, one worker, kinetic fraction 0.28, no photon reach, infrared
+ * boost bound 3, wind event energy 1e51 erg. Errors:
  * EJECTA_ERR_NULL_POINTER. Thread safe. */
 int ejecta_config_defaults(ejecta_config *config);
 
@@ -664,9 +711,12 @@ int ejecta_config_defaults(ejecta_config *config);
  * bytes, truncated to fit; error_text may be NULL when capacity is 0),
  * since there is no context to ask. Errors: EJECTA_ERR_NULL_POINTER
  * (config or context NULL), EJECTA_ERR_INVALID_ARGUMENT (units not finite
- * and positive, negative neighbor count or radius, NaN or negative box,
- * worker_threads outside 0..4096, kinetic_fraction outside [0, 1],
- * isotropy_correction not 0 or 1), EJECTA_ERR_UNKNOWN_NAME,
+ * and positive, neighbor_count below 1, negative or NaN radius, NaN or
+ * negative box, worker_threads outside 1..4096, kinetic_fraction outside
+ * [0, 1], isotropy_correction not 0 or 1, photon_reach negative,
+ * max_infrared_boost below 1 or NaN, wind_event_energy_erg not finite and
+ * positive), EJECTA_ERR_UNKNOWN_NAME (a name unknown, empty or not
+ * NUL-terminated),
  * EJECTA_ERR_REMNANT_TABLE (remnant_table unreadable or malformed). Thread
  * safe. */
 int ejecta_create(const ejecta_config *config, ejecta_context *context,
@@ -822,11 +872,12 @@ int ejecta_copy_touched(ejecta_context context, ejecta_touched *touched,
 
 /* ---- population steps ------------------------------------------------- */
 
-/* ejecta_population_defaults fills *config with the defaults: the built-in
- * Kroupa population over 0.1-100 Msun (yields_table NULL), 10 supernovae
- * per step before a smaller step is suggested, winds, radiation pressure
- * and photoionization on, delayed cooling off. Errors:
- * EJECTA_ERR_NULL_POINTER. Thread safe. */
+/* ejecta_population_defaults fills every field of *config with the
+ * library's defaults: the built-in Kroupa population over 0.1-100 Msun
+ * (yields_table NULL), 10 supernovae per step before a smaller step is
+ * suggested, winds, radiation pressure, photoionization and photoelectric
+ * heating on, delayed cooling off. Errors: EJECTA_ERR_NULL_POINTER.
+ * Thread safe. */
 int ejecta_population_defaults(ejecta_population_config *config);
 
 /* ejecta_enable_population checks *config, builds the population model
@@ -835,9 +886,10 @@ int ejecta_population_defaults(ejecta_population_config *config);
  * and the path are copied; ejecta keeps no pointer. The model is built
  * once here (a few tens of milliseconds for the built-in population).
  * Errors: EJECTA_ERR_NULL_POINTER, EJECTA_ERR_UNKNOWN_NAME (IMF name
- * unknown or not NUL-terminated), EJECTA_ERR_INVALID_ARGUMENT (IMF range
- * not finite or not increasing, max_supernovae_per_step negative or NaN, a
- * switch not 0 or 1, a path not NUL-terminated within 4096 bytes),
+ * unknown, empty or not NUL-terminated), EJECTA_ERR_INVALID_ARGUMENT (IMF
+ * range not finite, not positive or not increasing,
+ * max_supernovae_per_step 0, negative or NaN, a switch not 0 or 1, a path
+ * not NUL-terminated within 4096 bytes),
  * EJECTA_ERR_YIELDS_TABLE (the table cannot be read or is malformed; the
  * message names the file and line). On error the earlier population, if
  * any, stays in force. */

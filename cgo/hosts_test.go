@@ -52,6 +52,8 @@ func TestHostC(t *testing.T) {
 			checkHostOutput(t, out)
 			kv := keyValues(out)
 			assert.Contains(t, kv["create_error"], "shock-and-awe")
+			assert.Equal(t, "0", kv["zero_kinetic_kick_energy"], "a kinetic fraction of 0 gives no kinetic energy")
+			assert.InEpsilon(t, 3, number(t, kv, "infrared_boost_ratio"), 1e-12)
 			assert.Contains(t, kv["nan_error"], "non-finite")
 			assert.Contains(t, kv["destroyed_error"], "not a live ejecta context")
 		})

@@ -39,10 +39,13 @@ func abiMismatches() []string {
 	eq("config.neighbor_count", unsafe.Offsetof(cc.neighbor_count), unsafe.Offsetof(gc.NeighborCount))
 	eq("config.worker_threads", unsafe.Offsetof(cc.worker_threads), unsafe.Offsetof(gc.WorkerThreads))
 	eq("config.isotropy_correction", unsafe.Offsetof(cc.isotropy_correction), unsafe.Offsetof(gc.IsotropyCorrection))
+	eq("config.photon_reach", unsafe.Offsetof(cc.photon_reach), unsafe.Offsetof(gc.PhotonReach))
 	eq("config.scheme", unsafe.Offsetof(cc.scheme), unsafe.Offsetof(gc.Scheme))
 	eq("config.remnant_fit", unsafe.Offsetof(cc.remnant_fit), unsafe.Offsetof(gc.RemnantFit))
 	eq("config.weighting", unsafe.Offsetof(cc.weighting), unsafe.Offsetof(gc.Weighting))
 	eq("config.remnant_table", unsafe.Offsetof(cc.remnant_table), unsafe.Offsetof(gc.RemnantTable))
+	eq("config.max_infrared_boost", unsafe.Offsetof(cc.max_infrared_boost), unsafe.Offsetof(gc.MaxInfraredBoost))
+	eq("config.wind_event_energy_erg", unsafe.Offsetof(cc.wind_event_energy_erg), unsafe.Offsetof(gc.WindEventEnergyErg))
 
 	var cf C.ejecta_field
 	var gf fieldABI

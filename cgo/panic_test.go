@@ -35,10 +35,10 @@ func contextWithScheme(t *testing.T, scheme feedback.Scheme, workers int32) uint
 	c := pcConfig()
 	c.WorkerThreads = workers
 	c.BoxSize = [3]float64{10, 10, 10}
-	cfg, err := parseConfig(&c)
+	cfg, opts, err := parseConfig(&c)
 	require.NoError(t, err)
 	cfg.Scheme = scheme
-	s, err := newSession(cfg, c.Seed)
+	s, err := newSession(cfg, opts)
 	require.NoError(t, err)
 	h := uint64(cgo.NewHandle(s))
 	t.Cleanup(func() { entryDestroy(&h) })

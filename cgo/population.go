@@ -69,15 +69,30 @@ type population struct {
 	counts [][2]int64
 }
 
-// defaultPopulationConfig is what ejecta_population_defaults writes.
+// defaultPopulationConfig is what ejecta_population_defaults writes: the
+// library's defaults, read from yields.DefaultConfig (IMF and its mass
+// range) and feedback.DefaultStepConfig (supernovae per step, channel
+// switches).
 func defaultPopulationConfig() populationConfigABI {
+	y := yields.DefaultConfig()
+	st := feedback.DefaultStepConfig(feedback.Config{}, nil)
 	c := populationConfigABI{
-		LightestStarMass: yields.DefaultLightestStarMass, HeaviestStarMass: yields.DefaultHeaviestStarMass,
-		MaxSupernovaePerStep: feedback.DefaultMaxSupernovaePerStep,
-		Winds:                1, RadiationPressure: 1, Photoionization: 1, PhotoelectricHeating: 1,
+		LightestStarMass: y.LightestStarMass, HeaviestStarMass: y.HeaviestStarMass,
+		MaxSupernovaePerStep: st.MaxSupernovaePerStep,
+		Winds:                switchValue(!st.SkipWinds), RadiationPressure: switchValue(!st.SkipRadiation),
+		Photoionization: switchValue(!st.SkipPhotoionization), DelayedCooling: switchValue(st.DelayedCooling),
+		PhotoelectricHeating: switchValue(!st.SkipPhotoelectric),
 	}
-	copy(c.IMF[:], yields.Kroupa.String())
+	copy(c.IMF[:], y.IMF.String())
 	return c
+}
+
+// switchValue is the 0/1 switch of ejecta.h for on.
+func switchValue(on bool) int32 {
+	if on {
+		return 1
+	}
+	return 0
 }
 
 // cPath reads a NUL-terminated path of at most pathCapacity-1 bytes for
@@ -114,26 +129,14 @@ func populationModel(c *populationConfigABI, species yields.SpeciesSet) (yields.
 		return nil, fmt.Errorf("population: %w", err)
 	}
 	ycfg := yields.DefaultConfig()
-	if imfName != "" {
-		form, err := yields.ParseIMFForm(imfName)
-		if err != nil {
-			return nil, fail(codeUnknownName, "population imf: %w", err)
-		}
-		ycfg.IMF = form
+	if ycfg.IMF, err = yields.ParseIMFForm(imfName); err != nil {
+		return nil, fail(codeUnknownName, "population imf: %w", err)
 	}
 	lo, hi := c.LightestStarMass, c.HeaviestStarMass
-	if !(lo >= 0) || !(hi >= 0) || math.IsInf(lo, 0) || math.IsInf(hi, 0) {
-		return nil, fail(codeInvalidArgument, "population IMF mass range [%g, %g] Msun must be finite and >= 0", lo, hi)
+	if !(lo > 0) || !(hi > lo) || math.IsInf(hi, 0) {
+		return nil, fail(codeInvalidArgument, "population IMF mass range [%g, %g] Msun: want 0 < lightest_star_mass < heaviest_star_mass, finite", lo, hi)
 	}
-	if lo > 0 {
-		ycfg.LightestStarMass = lo
-	}
-	if hi > 0 {
-		ycfg.HeaviestStarMass = hi
-	}
-	if !(ycfg.LightestStarMass < ycfg.HeaviestStarMass) {
-		return nil, fail(codeInvalidArgument, "population IMF mass range [%g, %g] Msun: want min < max", ycfg.LightestStarMass, ycfg.HeaviestStarMass)
-	}
+	ycfg.LightestStarMass, ycfg.HeaviestStarMass = lo, hi
 	path, err := cPath("population yields_table", c.YieldsTable)
 	if err != nil {
 		return nil, err
@@ -159,8 +162,8 @@ func (s *session) enablePopulation(c *populationConfigABI) error {
 	if c == nil {
 		return fail(codeNullPointer, "population config is NULL")
 	}
-	if m := c.MaxSupernovaePerStep; !(m >= 0) || math.IsInf(m, 0) {
-		return fail(codeInvalidArgument, "population max_supernovae_per_step %g must be finite and >= 0", m)
+	if m := c.MaxSupernovaePerStep; !(m > 0) {
+		return fail(codeInvalidArgument, "population max_supernovae_per_step %g must be > 0 (INFINITY never suggests a smaller step)", m)
 	}
 	winds, err := switchOn("winds", c.Winds)
 	if err != nil {
@@ -187,18 +190,31 @@ func (s *session) enablePopulation(c *populationConfigABI) error {
 		return err
 	}
 	cfg := feedback.DefaultStepConfig(s.cfg, model)
-	cfg.Seed = s.seed
+	cfg.Seed = s.opts.Seed
 	cfg.SkipWinds, cfg.SkipRadiation, cfg.SkipPhotoionization = !winds, !radiation, !ionization
 	cfg.DelayedCooling = cooling
 	cfg.SkipPhotoelectric = !photoelectric
-	if c.MaxSupernovaePerStep != 0 { // ejecta.h: 0 means the default
-		cfg.MaxSupernovaePerStep = c.MaxSupernovaePerStep
+	cfg.MaxSupernovaePerStep = c.MaxSupernovaePerStep
+	// Winds, radiation pressure and photoionization take the context's
+	// settings (remnant fit or table, wind event energy, infrared boost
+	// bound, photon reach), as the schemes of those names do.
+	for _, ch := range []struct {
+		scheme *feedback.Scheme
+		name   string
+	}{
+		{&cfg.Winds, feedback.Winds{}.Name()},
+		{&cfg.Radiation, feedback.RadiationPressure{}.Name()},
+		{&cfg.Photoionization, feedback.Photoionization{}.Name()},
+	} {
+		if *ch.scheme, err = feedback.SchemeByName(ch.name, s.opts); err != nil {
+			return failWith(codeInvalidArgument, err, "population")
+		}
 	}
 	st, err := feedback.NewStepper(cfg)
 	if err != nil {
 		return failWith(codeInvalidArgument, err, "population")
 	}
-	s.pop = &population{stepper: st, model: model, seed: s.seed}
+	s.pop = &population{stepper: st, model: model, seed: s.opts.Seed}
 	return nil
 }
 

@@ -78,13 +78,14 @@ func assertFuzzBalanced(t *testing.T, l *ledgerABI, what string) {
 // channel's), star results in the stars' order whose mass loss adds up to
 // what was deposited, and a suggested step in [0, dt).
 func FuzzPopulationEntryPoints(f *testing.F) {
+	f.Add("kroupa", 0.1, 100.0, 10.0, uint8(0x0f), uint8(0), uint8(0), 0.0, int32(16), uint64(1), int64(4), 1.0, int64(0), uint8(0))
 	f.Add("kroupa", 0.0, 0.0, 0.0, uint8(0x0f), uint8(0), uint8(0), 0.0, int32(16), uint64(1), int64(4), 1.0, int64(0), uint8(0))
-	f.Add("chabrier", 0.08, 120.0, 2.0, uint8(0x0b), uint8(1), uint8(3), 2.5, int32(0), uint64(2), int64(8), 3.0, int64(7), uint8(1))
+	f.Add("chabrier", 0.08, 120.0, 2.0, uint8(0x0b), uint8(1), uint8(3), 2.5, int32(12), uint64(2), int64(8), 3.0, int64(7), uint8(1))
 	f.Add("salpeter", 50.0, 8.0, 10.0, uint8(0x0f), uint8(0), uint8(1), 0.0, int32(8), uint64(3), int64(2), 0.5, int64(1), uint8(0))
 	f.Add("", math.NaN(), math.Inf(1), -1.0, uint8(0x8f), uint8(2), uint8(2), 0.0, int32(4), uint64(4), int64(3), math.NaN(), int64(-1), uint8(2))
 	f.Add("top-heavy", 0.5, 0.6, 0.0, uint8(0x00), uint8(3), uint8(4), 1.5, int32(32), uint64(5), int64(6), 1e6, int64(1<<62), uint8(1))
 	f.Add("kroupa", 1e-300, 1e300, 1e300, uint8(0xcf), uint8(0), uint8(5), 3.0, int32(2), uint64(6), int64(5), 1e-300, int64(3), uint8(0))
-	f.Add("chabrier", 0.1, 100.0, 0.0, uint8(0x07), uint8(1), uint8(6), 0.0, int32(64), uint64(7), int64(1), 40.0, int64(2), uint8(1))
+	f.Add("chabrier", 0.1, 100.0, math.Inf(1), uint8(0x07), uint8(1), uint8(6), 0.0, int32(64), uint64(7), int64(1), 40.0, int64(2), uint8(1))
 	f.Fuzz(func(t *testing.T, imf string, minMass, maxMass, perStep float64, switches, table, scheme uint8,
 		radius float64, k int32, seed uint64, nStars int64, dt float64, step int64, modeSel uint8) {
 		if nStars < -2 || nStars > 24 || k < -2 || k > 96 {

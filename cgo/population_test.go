@@ -105,9 +105,9 @@ func TestPopulationConfigErrors(t *testing.T) {
 			copy(p.IMF[:], "chabrier")
 			p.LightestStarMass, p.HeaviestStarMass = 0.08, 120
 		}, codeOK, ""},
-		{"empty name and zero range take defaults", func(p *populationConfigABI) {
-			p.IMF, p.LightestStarMass, p.HeaviestStarMass = [nameCapacity]byte{}, 0, 0
-		}, codeOK, ""},
+		{"empty IMF", func(p *populationConfigABI) { p.IMF = [nameCapacity]byte{} }, codeUnknownName, "IMF \"\""},
+		{"zero lightest star", func(p *populationConfigABI) { p.LightestStarMass = 0 }, codeInvalidArgument, "IMF mass range [0, 100]"},
+		{"zero heaviest star", func(p *populationConfigABI) { p.HeaviestStarMass = 0 }, codeInvalidArgument, "IMF mass range"},
 		{"example table", func(p *populationConfigABI) { p.YieldsTable = cString(exampleTable) }, codeOK, ""},
 		{"empty table path", func(p *populationConfigABI) { p.YieldsTable = cString("") }, codeOK, ""},
 		{"unknown IMF", func(p *populationConfigABI) { p.IMF = [nameCapacity]byte{}; copy(p.IMF[:], "top-heavy") }, codeUnknownName, "top-heavy"},
@@ -118,9 +118,11 @@ func TestPopulationConfigErrors(t *testing.T) {
 		}, codeUnknownName, "NUL"},
 		{"NaN IMF minimum", func(p *populationConfigABI) { p.LightestStarMass = math.NaN() }, codeInvalidArgument, "IMF mass range"},
 		{"infinite IMF maximum", func(p *populationConfigABI) { p.HeaviestStarMass = math.Inf(1) }, codeInvalidArgument, "IMF mass range"},
-		{"reversed IMF range", func(p *populationConfigABI) { p.LightestStarMass, p.HeaviestStarMass = 50, 8 }, codeInvalidArgument, "min < max"},
+		{"reversed IMF range", func(p *populationConfigABI) { p.LightestStarMass, p.HeaviestStarMass = 50, 8 }, codeInvalidArgument, "lightest_star_mass < heaviest_star_mass"},
 		{"negative supernovae per step", func(p *populationConfigABI) { p.MaxSupernovaePerStep = -1 }, codeInvalidArgument, "max_supernovae_per_step"},
 		{"NaN supernovae per step", func(p *populationConfigABI) { p.MaxSupernovaePerStep = math.NaN() }, codeInvalidArgument, "max_supernovae_per_step"},
+		{"zero supernovae per step", func(p *populationConfigABI) { p.MaxSupernovaePerStep = 0 }, codeInvalidArgument, "max_supernovae_per_step 0 must be > 0"},
+		{"unlimited supernovae per step", func(p *populationConfigABI) { p.MaxSupernovaePerStep = math.Inf(1) }, codeOK, ""},
 		{"winds switch 2", func(p *populationConfigABI) { p.Winds = 2 }, codeInvalidArgument, "winds"},
 		{"radiation switch -1", func(p *populationConfigABI) { p.RadiationPressure = -1 }, codeInvalidArgument, "radiation_pressure"},
 		{"photoionization switch 7", func(p *populationConfigABI) { p.Photoionization = 7 }, codeInvalidArgument, "photoionization"},

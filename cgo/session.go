@@ -52,8 +52,10 @@ type session struct {
 	phase   phase
 	lastErr string
 
-	cfg     feedback.Config
-	seed    uint64
+	cfg feedback.Config
+	// opts are the built-in schemes' settings of ejecta_config (the seed
+	// among them), also used by the population's channels.
+	opts    feedback.SchemeOptions
 	coupler *feedback.Coupler
 
 	// gas is the binding of ejecta_bind_gas and what is derived from it.
@@ -76,12 +78,12 @@ type session struct {
 }
 
 // newSession prepares the session of a new context.
-func newSession(cfg feedback.Config, seed uint64) (*session, error) {
+func newSession(cfg feedback.Config, opts feedback.SchemeOptions) (*session, error) {
 	coupler, err := feedback.NewCoupler(cfg)
 	if err != nil {
 		return nil, failWith(codeInvalidArgument, err, "config")
 	}
-	return &session{cfg: coupler.Config(), seed: seed, coupler: coupler}, nil
+	return &session{cfg: coupler.Config(), opts: opts, coupler: coupler}, nil
 }
 
 // stepped reports whether the context holds the results of a step.
@@ -157,11 +159,11 @@ func entryCreate(c *configABI, out *uint64, errText *byte, capacity int64) int32
 			return fail(codeNullPointer, "context pointer is NULL")
 		}
 		*out = 0
-		cfg, err := parseConfig(c)
+		cfg, opts, err := parseConfig(c)
 		if err != nil {
 			return err
 		}
-		s, err := newSession(cfg, c.Seed)
+		s, err := newSession(cfg, opts)
 		if err != nil {
 			return err
 		}

@@ -2,8 +2,10 @@
  * host.c — a small C host of ejecta: gas held as an array of structs with
  * float32 positions and float64 everything else, a few supernovae, one
  * step. It checks that the ledger balances, that the gas changed exactly as
- * the records say, and that bad input through the ABI gives error codes,
- * never a crash. Prints key=value lines and "result pass" on success; exits
+ * the records say, that config fields mean what they say (a kinetic
+ * fraction of 0 gives no kinetic energy; the infrared boost bound scales
+ * radiation pressure), and that bad input through the ABI gives error
+ * codes, never a crash. Prints key=value lines and "result pass" on success; exits
  * non-zero on the first failed check.
  *
  * Code units: pc, Msun, km/s.
@@ -53,6 +55,115 @@ static void describe(gas_element *g, ejecta_gas *d, int32_t *species,
   d->n_species = 2;
   d->species = species;
   d->species_fraction = fractions;
+}
+
+/* Creates a context from cfg, steps n stars on a copy of the gas (density
+ * and mass scaled by density_scale; at rest if at_rest) and returns the
+ * ledger. */
+static ejecta_ledger step_on_copy(const ejecta_config *cfg, const gas_element *gas, double density_scale,
+                                  int at_rest, const ejecta_star *stars, int n) {
+  gas_element *g = malloc(N_GAS * sizeof *g);
+  memcpy(g, gas, N_GAS * sizeof *g);
+  for (int i = 0; i < N_GAS; i++) {
+    g[i].density *= density_scale;
+    g[i].mass *= density_scale;
+    if (at_rest) g[i].vel[0] = g[i].vel[1] = g[i].vel[2] = 0;
+  }
+  char err[256];
+  ejecta_context ctx = 0;
+  int code = ejecta_create(cfg, &ctx, err, sizeof err);
+  CHECK(code == EJECTA_OK, "create: %d %s", code, err);
+  ejecta_gas d;
+  int32_t species[2];
+  ejecta_field fractions[2];
+  describe(g, &d, species, fractions, N_GAS);
+  must(ctx, ejecta_bind_gas(ctx, &d), "bind copy");
+  must(ctx, ejecta_step(ctx, stars, n, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL), "step copy");
+  ejecta_ledger led;
+  must(ctx, ejecta_get_ledger(ctx, &led), "ledger copy");
+  char imb[256];
+  CHECK(ejecta_ledger_balanced(&led, 1e-12, imb, sizeof imb) == EJECTA_OK, "copy ledger balanced: %s", imb);
+  must(ctx, ejecta_destroy(&ctx), "destroy copy");
+  free(g);
+  return led;
+}
+
+/* ejecta_create must refuse cfg with the code want. */
+static void refused(const ejecta_config *cfg, int want, const char *what) {
+  char msg[256];
+  ejecta_context ctx = 0;
+  int code = ejecta_create(cfg, &ctx, msg, sizeof msg);
+  CHECK(code == want && ctx == 0, "%s: code %d (%s)", what, code, msg);
+}
+
+/* Every config field means what it says, zero included: the defaults are
+ * those ejecta.h states, a zero kinetic fraction gives no kinetic energy,
+ * max_infrared_boost bounds the radiation pressure, and values without a
+ * meaning are refused. */
+static void settings(const gas_element *gas, const ejecta_star *stars) {
+  ejecta_config cfg;
+  must(0, ejecta_config_defaults(&cfg), "defaults");
+  CHECK(cfg.kinetic_fraction == 0.28 && cfg.neighbor_count == 32 && cfg.worker_threads == 1 &&
+            cfg.photon_reach == 0 && cfg.max_infrared_boost == 3 && cfg.wind_event_energy_erg == 1e51 &&
+            strcmp(cfg.scheme, "terminal-momentum") == 0 && strcmp(cfg.remnant_fit, "kim-ostriker-2015") == 0 &&
+            strcmp(cfg.weighting, "kernel-volume") == 0 && cfg.remnant_table == NULL,
+        "defaults as ejecta.h states them");
+
+  ejecta_star still[N_STARS];
+  memcpy(still, stars, sizeof still);
+  for (int s = 0; s < N_STARS; s++) still[s].velocity[0] = still[s].velocity[1] = still[s].velocity[2] = 0;
+  use_host_units(&cfg);
+  for (int a = 0; a < 3; a++) cfg.box_size[a] = BOX;
+  snprintf(cfg.scheme, sizeof cfg.scheme, "%s", "kinetic");
+  cfg.kinetic_fraction = 0;
+  ejecta_ledger zero = step_on_copy(&cfg, gas, 1, 1, still, N_STARS);
+  CHECK(zero.kick_energy == 0 && zero.radial_momentum == 0, "kinetic fraction 0: kick energy %g, radial momentum %g",
+        zero.kick_energy, zero.radial_momentum);
+  CHECK(fabs(zero.heat - zero.released.energy) <= 1e-12 * zero.released.energy, "kinetic fraction 0: all heat");
+  cfg.kinetic_fraction = 0.28;
+  ejecta_ledger sedov = step_on_copy(&cfg, gas, 1, 1, still, N_STARS);
+  CHECK(sedov.kick_energy > 0.25 * sedov.released.energy, "kinetic fraction 0.28: kick energy %g", sedov.kick_energy);
+  printf("zero_kinetic_kick_energy=%.17g sedov_kick_share=%.6f\n", zero.kick_energy,
+         sedov.kick_energy / sedov.released.energy);
+
+  /* Radiation pressure in gas 1e5 times denser (n_H ~ 1e5 cm^-3): the
+   * infrared optical depth of 48 neighbors is ~16, so the momentum is
+   * min(1 + tau_IR, bound) times the absorbed L/c. */
+  snprintf(cfg.scheme, sizeof cfg.scheme, "%s", "radiation-pressure");
+  cfg.max_infrared_boost = 1;
+  ejecta_ledger one = step_on_copy(&cfg, gas, 1e5, 0, stars, N_STARS);
+  cfg.max_infrared_boost = 3;
+  ejecta_ledger three = step_on_copy(&cfg, gas, 1e5, 0, stars, N_STARS);
+  cfg.max_infrared_boost = INFINITY;
+  ejecta_ledger unbounded = step_on_copy(&cfg, gas, 1e5, 0, stars, N_STARS);
+  double ratio = three.radial_momentum / one.radial_momentum;
+  CHECK(fabs(ratio - 3) <= 1e-12 * 3, "infrared boost bound 3 vs 1: ratio %.17g", ratio);
+  CHECK(unbounded.radial_momentum > 2 * three.radial_momentum, "no infrared bound: %g vs %g",
+        unbounded.radial_momentum, three.radial_momentum);
+  printf("infrared_boost_ratio=%.17g\n", ratio);
+
+  /* Values with no meaning are refused; so is a config left zeroed. */
+  ejecta_config bad;
+  ejecta_config_defaults(&bad);
+  bad.neighbor_count = 0;
+  refused(&bad, EJECTA_ERR_INVALID_ARGUMENT, "neighbor_count 0");
+  ejecta_config_defaults(&bad);
+  bad.worker_threads = 0;
+  refused(&bad, EJECTA_ERR_INVALID_ARGUMENT, "worker_threads 0");
+  ejecta_config_defaults(&bad);
+  bad.max_infrared_boost = 0.5;
+  refused(&bad, EJECTA_ERR_INVALID_ARGUMENT, "max_infrared_boost 0.5");
+  ejecta_config_defaults(&bad);
+  bad.wind_event_energy_erg = 0;
+  refused(&bad, EJECTA_ERR_INVALID_ARGUMENT, "wind_event_energy_erg 0");
+  ejecta_config_defaults(&bad);
+  bad.photon_reach = -1;
+  refused(&bad, EJECTA_ERR_INVALID_ARGUMENT, "photon_reach -1");
+  ejecta_config_defaults(&bad);
+  bad.weighting[0] = 0;
+  refused(&bad, EJECTA_ERR_UNKNOWN_NAME, "empty weighting");
+  memset(&bad, 0, sizeof bad);
+  refused(&bad, EJECTA_ERR_INVALID_ARGUMENT, "zeroed config");
 }
 
 /* Checks of bad input through the real exports: each must return its
@@ -296,6 +407,7 @@ int main(void) {
   int64_t n_touched = 0;
   CHECK(ejecta_copy_touched(ctx, NULL, 0, &n_touched) == EJECTA_ERR_BUFFER_TOO_SMALL && n_touched == rep.elements, "touched count");
 
+  settings(before, stars);
   bad_input(ctx, gas);
   must(ctx, ejecta_destroy(&ctx), "destroy");
   free(dm); free(dz); free(dp); free(recs); free(gas); free(before);

@@ -57,6 +57,10 @@ program ejecta_fortran_host
   before = gas
 
   rc = ejecta_config_defaults(cfg)
+  ! Every field holds the library's default, as ejecta.h states it.
+  if (cfg%kinetic_fraction /= 0.28d0 .or. cfg%max_infrared_boost /= 3.0d0 .or. &
+       cfg%wind_event_energy_erg /= 1.0d51 .or. cfg%photon_reach /= 0 .or. cfg%neighbor_count /= 32 .or. &
+       cfg%worker_threads /= 1) call fail('defaults differ from ejecta.h')
   cfg%length_cm = 3.0856775814913673d18
   cfg%mass_g = 1.98841d33
   cfg%velocity_cm_per_s = 1.0d5

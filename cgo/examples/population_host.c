@@ -60,6 +60,19 @@ static void bad_input(ejecta_context ctx, const ejecta_star_particle *good) {
   pc.lightest_star_mass = NAN;
   CHECK(ejecta_enable_population(ctx, &pc) == EJECTA_ERR_INVALID_ARGUMENT, "NaN IMF mass");
   ejecta_population_defaults(&pc);
+  CHECK(pc.lightest_star_mass == 0.1 && pc.heaviest_star_mass == 100 && pc.max_supernovae_per_step == 10 &&
+            strcmp(pc.imf, "kroupa") == 0 && pc.winds == 1 && pc.radiation_pressure == 1 && pc.photoionization == 1 &&
+            pc.photoelectric_heating == 1 && pc.delayed_cooling == 0 && pc.yields_table == NULL,
+        "population defaults as ejecta.h states them");
+  pc.max_supernovae_per_step = 0; /* 0 means 0, which has no meaning: refused */
+  CHECK(ejecta_enable_population(ctx, &pc) == EJECTA_ERR_INVALID_ARGUMENT, "zero supernovae per step");
+  ejecta_population_defaults(&pc);
+  pc.lightest_star_mass = 0;
+  CHECK(ejecta_enable_population(ctx, &pc) == EJECTA_ERR_INVALID_ARGUMENT, "zero lightest star");
+  ejecta_population_defaults(&pc);
+  pc.imf[0] = 0;
+  CHECK(ejecta_enable_population(ctx, &pc) == EJECTA_ERR_UNKNOWN_NAME, "empty IMF");
+  ejecta_population_defaults(&pc);
   pc.winds = 5;
   CHECK(ejecta_enable_population(ctx, &pc) == EJECTA_ERR_INVALID_ARGUMENT, "switch 5");
   ejecta_population_defaults(&pc);

@@ -21,7 +21,7 @@ module ejecta_mod
        EJECTA_ERR_BUSY = 10, EJECTA_ERR_UNDEPOSITED = 11, EJECTA_ERR_IMBALANCE = 12, &
        EJECTA_ERR_ALREADY_APPLIED = 13, EJECTA_ERR_NO_POPULATION = 14, EJECTA_ERR_YIELDS_TABLE = 15, &
        EJECTA_ERR_REMNANT_TABLE = 16, EJECTA_ERR_DUMP_FILE = 17, EJECTA_ERR_INTERNAL = 99
-  integer(c_int32_t), parameter, public :: EJECTA_ABI_VERSION = 4
+  integer(c_int32_t), parameter, public :: EJECTA_ABI_VERSION = 5
   ! Element types.
   integer(c_int32_t), parameter, public :: EJECTA_FLOAT64 = 1, EJECTA_FLOAT32 = 2, &
        EJECTA_INT64 = 3, EJECTA_INT32 = 4
@@ -44,17 +44,21 @@ module ejecta_mod
        EJECTA_FLAG_IONIZED = 4, EJECTA_FLAG_HOLD_COOLING = 8, EJECTA_FLAG_STOCHASTIC = 16, &
        EJECTA_FLAG_HYDRO_DECOUPLED = 32
 
-  ! ejecta_config (seed is uint64_t in C: use non-negative values).
+  ! ejecta_config (seed is uint64_t in C: use non-negative values). Fill it
+  ! with ejecta_config_defaults: every field is used as it is, zero
+  ! included.
   type, bind(c), public :: ejecta_config
      real(c_double) :: length_cm, mass_g, velocity_cm_per_s
      real(c_double) :: kinetic_fraction, coupling_radius
      real(c_double) :: box_size(3)
      integer(c_int64_t) :: seed
-     integer(c_int32_t) :: neighbor_count, worker_threads, isotropy_correction, reserved
+     integer(c_int32_t) :: neighbor_count, worker_threads, isotropy_correction, photon_reach
      character(kind=c_char) :: scheme(EJECTA_NAME_CAPACITY)
      character(kind=c_char) :: remnant_fit(EJECTA_NAME_CAPACITY)
      character(kind=c_char) :: weighting(EJECTA_NAME_CAPACITY)
      type(c_ptr) :: remnant_table  ! NUL-terminated path or c_null_ptr
+     real(c_double) :: max_infrared_boost     ! >= 1; ieee_value(.., ieee_positive_inf): no bound
+     real(c_double) :: wind_event_energy_erg  ! erg, > 0
   end type ejecta_config
 
   type, bind(c), public :: ejecta_field
@@ -123,7 +127,8 @@ module ejecta_mod
      integer(c_int32_t) :: flags, reserved
   end type ejecta_touched
 
-  ! ejecta_population_config. yields_table is c_null_ptr (built-in
+  ! ejecta_population_config. Fill it with ejecta_population_defaults:
+  ! every field is used as it is. yields_table is c_null_ptr (built-in
   ! population) or c_loc of a NUL-terminated character(kind=c_char) array
   ! with the target attribute (see ejecta_c_string).
   type, bind(c), public :: ejecta_population_config
