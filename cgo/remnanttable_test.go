@@ -90,3 +90,41 @@ func TestConfigRemnantTable(t *testing.T) {
 		assert.Zero(t, h)
 	}
 }
+
+// The winds of population steps take the context's remnant table,
+// whatever scheme couples the supernovae: a table of the Kim & Ostriker
+// 2015 fit's values gives the winds the fit's momentum, and gas outside a
+// table's grid returns the winds undeposited.
+func TestPopulationWindsTakeTheRemnantTable(t *testing.T) {
+	dir := t.TempDir()
+	wide := filepath.Join(dir, "wide.csv")
+	writeKOTable(t, wide, []float64{1e-12, 1e-6, 1, 1e6, 1e12})
+	narrow := filepath.Join(dir, "narrow.csv")
+	writeKOTable(t, narrow, []float64{1e10, 1e11})
+	winds := func(path string) (int32, ledgerABI, string) {
+		c := withScheme("thermal-dump", 10)
+		if path != "" {
+			c.RemnantTable = cString(path)
+		}
+		h := withPopulation(t, c, nil)
+		g := denseGas(6, 10, 12)
+		require.Equal(t, codeOK, entryBindGas(h, &g.desc))
+		st := cluster(1, 1e4, 10, 3)
+		code := entryStepPopulation(h, &st, 1, 0.5/myrPerCodeTime, 0, modeOwnFinder, nil, nil)
+		msg := lastError(h)
+		var l ledgerABI
+		require.Equal(t, codeOK, entryGetChannelLedger(h, int32(yields.MassiveWinds), &l))
+		return code, l, msg
+	}
+	code, fit, _ := winds("")
+	require.Equal(t, codeOK, code)
+	require.Positive(t, fit.RadialMomentum)
+	code, tab, _ := winds(wide)
+	require.Equal(t, codeOK, code)
+	assert.InEpsilon(t, fit.RadialMomentum, tab.RadialMomentum, 1e-9)
+	code, out, msg := winds(narrow)
+	assert.Equal(t, codeUndeposited, code)
+	assert.Contains(t, msg, "outside the grid")
+	assert.Equal(t, int64(1), out.Skipped)
+	assert.Zero(t, out.Deposited.Mass)
+}
