@@ -23,6 +23,7 @@
 //	results.go     what a step leaves to read: records, undeposited releases, ledger; the copy rule
 //	apply.go       ejecta_apply_step_records, ejecta_apply_records, ejecta_copy_touched
 //	population.go  population steps: config, star particles, per-star results, channel ledgers
+//	dump.go        audit dumps: the ejecta_dump session (ejecta_dump_*), ejecta_star_columns
 //	layout.go      abiMismatches: every struct offset and constant checked against ejecta.h
 //
 // A new function goes into the file of its concern with its entry, gets

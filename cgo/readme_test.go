@@ -43,6 +43,15 @@ func TestReadmeLinkCommands(t *testing.T) {
 	script := readmeBlock(t, "## Link it into a C, C++ or Fortran code")
 	require.Contains(t, script, "cgo/examples/host.c")
 
+	out := runReadmeScript(t, gobin, script)
+	assert.Contains(t, out, "result pass")
+}
+
+// runReadmeScript runs README commands in a mirror of the repository
+// (links to its files) from its root, so that nothing is written into the
+// source tree, and returns their output.
+func runReadmeScript(t *testing.T, gobin, script string) string {
+	t.Helper()
 	root, err := filepath.Abs("..")
 	require.NoError(t, err)
 	mirror := t.TempDir()
@@ -65,7 +74,24 @@ func TestReadmeLinkCommands(t *testing.T) {
 	cmd.Env = append(os.Environ(), "PWD="+mirror, "PATH="+filepath.Dir(gobin)+string(os.PathListSeparator)+os.Getenv("PATH"))
 	out, err := cmd.CombinedOutput()
 	require.NoError(t, err, "README commands:\n%s\noutput:\n%s", script, out)
-	assert.Contains(t, string(out), "result pass")
+	return string(out)
+}
+
+// The README's audit commands work as written: they build the library,
+// link the example host that injects with its own scheme, run it and
+// audit its dump with the ejecta command.
+func TestReadmeAuditCommands(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds the shared library and the ejecta command (about 20 s)")
+	}
+	requireTool(t, "gcc")
+	gobin := goTool(t)
+	script := readmeBlock(t, "## Test your own injection scheme")
+	require.Contains(t, script, "cgo/examples/audit_host.c")
+	require.Contains(t, script, "ejecta audit -manifest")
+	out := runReadmeScript(t, gobin, script)
+	assert.Contains(t, out, "result pass")
+	assert.Contains(t, out, "passed")
 }
 
 // The README states the exact Go version go.mod requires.

@@ -16,6 +16,7 @@ import (
 	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/feedback/feedbacktest"
+	"github.com/ejecta-dev/ejecta/yields"
 )
 
 // writeDump writes a step with audit.WriteDump (the writer the C ABI's
@@ -210,4 +211,48 @@ func TestAuditCommandJSON(t *testing.T) {
 	for key := range doc {
 		assert.Equal(t, strings.ToLower(key), key, "snake_case key")
 	}
+}
+
+// The species of a dump are those of its species_set: a dump that tracks
+// nickel (here the iron of ejecta's own step, relabeled) is audited and
+// reported in that set's symbols.
+func TestAuditCommandSpeciesSet(t *testing.T) {
+	before, after, stars, err := feedbacktest.Dump(feedback.TerminalMomentum{}, "moving", 2)
+	require.NoError(t, err)
+	set, err := yields.ParseSpeciesSet("Ni")
+	require.NoError(t, err)
+	nickel, ok := set.Slot(yields.Element(28))
+	require.True(t, ok)
+	for _, g := range []*audit.GasArrays{before, after} {
+		var metals, iron []float64
+		for c, sp := range g.Species {
+			switch sp {
+			case yields.Metals:
+				metals = g.Fractions[c]
+			case yields.Iron:
+				iron = g.Fractions[c]
+			}
+		}
+		g.Species, g.Fractions = []yields.Species{yields.Metals, nickel}, [][]float64{metals, iron}
+	}
+	for i := range stars {
+		var a yields.Abundances
+		a[yields.Metals], a[nickel] = stars[i].Species[yields.Metals], stars[i].Species[yields.Iron]
+		stars[i].Species = a
+	}
+	dir := t.TempDir()
+	require.NoError(t, audit.WriteDump(dir, &audit.Dump{Species: set, Before: before, After: after, Stars: stars}))
+	path := filepath.Join(dir, audit.ManifestFile)
+	code, out, errOut := runCLI("audit", "-manifest", path)
+	require.Equal(t, 0, code, errOut)
+	assert.Contains(t, out, "species Ni")
+	assert.NotContains(t, out, "species H ")
+
+	// Half the nickel of one element is lost: the balance that fails is
+	// nickel's.
+	after.Fractions[1][nearestTo(after, stars[0])] *= 0.5
+	require.NoError(t, audit.WriteDump(dir, &audit.Dump{Species: set, Before: before, After: after, Stars: stars}))
+	code, out, _ = runCLI("audit", "-manifest", path)
+	assert.Equal(t, 1, code)
+	assert.Contains(t, out, "species Ni imbalance")
 }
