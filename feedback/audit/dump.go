@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"maps"
 	"os"
 	"path"
 	"path/filepath"
@@ -265,7 +266,7 @@ type keyedSpecies struct {
 // of an element of the set (letter case ignored).
 func sortedSpecies(block string, m map[string]string, set yields.SpeciesSet) ([]keyedSpecies, error) {
 	var out []keyedSpecies
-	for key := range m {
+	for _, key := range slices.Sorted(maps.Keys(m)) { // the same message every time
 		if strings.EqualFold(key, yields.Metals.Symbol()) {
 			out = append(out, keyedSpecies{key, yields.Metals})
 			continue
