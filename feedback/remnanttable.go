@@ -1,16 +1,15 @@
 package feedback
 
 import (
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"strconv"
 	"strings"
 
 	"github.com/ejecta-dev/ejecta/yields"
+	"github.com/ejecta-dev/ejecta/yields/csvtable"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
@@ -173,20 +172,23 @@ func (t *RemnantTable) Remnant(e, n, z float64) (Remnant, error) {
 // ReadRemnantTableFile reads a remnant table from a file; errors name the
 // file and the line.
 func ReadRemnantTableFile(path string) (*RemnantTable, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("remnant table: %w", err)
-	}
-	defer f.Close()
-	t, err := ReadRemnantTable(f)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, err)
-	}
-	return t, nil
+	return csvtable.ReadFile(path, "remnant table", ReadRemnantTable)
 }
 
-func remnantLineError(line int, format string, args ...any) error {
-	return fmt.Errorf("remnant table line %d: %s: %w", line, fmt.Sprintf(format, args...), ErrRemnantTable)
+// remnantTableColumns are the columns of RemnantTableHeader, in its order:
+// late values may be zero (a run that never got there), the others must be
+// positive.
+func remnantTableColumns() []csvtable.Column {
+	var cols []csvtable.Column
+	for i, h := range strings.Split(RemnantTableHeader, ",") {
+		name, unit, _ := strings.Cut(strings.TrimSuffix(h, "]"), "[")
+		least := csvtable.Positive
+		if i >= lateColumns {
+			least = csvtable.NonNegative
+		}
+		cols = append(cols, csvtable.Column{Name: name, Unit: unit, Required: true, Min: least})
+	}
+	return cols
 }
 
 // ReadRemnantTable reads a remnant table in the format of
@@ -197,93 +199,43 @@ func remnantLineError(line int, format string, args ...any) error {
 // ErrRemnantTable error naming the line. The table refuses inputs outside
 // its grid (see WithOutsideGrid).
 func ReadRemnantTable(r io.Reader) (*RemnantTable, error) {
-	cr := csv.NewReader(r)
-	cr.Comment = '#'
-	cr.TrimLeadingSpace = true
-	header, err := cr.Read()
-	if err != nil {
-		var pe *csv.ParseError
-		switch {
-		case errors.Is(err, io.EOF):
-			return nil, fmt.Errorf("remnant table: empty, no header row: %w", ErrRemnantTable)
-		case errors.As(err, &pe):
-			return nil, remnantLineError(pe.Line, "%v", pe.Err)
-		}
-		return nil, fmt.Errorf("remnant table: %w", err)
+	cr := csvtable.NewReader(r, csvtable.Format{Name: "remnant table", Err: ErrRemnantTable})
+	if _, err := cr.ReadHeader(); err != nil {
+		return nil, err
 	}
-	line, _ := cr.FieldPos(0)
-	want := strings.Split(RemnantTableHeader, ",")
-	if len(header) != len(want) {
-		return nil, remnantLineError(line, "%d columns, want %d: %s", len(header), len(want), RemnantTableHeader)
+	if err := cr.BindInOrder(remnantTableColumns()); err != nil {
+		return nil, err
 	}
-	for i, h := range header {
-		if strings.TrimSpace(h) != want[i] {
-			return nil, remnantLineError(line, "column %d is %q, want %q", i+1, h, want[i])
-		}
-	}
-	cr.FieldsPerRecord = len(want)
 	var rows []RemnantTableRow
 	var lines []int
 	for {
-		rec, err := cr.Read()
+		line, vals, err := cr.Next()
 		if errors.Is(err, io.EOF) {
 			break
 		}
 		if err != nil {
-			var pe *csv.ParseError
-			if errors.As(err, &pe) {
-				return nil, remnantLineError(pe.Line, "%v", pe.Err)
-			}
-			return nil, fmt.Errorf("remnant table: %w", err)
+			return nil, err
 		}
-		line, _ := cr.FieldPos(0)
 		var row RemnantTableRow
 		for i, p := range row.fields() {
-			v, err := strconv.ParseFloat(strings.TrimSpace(rec[i]), 64)
-			if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-				return nil, remnantLineError(line, "column %q: %q is not a finite number", want[i], rec[i])
-			}
-			late := i >= lateColumns
-			if v < 0 || (v == 0 && !late) {
-				return nil, remnantLineError(line, "column %q: %v, want > 0", want[i], v)
-			}
-			*p = v
+			*p = vals[i]
+		}
+		if len(rows) > 0 && row.Energy != rows[0].Energy {
+			return nil, cr.Errorf(line, "energy %v erg differs from %v on the first row: one energy per table", row.Energy, rows[0].Energy)
 		}
 		rows = append(rows, row)
 		lines = append(lines, line)
 	}
-	if len(rows) == 0 {
-		return nil, remnantLineError(line, "no data rows")
-	}
 	t := &RemnantTable{energy: rows[0].Energy, rows: rows}
-	for i, row := range rows {
-		if row.Energy != t.energy {
-			return nil, remnantLineError(lines[i], "energy %v erg differs from %v on the first row: one energy per table", row.Energy, t.energy)
-		}
-		if i == 0 || row.Metallicity != rows[i-1].Metallicity {
-			if i > 0 && row.Metallicity < rows[i-1].Metallicity {
-				return nil, remnantLineError(lines[i], "metallicity %v after %v: blocks must rise in metallicity", row.Metallicity, rows[i-1].Metallicity)
-			}
-			t.zs = append(t.zs, row.Metallicity)
-		}
+	var err error
+	t.zs, t.densities, err = cr.Grid(len(rows),
+		csvtable.Axis{Name: "metallicity", Plural: "metallicities"},
+		csvtable.Axis{Name: "density", Plural: "densities"},
+		func(i int) (float64, float64, int) { return rows[i].Metallicity, rows[i].Density, lines[i] })
+	if err != nil {
+		return nil, err
 	}
-	nd := len(rows) / len(t.zs)
-	if nd*len(t.zs) != len(rows) {
-		return nil, remnantLineError(lines[len(lines)-1], "%d rows do not split into %d metallicity blocks of equal size", len(rows), len(t.zs))
-	}
-	for i, row := range rows {
-		iz, in := i/nd, i%nd
-		if row.Metallicity != t.zs[iz] {
-			return nil, remnantLineError(lines[i], "metallicity %v: block %d of %d densities should be at %v", row.Metallicity, iz+1, nd, t.zs[iz])
-		}
-		if iz == 0 {
-			if in > 0 && !(row.Density > t.densities[in-1]) {
-				return nil, remnantLineError(lines[i], "density %v does not rise after %v", row.Density, t.densities[in-1])
-			}
-			t.densities = append(t.densities, row.Density)
-		} else if row.Density != t.densities[in] {
-			return nil, remnantLineError(lines[i], "density %v: metallicity %v has a different density grid (want %v)", row.Density, row.Metallicity, t.densities[in])
-		}
+	for _, row := range rows {
 		t.logP = append(t.logP, math.Log(row.ShellMomentum*units.MsunKms))
 		t.logR = append(t.logR, math.Log(row.ShellRadius*units.Parsec))
 		t.logM = append(t.logM, math.Log(row.ShellMass*units.SolarMass))

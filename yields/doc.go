@@ -78,7 +78,8 @@
 // not exceed the metals. Absent optional elements read as zero. The two
 // far-ultraviolet columns come together or not at all; a table without them
 // has no far-ultraviolet light (Table.HasFarUltraviolet reports which). Any defect
-// is reported with its line number. A table carrying only default-set
+// is an ErrTable error naming its line. (Package csvtable reads the layout
+// this format shares with the project's other tables.) A table carrying only default-set
 // elements releases in the default set's layout; one carrying others in the
 // layout of what it carries (Table.Carried); Table.WithSpecies chooses.
 //

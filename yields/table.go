@@ -6,12 +6,12 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"slices"
 	"sort"
 	"strconv"
 	"strings"
 
+	"github.com/ejecta-dev/ejecta/yields/csvtable"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
@@ -116,12 +116,11 @@ func subsetOfDefault(set SpeciesSet) bool {
 
 // headerElements lists the elements named by per-channel species columns
 // of a header ("ccsn_fe[Msun/Msun]"), in order of first appearance.
-func headerElements(header []string) []Element {
+func headerElements(header []csvtable.Heading) []Element {
 	var out []Element
 	for _, h := range header {
-		name, _, _ := strings.Cut(strings.TrimSpace(h), "[")
 		for _, pre := range tablePrefixes() {
-			sym, ok := strings.CutPrefix(name, pre+"_")
+			sym, ok := strings.CutPrefix(h.Name, pre+"_")
 			if !ok {
 				continue
 			}
@@ -187,90 +186,52 @@ func (t *Table) Ages() []float64 { return append([]float64(nil), t.ages...) }
 // Metallicities is the table's metallicity grid (a copy).
 func (t *Table) Metallicities() []float64 { return append([]float64(nil), t.zs...) }
 
+// ErrTable marks a malformed yields table; the error names the line.
+var ErrTable = errors.New("malformed yields table")
+
+// tableFormat names the yields table format in errors.
+var tableFormat = csvtable.Format{Name: "yields: table", Err: ErrTable}
+
 // ReadTableFile reads a table from a file; errors name the file and line.
 func ReadTableFile(path string) (*Table, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("yields: table: %w", err)
-	}
-	defer f.Close()
-	t, err := ReadTable(f)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, err)
-	}
-	return t, nil
-}
-
-// lineError is an error at a line of the table.
-func lineError(line int, format string, args ...any) error {
-	return fmt.Errorf("yields: table line %d: %s", line, fmt.Sprintf(format, args...))
+	return csvtable.ReadFile(path, "yields: table", ReadTable)
 }
 
 // ReadTable reads a table in the documented CSV format. Any defect — an
 // unknown or missing column, a wrong unit, a value that is not a finite
 // non-negative number, a grid that is not rectangular and increasing, a
 // cumulative column that decreases with age (a negative rate), species that
-// do not add up to the ejected mass — is an error naming the line.
+// do not add up to the ejected mass — is an ErrTable error naming the line.
 func ReadTable(r io.Reader) (*Table, error) {
-	cr := csv.NewReader(r)
-	cr.Comment = '#'
-	cr.TrimLeadingSpace = true
-	cr.ReuseRecord = true
-	header, err := cr.Read()
+	cr := csvtable.NewReader(r, tableFormat)
+	header, err := cr.ReadHeader()
 	if err != nil {
-		if errors.Is(err, io.EOF) {
-			return nil, errors.New("yields: table: empty, no header row")
-		}
-		return nil, fmt.Errorf("yields: table header: %w", err)
+		return nil, err
 	}
-	headerLine, _ := cr.FieldPos(0)
 	own, err := tableSpecies(headerElements(header))
 	if err != nil {
-		return nil, lineError(headerLine, "species columns: %v", err)
+		return nil, cr.Errorf(cr.HeaderLine(), "species columns: %v", err)
 	}
 	columns := tableColumns(own)
-	known := map[string]tableColumn{}
-	for _, c := range columns {
-		known[c.name] = c
+	csvCols := make([]csvtable.Column, len(columns))
+	for i, c := range columns {
+		csvCols[i] = csvtable.Column{Name: c.name, Unit: c.unit, Required: c.required, Min: csvtable.NonNegative}
+	}
+	if err := cr.Bind(csvCols); err != nil {
+		return nil, err
 	}
 	t := &Table{own: own, out: own}
 	if subsetOfDefault(own) {
 		t.out, t.fill = DefaultSpeciesSet(), true
 	}
-	colOf := make([]tableColumn, len(header)) // file column → known column
-	seen := map[string]bool{}
-	for i, h := range header {
-		h = strings.TrimSpace(h)
-		open := strings.IndexByte(h, '[')
-		if open < 0 || !strings.HasSuffix(h, "]") {
-			return nil, lineError(headerLine, "column %d %q: want name[unit]", i+1, h)
-		}
-		name, unit := h[:open], h[open+1:len(h)-1]
-		c, ok := known[name]
-		if !ok {
-			return nil, lineError(headerLine, "column %d: unknown quantity %q", i+1, name)
-		}
-		if unit != c.unit {
-			return nil, lineError(headerLine, "column %q: unit %q, want %q", name, unit, c.unit)
-		}
-		if seen[name] {
-			return nil, lineError(headerLine, "column %q appears twice", name)
-		}
-		seen[name] = true
-		colOf[i] = c
-		if c.index >= 0 {
+	for i, c := range columns {
+		if c.index >= 0 && cr.Has(i) {
 			t.present[c.index] = true
 		}
 	}
-	for _, c := range columns {
-		if c.required && !seen[c.name] {
-			return nil, lineError(headerLine, "missing column %s[%s]", c.name, c.unit)
-		}
+	if t.present[colFUVLuminosity] != t.present[colFUVEnergy] {
+		return nil, cr.Errorf(cr.HeaderLine(), "columns %s and %s come together: give both or neither", fuvLuminosityName, fuvEnergyName)
 	}
-	if seen[fuvLuminosityName] != seen[fuvEnergyName] {
-		return nil, lineError(headerLine, "columns %s and %s come together: give both or neither", fuvLuminosityName, fuvEnergyName)
-	}
-	cr.FieldsPerRecord = len(header)
 
 	type row struct {
 		line   int
@@ -279,86 +240,54 @@ func ReadTable(r io.Reader) (*Table, error) {
 	}
 	var rows []row
 	for {
-		rec, err := cr.Read()
+		line, vals, err := cr.Next()
 		if errors.Is(err, io.EOF) {
 			break
 		}
 		if err != nil {
-			var pe *csv.ParseError
-			if errors.As(err, &pe) {
-				return nil, lineError(pe.Line, "%v", pe.Err)
-			}
-			return nil, fmt.Errorf("yields: table: %w", err)
+			return nil, err
 		}
-		line, _ := cr.FieldPos(0)
 		rw := row{line: line}
-		for i, field := range rec {
-			v, err := strconv.ParseFloat(strings.TrimSpace(field), 64)
-			if err != nil {
-				return nil, lineError(line, "column %q: %q is not a number", colOf[i].name, field)
-			}
-			if math.IsNaN(v) || math.IsInf(v, 0) || v < 0 {
-				return nil, lineError(line, "column %q: %v, want a finite value >= 0", colOf[i].name, v)
-			}
-			switch colOf[i].index {
+		for i, c := range columns {
+			switch c.index {
 			case -1:
-				rw.age = v
+				rw.age = vals[i]
 			case -2:
-				rw.z = v
+				rw.z = vals[i]
 			default:
-				rw.v[colOf[i].index] = v
+				rw.v[c.index] = vals[i]
 			}
 		}
 		if !(rw.age > 0) {
-			return nil, lineError(line, "age %v Myr: want > 0 (the grid is in log age)", rw.age)
+			return nil, cr.Errorf(line, "age %v Myr: want > 0 (the grid is in log age)", rw.age)
 		}
 		if !(rw.z > 0) || rw.z >= 1 {
-			return nil, lineError(line, "metallicity %v: want in (0, 1) (the grid is in log Z)", rw.z)
+			return nil, cr.Errorf(line, "metallicity %v: want in (0, 1) (the grid is in log Z)", rw.z)
 		}
-		if err := checkRowSpecies(&rw.v, line); err != nil {
+		if err := checkRowSpecies(cr, &rw.v, line); err != nil {
 			return nil, err
 		}
 		rows = append(rows, rw)
 	}
-	if len(rows) == 0 {
-		return nil, lineError(headerLine, "no data rows")
-	}
 	// Grid: blocks of rising metallicity, each with the same rising ages.
-	for i, rw := range rows {
-		if i == 0 || rw.z != rows[i-1].z {
-			if i > 0 && rw.z < rows[i-1].z {
-				return nil, lineError(rw.line, "metallicity %v after %v: blocks must rise in metallicity", rw.z, rows[i-1].z)
-			}
-			t.zs = append(t.zs, rw.z)
-		}
+	t.zs, t.ages, err = cr.Grid(len(rows),
+		csvtable.Axis{Name: "metallicity", Plural: "metallicities"},
+		csvtable.Axis{Name: "age", Plural: "ages", Unit: "Myr"},
+		func(i int) (float64, float64, int) { return rows[i].z, rows[i].age, rows[i].line })
+	if err != nil {
+		return nil, err
 	}
-	na := len(rows) / len(t.zs)
-	if na*len(t.zs) != len(rows) {
-		return nil, lineError(rows[len(rows)-1].line, "%d rows do not split into %d metallicity blocks of equal size", len(rows), len(t.zs))
-	}
+	na := len(t.ages)
 	if na < 2 {
-		return nil, lineError(rows[0].line, "each metallicity needs at least two ages")
+		return nil, cr.Errorf(rows[0].line, "each metallicity needs at least two ages")
 	}
-	t.ages = make([]float64, na)
 	t.data = make([]float64, 0, len(rows)*numTableCols)
 	for i, rw := range rows {
-		iz, ia := i/na, i%na
-		if rw.z != t.zs[iz] {
-			return nil, lineError(rw.line, "metallicity %v: block %d of %d ages should be at %v", rw.z, iz+1, na, t.zs[iz])
-		}
-		if iz == 0 {
-			t.ages[ia] = rw.age
-			if ia > 0 && !(rw.age > t.ages[ia-1]) {
-				return nil, lineError(rw.line, "age %v Myr does not rise after %v", rw.age, t.ages[ia-1])
-			}
-		} else if rw.age != t.ages[ia] {
-			return nil, lineError(rw.line, "age %v Myr: metallicity %v has a different age grid (want %v)", rw.age, rw.z, t.ages[ia])
-		}
-		if ia > 0 {
+		if i%na > 0 {
 			prev := &rows[i-1]
 			for _, c := range columns {
 				if c.cumulative && c.index >= 0 && rw.v[c.index] < prev.v[c.index] {
-					return nil, lineError(rw.line, "column %q falls from %v to %v: cumulative values cannot decrease (negative rate)", c.name, prev.v[c.index], rw.v[c.index])
+					return nil, cr.Errorf(rw.line, "column %q falls from %v to %v: cumulative values cannot decrease (negative rate)", c.name, prev.v[c.index], rw.v[c.index])
 				}
 			}
 		}
@@ -379,21 +308,21 @@ func ReadTable(r io.Reader) (*Table, error) {
 // (to 1e-6 relative, for rounded tables), that no element exceeds the
 // metals, and then sets the mass to the species sum so that releases keep
 // H + He + metals = mass to round-off.
-func checkRowSpecies(v *[numTableCols]float64, line int) error {
+func checkRowSpecies(cr *csvtable.Reader, v *[numTableCols]float64, line int) error {
 	for ch, pre := range tablePrefixes() {
 		b := colChannels + ch*colsPerChannel
 		mass := v[b+chMass]
 		sp := v[b+chSpecies : b+colsPerChannel]
 		sum := sp[Hydrogen] + sp[Helium] + sp[Metals]
 		if math.Abs(sum-mass) > 1e-6*math.Max(mass, sum)+1e-300 {
-			return lineError(line, "%s: H + He + metals = %v but mass = %v", pre, sum, mass)
+			return cr.Errorf(line, "%s: H + He + metals = %v but mass = %v", pre, sum, mass)
 		}
 		var elems float64
 		for s := Carbon; s < NumSpecies; s++ {
 			elems += sp[s]
 		}
 		if elems > sp[Metals]*(1+1e-6)+1e-300 {
-			return lineError(line, "%s: elements sum to %v, more than the metals %v", pre, elems, sp[Metals])
+			return cr.Errorf(line, "%s: elements sum to %v, more than the metals %v", pre, elems, sp[Metals])
 		}
 		v[b+chMass] = sum
 	}

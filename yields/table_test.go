@@ -188,6 +188,7 @@ func TestReadTableRejectsMalformed(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			_, err := ReadTable(strings.NewReader(tc.input))
 			require.Error(t, err)
+			assert.ErrorIs(t, err, ErrTable)
 			assert.Contains(t, err.Error(), tc.wantLine)
 			assert.Contains(t, err.Error(), tc.wantText)
 		})

@@ -1,14 +1,13 @@
 package cooling
 
 import (
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"strconv"
-	"strings"
+
+	"github.com/ejecta-dev/ejecta/yields/csvtable"
 )
 
 // ErrTable marks a malformed cooling table; the error text names the line.
@@ -77,20 +76,16 @@ func (t *Table) Curve(zeta float64) (*Curve, error) {
 
 // ReadTableFile reads a table from a file; errors name the file and line.
 func ReadTableFile(path string) (*Table, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("cooling: table: %w", err)
-	}
-	defer f.Close()
-	t, err := ReadTable(f)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", path, err)
-	}
-	return t, nil
+	return csvtable.ReadFile(path, "cooling: table", ReadTable)
 }
 
-func tableLineError(line int, format string, args ...any) error {
-	return fmt.Errorf("cooling: table line %d: %s: %w", line, fmt.Sprintf(format, args...), ErrTable)
+// tableColumns are the columns of the table format, in the order of
+// TableHeader.
+var tableColumns = []csvtable.Column{
+	{Name: colTemperature, Unit: unitTemp, Required: true},
+	{Name: colMetallicity, Unit: unitZ, Required: true},
+	{Name: colCooling, Unit: unitCooling, Required: true},
+	{Name: colHeating, Unit: unitHeating},
 }
 
 // ReadTable reads a table in the documented CSV format. Every defect — an
@@ -101,49 +96,13 @@ func tableLineError(line int, format string, args ...any) error {
 // differ between blocks, fewer than two temperatures — is an ErrTable error
 // naming the line.
 func ReadTable(r io.Reader) (*Table, error) {
-	cr := csv.NewReader(r)
-	cr.Comment = '#'
-	cr.TrimLeadingSpace = true
-	header, err := cr.Read()
-	if err != nil {
-		if errors.Is(err, io.EOF) {
-			return nil, fmt.Errorf("cooling: table: empty, no header row: %w", ErrTable)
-		}
-		var pe *csv.ParseError
-		if errors.As(err, &pe) {
-			return nil, tableLineError(pe.Line, "%v", pe.Err)
-		}
-		return nil, fmt.Errorf("cooling: table header: %w", err)
+	cr := csvtable.NewReader(r, csvtable.Format{Name: "cooling: table", Err: ErrTable, Header: TableHeader})
+	if _, err := cr.ReadHeader(); err != nil {
+		return nil, err
 	}
-	headerLine, _ := cr.FieldPos(0)
-	units := map[string]string{colTemperature: unitTemp, colMetallicity: unitZ, colCooling: unitCooling, colHeating: unitHeating}
-	col := map[string]int{}
-	for i, h := range header {
-		h = strings.TrimSpace(h)
-		open := strings.IndexByte(h, '[')
-		if open < 0 || !strings.HasSuffix(h, "]") {
-			return nil, tableLineError(headerLine, "column %d %q: want name[unit]", i+1, h)
-		}
-		name, unit := h[:open], h[open+1:len(h)-1]
-		want, ok := units[name]
-		if !ok {
-			return nil, tableLineError(headerLine, "column %d: unknown quantity %q (want %s)", i+1, name, TableHeader)
-		}
-		if unit != want {
-			return nil, tableLineError(headerLine, "column %q: unit %q, want %q", name, unit, want)
-		}
-		if _, dup := col[name]; dup {
-			return nil, tableLineError(headerLine, "column %q appears twice", name)
-		}
-		col[name] = i
+	if err := cr.Bind(tableColumns); err != nil {
+		return nil, err
 	}
-	for _, name := range []string{colTemperature, colMetallicity, colCooling} {
-		if _, ok := col[name]; !ok {
-			return nil, tableLineError(headerLine, "missing column %s[%s]", name, units[name])
-		}
-	}
-	hCol, hasHeating := col[colHeating]
-	cr.FieldsPerRecord = len(header)
 
 	type row struct {
 		line                  int
@@ -151,60 +110,31 @@ func ReadTable(r io.Reader) (*Table, error) {
 	}
 	var rows []row
 	for {
-		rec, err := cr.Read()
+		line, v, err := cr.Next()
 		if errors.Is(err, io.EOF) {
 			break
 		}
 		if err != nil {
-			var pe *csv.ParseError
-			if errors.As(err, &pe) {
-				return nil, tableLineError(pe.Line, "%v", pe.Err)
-			}
-			return nil, fmt.Errorf("cooling: table: %w", err)
-		}
-		line, _ := cr.FieldPos(0)
-		num := func(name string, i int) (float64, error) {
-			v, err := strconv.ParseFloat(strings.TrimSpace(rec[i]), 64)
-			if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-				return 0, tableLineError(line, "column %q: %q is not a finite number", name, rec[i])
-			}
-			return v, nil
-		}
-		rw := row{line: line}
-		if rw.logT, err = num(colTemperature, col[colTemperature]); err != nil {
 			return nil, err
 		}
-		if rw.z, err = num(colMetallicity, col[colMetallicity]); err != nil {
-			return nil, err
-		}
-		if rw.lam, err = num(colCooling, col[colCooling]); err != nil {
-			return nil, err
-		}
-		if hasHeating {
-			if rw.heating, err = num(colHeating, hCol); err != nil {
-				return nil, err
-			}
-		}
+		rw := row{line: line, logT: v[0], z: v[1], lam: v[2], heating: v[3]}
 		switch {
 		case !(rw.z > 0):
-			return nil, tableLineError(line, "metallicity %v: want > 0 (the grid is in log metallicity)", rw.z)
+			return nil, cr.Errorf(line, "metallicity %v: want > 0 (the grid is in log metallicity)", rw.z)
 		case !(rw.lam > 0):
-			return nil, tableLineError(line, "cooling %v: want > 0 (segments are power laws)", rw.lam)
+			return nil, cr.Errorf(line, "cooling %v: want > 0 (segments are power laws)", rw.lam)
 		case rw.heating < 0:
-			return nil, tableLineError(line, "heating %v: want >= 0", rw.heating)
+			return nil, cr.Errorf(line, "heating %v: want >= 0", rw.heating)
 		case math.Abs(rw.logT) > 300:
-			return nil, tableLineError(line, "log10 temperature %v is out of range", rw.logT)
+			return nil, cr.Errorf(line, "log10 temperature %v is out of range", rw.logT)
 		}
 		rows = append(rows, rw)
-	}
-	if len(rows) == 0 {
-		return nil, tableLineError(headerLine, "no data rows")
 	}
 	t := &Table{}
 	var block []row
 	flush := func() error {
 		if len(block) < 2 {
-			return tableLineError(block[0].line, "metallicity %v has %d temperature, want at least two", block[0].z, len(block))
+			return cr.Errorf(block[0].line, "metallicity %v has %d temperature, want at least two", block[0].z, len(block))
 		}
 		lam := make([]float64, len(block))
 		first := len(t.zs) == 0
@@ -212,19 +142,19 @@ func ReadTable(r io.Reader) (*Table, error) {
 			tk := math.Pow(10, rw.logT)
 			if first {
 				if i > 0 && !(tk > t.temp[i-1]) {
-					return tableLineError(rw.line, "log10 temperature %v does not rise", rw.logT)
+					return cr.Errorf(rw.line, "log10 temperature %v does not rise", rw.logT)
 				}
 				t.temp = append(t.temp, tk)
 			} else if i >= len(t.temp) || tk != t.temp[i] {
-				return tableLineError(rw.line, "metallicity %v: temperature grid differs from metallicity %v's", rw.z, t.zs[0])
+				return cr.Errorf(rw.line, "metallicity %v: temperature grid differs from metallicity %v's", rw.z, t.zs[0])
 			}
 			if rw.heating != block[0].heating {
-				return tableLineError(rw.line, "heating %v differs from %v earlier in metallicity %v: heating is one value per metallicity", rw.heating, block[0].heating, rw.z)
+				return cr.Errorf(rw.line, "heating %v differs from %v earlier in metallicity %v: heating is one value per metallicity", rw.heating, block[0].heating, rw.z)
 			}
 			lam[i] = rw.lam
 		}
 		if !first && len(block) != len(t.temp) {
-			return tableLineError(block[len(block)-1].line, "metallicity %v has %d temperatures, want %d", block[0].z, len(block), len(t.temp))
+			return cr.Errorf(block[len(block)-1].line, "metallicity %v has %d temperatures, want %d", block[0].z, len(block), len(t.temp))
 		}
 		t.zs = append(t.zs, block[0].z)
 		t.lambda = append(t.lambda, lam)
@@ -234,7 +164,7 @@ func ReadTable(r io.Reader) (*Table, error) {
 	for _, rw := range rows {
 		if len(block) > 0 && rw.z != block[0].z {
 			if rw.z < block[0].z {
-				return nil, tableLineError(rw.line, "metallicity %v after %v: blocks must rise in metallicity", rw.z, block[0].z)
+				return nil, cr.Errorf(rw.line, "metallicity %v after %v: blocks must rise in metallicity", rw.z, block[0].z)
 			}
 			if err := flush(); err != nil {
 				return nil, err
