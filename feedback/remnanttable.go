@@ -208,14 +208,7 @@ func ReadRemnantTable(r io.Reader) (*RemnantTable, error) {
 	}
 	var rows []RemnantTableRow
 	var lines []int
-	for {
-		line, vals, err := cr.Next()
-		if errors.Is(err, io.EOF) {
-			break
-		}
-		if err != nil {
-			return nil, err
-		}
+	for line, vals := range cr.Rows() {
 		var row RemnantTableRow
 		for i, p := range row.fields() {
 			*p = vals[i]
@@ -225,6 +218,9 @@ func ReadRemnantTable(r io.Reader) (*RemnantTable, error) {
 		}
 		rows = append(rows, row)
 		lines = append(lines, line)
+	}
+	if err := cr.Err(); err != nil {
+		return nil, err
 	}
 	t := &RemnantTable{energy: rows[0].Energy, rows: rows}
 	var err error

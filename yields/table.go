@@ -239,14 +239,7 @@ func ReadTable(r io.Reader) (*Table, error) {
 		v      [numTableCols]float64
 	}
 	var rows []row
-	for {
-		line, vals, err := cr.Next()
-		if errors.Is(err, io.EOF) {
-			break
-		}
-		if err != nil {
-			return nil, err
-		}
+	for line, vals := range cr.Rows() {
 		rw := row{line: line}
 		for i, c := range columns {
 			switch c.index {
@@ -268,6 +261,9 @@ func ReadTable(r io.Reader) (*Table, error) {
 			return nil, err
 		}
 		rows = append(rows, rw)
+	}
+	if err := cr.Err(); err != nil {
+		return nil, err
 	}
 	// Grid: blocks of rising metallicity, each with the same rising ages.
 	t.zs, t.ages, err = cr.Grid(len(rows),

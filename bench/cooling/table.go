@@ -109,14 +109,7 @@ func ReadTable(r io.Reader) (*Table, error) {
 		logT, z, lam, heating float64
 	}
 	var rows []row
-	for {
-		line, v, err := cr.Next()
-		if errors.Is(err, io.EOF) {
-			break
-		}
-		if err != nil {
-			return nil, err
-		}
+	for line, v := range cr.Rows() {
 		rw := row{line: line, logT: v[0], z: v[1], lam: v[2], heating: v[3]}
 		switch {
 		case !(rw.z > 0):
@@ -129,6 +122,9 @@ func ReadTable(r io.Reader) (*Table, error) {
 			return nil, cr.Errorf(line, "log10 temperature %v is out of range", rw.logT)
 		}
 		rows = append(rows, rw)
+	}
+	if err := cr.Err(); err != nil {
+		return nil, err
 	}
 	t := &Table{}
 	var block []row

@@ -8,7 +8,7 @@
 // required, the least value it accepts). A Reader reads the header
 // (ReadHeader), checks it against those columns (Bind, or BindInOrder for a
 // format with one fixed header) and parses each row into finite numbers
-// (Next). Every defect is an error that names the line, and the column where
+// (Rows). Every defect is an error that names the line, and the column where
 // there is one, and wraps the format's sentinel error (Format.Err), so
 // callers match it with errors.Is; Errorf gives the checks each format makes
 // of its own (rising grids, sums) the same form. The package imports nothing
@@ -20,6 +20,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"iter"
 	"math"
 	"os"
 	"strconv"
@@ -75,7 +76,7 @@ type Heading struct {
 func (h Heading) String() string { return h.Name + "[" + h.Unit + "]" }
 
 // Reader reads one table. Use ReadHeader, then Bind or BindInOrder, then
-// Next until io.EOF.
+// range over Rows and check Err.
 type Reader struct {
 	cr         *csv.Reader
 	format     Format
@@ -87,6 +88,7 @@ type Reader struct {
 	inOrder    bool   // columns are named as name[unit] in errors
 	values     []float64
 	rows       int
+	err        error // the defect that stopped Rows
 }
 
 // NewReader returns a Reader of the table in r, in format f.
@@ -221,13 +223,35 @@ func (r *Reader) label(j int) string {
 	return strconv.Quote(r.cols[j].Name)
 }
 
-// Next reads the next row: its line number and its values, indexed like the
-// bound columns (absent optional columns are zero). The values slice is
-// reused by the next call. A row with the wrong number of fields, a field
-// that is not a finite number, or a value below its column's Min is an
-// error naming the line and the column. After the last row Next returns
-// io.EOF; a table without any row is an error at the header line.
-func (r *Reader) Next() (line int, values []float64, err error) {
+// Rows iterates over the table's rows: each row's line number and values,
+// indexed like the bound columns (absent optional columns are zero; the
+// values slice is reused by the next row). It stops after the last row or at
+// the first defect, which Err then returns: a row with the wrong number of
+// fields, a field that is not a finite number, or a value below its
+// column's Min, named by line and column. A table without any row is an
+// error at the header line.
+func (r *Reader) Rows() iter.Seq2[int, []float64] {
+	return func(yield func(int, []float64) bool) {
+		for r.err == nil {
+			line, v, err := r.next()
+			if err != nil {
+				if !errors.Is(err, io.EOF) {
+					r.err = err
+				}
+				return
+			}
+			if !yield(line, v) {
+				return
+			}
+		}
+	}
+}
+
+// Err is the defect that stopped Rows, or nil.
+func (r *Reader) Err() error { return r.err }
+
+// next reads one row; io.EOF after the last.
+func (r *Reader) next() (line int, values []float64, err error) {
 	rec, err := r.cr.Read()
 	if errors.Is(err, io.EOF) {
 		if r.rows == 0 {

@@ -38,17 +38,14 @@ func readAll(src io.Reader, f Format, cols []Column, inOrder bool) (rows [][]flo
 	if err := bind(cols); err != nil {
 		return nil, nil, r, err
 	}
-	for {
-		line, v, err := r.Next()
-		if errors.Is(err, io.EOF) {
-			return rows, lines, r, nil
-		}
-		if err != nil {
-			return nil, nil, r, err
-		}
+	for line, v := range r.Rows() {
 		rows = append(rows, append([]float64(nil), v...))
 		lines = append(lines, line)
 	}
+	if err := r.Err(); err != nil {
+		return nil, nil, r, err
+	}
+	return rows, lines, r, nil
 }
 
 // A table whose header lists the columns in another order, with comment
@@ -151,11 +148,35 @@ func TestReaderIOError(t *testing.T) {
 	_, err = r.ReadHeader()
 	require.NoError(t, err)
 	require.NoError(t, r.Bind(testColumns))
-	_, _, err = r.Next()
+	n := 0
+	for range r.Rows() {
+		n++
+	}
+	assert.Equal(t, 1, n, "the row before the failure is read")
+	assert.ErrorIs(t, r.Err(), errIO)
+	assert.NotErrorIs(t, r.Err(), errTest)
+}
+
+// Rows may be left early; the defect of a later row stops it for good.
+func TestReaderRowsStops(t *testing.T) {
+	r := NewReader(strings.NewReader("x[cm],y[g]\n1,1\n2,2\n3,-3\n4,4\n"), testFormat)
+	_, err := r.ReadHeader()
 	require.NoError(t, err)
-	_, _, err = r.Next()
-	assert.ErrorIs(t, err, errIO)
-	assert.NotErrorIs(t, err, errTest)
+	require.NoError(t, r.Bind(testColumns))
+	for line := range r.Rows() {
+		assert.Equal(t, 2, line)
+		break
+	}
+	require.NoError(t, r.Err())
+	var lines []int
+	for line := range r.Rows() {
+		lines = append(lines, line)
+	}
+	assert.Equal(t, []int{3}, lines, "the next range goes on from the row after")
+	assert.ErrorContains(t, r.Err(), "line 4:")
+	for range r.Rows() {
+		t.Fatal("no rows after a defect")
+	}
 }
 
 // Errorf gives a format's own checks the shared form.

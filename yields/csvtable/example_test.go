@@ -3,7 +3,6 @@ package csvtable_test
 import (
 	"errors"
 	"fmt"
-	"io"
 	"strings"
 
 	"github.com/ejecta-dev/ejecta/yields/csvtable"
@@ -29,15 +28,11 @@ age[Myr],luminosity[Lsun]
 	if err := r.Bind(cols); err != nil {
 		panic(err)
 	}
-	for {
-		line, v, err := r.Next()
-		if errors.Is(err, io.EOF) {
-			break
-		}
-		if err != nil {
-			panic(err)
-		}
+	for line, v := range r.Rows() {
 		fmt.Printf("line %d: age %v Myr, luminosity %v Lsun\n", line, v[0], v[1])
+	}
+	if err := r.Err(); err != nil {
+		panic(err)
 	}
 	fmt.Println("ionizing rate given:", r.Has(2))
 
