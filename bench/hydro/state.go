@@ -64,38 +64,46 @@ const (
 	Z
 )
 
+// permute reorders a vector's components so that axis a's comes first and
+// the other two follow in cyclic order: for Y (y, z, x), for Z (z, x, y).
+func permute(a Axis, x, y, z float64) (float64, float64, float64) {
+	switch a {
+	case Y:
+		return y, z, x
+	case Z:
+		return z, x, y
+	}
+	return x, y, z
+}
+
+// unpermute undoes permute.
+func unpermute(a Axis, x, y, z float64) (float64, float64, float64) {
+	switch a {
+	case Y:
+		return z, x, y
+	case Z:
+		return y, z, x
+	}
+	return x, y, z
+}
+
 // Permute returns w with axis a's velocity as Vx and the other two, in
 // cyclic order, as Vy and Vz: for Y (vy, vz, vx), for Z (vz, vx, vy).
 func (w Prim) Permute(a Axis) Prim {
-	switch a {
-	case Y:
-		w.Vx, w.Vy, w.Vz = w.Vy, w.Vz, w.Vx
-	case Z:
-		w.Vx, w.Vy, w.Vz = w.Vz, w.Vx, w.Vy
-	}
+	w.Vx, w.Vy, w.Vz = permute(a, w.Vx, w.Vy, w.Vz)
 	return w
+}
+
+// Permute on a conserved state, like Prim.Permute.
+func (u Cons) Permute(a Axis) Cons {
+	u.MomX, u.MomY, u.MomZ = permute(a, u.MomX, u.MomY, u.MomZ)
+	return u
 }
 
 // Unpermute undoes Permute on a conserved state or flux: the x-normal
 // components of a flux through an a-face go back to their Cartesian slots.
 func (u Cons) Unpermute(a Axis) Cons {
-	switch a {
-	case Y:
-		u.MomX, u.MomY, u.MomZ = u.MomZ, u.MomX, u.MomY
-	case Z:
-		u.MomX, u.MomY, u.MomZ = u.MomY, u.MomZ, u.MomX
-	}
-	return u
-}
-
-// Permute on a conserved state, like Prim.Permute.
-func (u Cons) Permute(a Axis) Cons {
-	switch a {
-	case Y:
-		u.MomX, u.MomY, u.MomZ = u.MomY, u.MomZ, u.MomX
-	case Z:
-		u.MomX, u.MomY, u.MomZ = u.MomZ, u.MomX, u.MomY
-	}
+	u.MomX, u.MomY, u.MomZ = unpermute(a, u.MomX, u.MomY, u.MomZ)
 	return u
 }
 
