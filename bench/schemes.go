@@ -2,7 +2,6 @@ package bench
 
 import (
 	"fmt"
-	"strings"
 	"sync"
 
 	"github.com/ejecta-dev/ejecta/feedback"
@@ -136,35 +135,8 @@ func Schemes() []SchemeSpec {
 }
 
 // SelectSchemes returns the variants with the given names, in the given
-// order; nil or empty names select all of them.
+// order; nil or empty names select all of them. An unknown name, or one
+// given twice, is an error.
 func SelectSchemes(names []string) ([]SchemeSpec, error) {
-	all := Schemes()
-	if len(names) == 0 {
-		return all, nil
-	}
-	var out []SchemeSpec
-	seen := map[string]bool{}
-	for _, n := range names {
-		n = strings.TrimSpace(n)
-		if seen[n] {
-			return nil, fmt.Errorf("scheme %q named twice", n)
-		}
-		seen[n] = true
-		found := false
-		for _, s := range all {
-			if s.Name == n {
-				out = append(out, s)
-				found = true
-				break
-			}
-		}
-		if !found {
-			known := make([]string, len(all))
-			for i, s := range all {
-				known[i] = s.Name
-			}
-			return nil, fmt.Errorf("unknown scheme %q (known: %s)", n, strings.Join(known, ", "))
-		}
-	}
-	return out, nil
+	return selectByName(Schemes(), func(s SchemeSpec) string { return s.Name }, names, "scheme")
 }

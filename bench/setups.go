@@ -107,38 +107,10 @@ func StandardSetups() []Setup {
 }
 
 // SelectSetups returns the standard set-ups with the given names, in the
-// given order; nil or empty names select all of them.
+// given order; nil or empty names select all of them. An unknown name, or
+// one given twice, is an error.
 func SelectSetups(names []string) ([]Setup, error) {
-	all := StandardSetups()
-	if len(names) == 0 {
-		return all, nil
-	}
-	var out []Setup
-	for _, n := range names {
-		found := false
-		for _, s := range all {
-			if s.Name == n {
-				out = append(out, s)
-				found = true
-				break
-			}
-		}
-		if !found {
-			return nil, fmt.Errorf("unknown set-up %q (known: %s)", n, setupNames(all))
-		}
-	}
-	return out, nil
-}
-
-func setupNames(s []Setup) string {
-	out := ""
-	for i, x := range s {
-		if i > 0 {
-			out += ", "
-		}
-		out += x.Name
-	}
-	return out
+	return selectByName(StandardSetups(), func(s Setup) string { return s.Name }, names, "set-up")
 }
 
 // solarMetallicity is the gas metal mass fraction of the built-in set-ups.

@@ -148,6 +148,13 @@ func TestSetupsRejectBadSpecs(t *testing.T) {
 	}
 	_, err := SelectSetups([]string{"moon"})
 	assert.ErrorContains(t, err, "unknown set-up")
+	_, err = SelectSetups([]string{"glass", " glass"})
+	assert.ErrorContains(t, err, `set-up "glass" named twice`)
+	two, err := SelectSetups([]string{"interface", " uniform-lattice "})
+	require.NoError(t, err)
+	require.Len(t, two, 2)
+	assert.Equal(t, "interface", two[0].Name)
+	assert.Equal(t, "uniform-lattice", two[1].Name)
 }
 
 // The touch-only floor leaves the gas bit for bit as it was and touches k
