@@ -48,7 +48,7 @@ func TestAuditCatchesPlantedErrors(t *testing.T) {
 			// The host forgot that ejecta move with their star: remove
 			// M v_star from the element nearest each star.
 			for _, st := range s {
-				i := nearest(a, st)
+				i := feedbacktest.Nearest(a, st.Pos)
 				for k := 0; k < 3; k++ {
 					a.Vel[k][i] -= st.Mass * st.Vel[k] / a.Mass[i]
 				}
@@ -57,7 +57,7 @@ func TestAuditCatchesPlantedErrors(t *testing.T) {
 		{"one-sided momentum", func(a *audit.GasArrays, s []audit.Star) {
 			// Every touched element gets an extra push along +x.
 			for _, st := range s {
-				i := nearest(a, st)
+				i := feedbacktest.Nearest(a, st.Pos)
 				a.Vel[0][i] += 5
 			}
 		}, "one-sided"},
@@ -134,23 +134,23 @@ func TestStepNamesOffendingElements(t *testing.T) {
 		exact             bool // the element is the only one named
 	}{
 		{"lost mass", func(b, a *audit.GasArrays, s []audit.Star) int {
-			i := nearest(a, s[0])
+			i := feedbacktest.Nearest(a, s[0].Pos)
 			a.Mass[i] = 0.9 * b.Mass[i] // it lost mass
 			return i
 		}, []string{"mass", "species Fe", "energy"}, []string{"mass"}, false},
 		{"lost iron", func(b, a *audit.GasArrays, s []audit.Star) int {
-			i := nearest(a, s[0])
+			i := feedbacktest.Nearest(a, s[0].Pos)
 			c := fe(a)
 			a.Fractions[c][i] = 0.5 * b.Fractions[c][i] * b.Mass[i] / a.Mass[i] // half its iron gone
 			return i
 		}, []string{"species Fe"}, []string{"species Fe"}, false},
 		{"extra push", func(_, a *audit.GasArrays, s []audit.Star) int {
-			i := nearest(a, s[0])
+			i := feedbacktest.Nearest(a, s[0].Pos)
 			a.Vel[1][i] += 5
 			return i
 		}, []string{"momentum y", "energy"}, nil, false},
 		{"extra heat", func(_, a *audit.GasArrays, s []audit.Star) int {
-			i := nearest(a, s[0])
+			i := feedbacktest.Nearest(a, s[0].Pos)
 			a.Energy[i] *= 1.01
 			return i
 		}, []string{"energy"}, nil, false},
@@ -200,7 +200,7 @@ func TestStepNamesOffendingElements(t *testing.T) {
 // both elements.
 func TestStepCatchesMassMovedOutOfRange(t *testing.T) {
 	before, after, stars := makeDump(t)
-	in := nearest(after, stars[0])
+	in := feedbacktest.Nearest(after, stars[0].Pos)
 	out := -1
 	for i := range after.Mass {
 		if !anyInRange(after, stars, i) {
@@ -287,21 +287,7 @@ func fe(g *audit.GasArrays) int {
 	panic("no iron column")
 }
 
-func nearest(g *audit.GasArrays, s audit.Star) int {
-	best, bd := 0, 1e300
-	for i := range g.Mass {
-		d := 0.0
-		for k := 0; k < 3; k++ {
-			d += (g.Pos[k][i] - s.Pos[k]) * (g.Pos[k][i] - s.Pos[k])
-		}
-		if d < bd {
-			best, bd = i, d
-		}
-	}
-	return best
-}
-
-func touchedIndex(g *audit.GasArrays, s []audit.Star) int { return nearest(g, s[0]) }
+func touchedIndex(g *audit.GasArrays, s []audit.Star) int { return feedbacktest.Nearest(g, s[0].Pos) }
 
 func anyInRange(g *audit.GasArrays, s []audit.Star, i int) bool {
 	for _, st := range s {

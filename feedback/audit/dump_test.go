@@ -136,7 +136,7 @@ func TestDumpWithAChosenSpeciesSet(t *testing.T) {
 	assert.NotContains(t, names, "species H", "slot 1 is nickel in this set, not hydrogen")
 
 	// The element nearest the first star loses half the nickel it had.
-	i := nearest(d.After, d.Stars[0])
+	i := feedbacktest.Nearest(d.After, d.Stars[0].Pos)
 	d.After.Fractions[1][i] = 0.5 * d.Before.Fractions[1][i] * d.Before.Mass[i] / d.After.Mass[i]
 	rep, err = audit.Step(d.Before, d.After, d.Stars, d.Options())
 	require.NoError(t, err)

@@ -63,3 +63,20 @@ func Dump(scheme feedback.Scheme, scenario string, seed uint64) (before, after *
 	}
 	return sc.Gas.Clone(), r.gas, stars, nil
 }
+
+// Nearest is the index of the element of g nearest pos (the first of
+// equally near ones): where tests of an audit plant errors, next to a star
+// of a Dump.
+func Nearest(g *audit.GasArrays, pos [3]float64) int {
+	best, bd := 0, math.Inf(1)
+	for i := range g.Mass {
+		d := 0.0
+		for k := 0; k < 3; k++ {
+			d += (g.Pos[k][i] - pos[k]) * (g.Pos[k][i] - pos[k])
+		}
+		if d < bd {
+			best, bd = i, d
+		}
+	}
+	return best
+}

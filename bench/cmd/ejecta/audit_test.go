@@ -36,15 +36,15 @@ func TestAuditCommand(t *testing.T) {
 		want  string
 	}{
 		{"exact ejecta dump", func(*audit.GasArrays, []audit.Star) {}, 0, "passed"},
-		{"lost mass", func(a *audit.GasArrays, s []audit.Star) { a.Mass[nearestTo(a, s[0])] *= 0.999 }, 1, "mass imbalance"},
+		{"lost mass", func(a *audit.GasArrays, s []audit.Star) { a.Mass[feedbacktest.Nearest(a, s[0].Pos)] *= 0.999 }, 1, "mass imbalance"},
 		{"wrong frame", func(a *audit.GasArrays, s []audit.Star) {
-			i := nearestTo(a, s[0])
+			i := feedbacktest.Nearest(a, s[0].Pos)
 			for k := 0; k < 3; k++ {
 				a.Vel[k][i] -= s[0].Mass * s[0].Vel[k] / a.Mass[i]
 			}
 		}, 1, "momentum x imbalance"},
 		{"one-sided momentum", func(a *audit.GasArrays, s []audit.Star) {
-			a.Vel[1][nearestTo(a, s[0])] += 3
+			a.Vel[1][feedbacktest.Nearest(a, s[0].Pos)] += 3
 		}, 1, "one-sided"},
 	}
 	for _, c := range cases {
@@ -71,20 +71,6 @@ func TestAuditCommandBadInput(t *testing.T) {
 	errOut.Reset()
 	assert.Equal(t, 2, run([]string{"audit", "-manifest", bad}, &out, &errOut))
 	assert.Contains(t, errOut.String(), "unknown")
-}
-
-func nearestTo(g *audit.GasArrays, s audit.Star) int {
-	best, bd := 0, 1e300
-	for i := range g.Mass {
-		d := 0.0
-		for k := 0; k < 3; k++ {
-			d += (g.Pos[k][i] - s.Pos[k]) * (g.Pos[k][i] - s.Pos[k])
-		}
-		if d < bd {
-			best, bd = i, d
-		}
-	}
-	return best
 }
 
 // A tolerance that is not a finite non-negative number is refused before
@@ -250,7 +236,7 @@ func TestAuditCommandSpeciesSet(t *testing.T) {
 
 	// Half the nickel of one element is lost: the balance that fails is
 	// nickel's.
-	after.Fractions[1][nearestTo(after, stars[0])] *= 0.5
+	after.Fractions[1][feedbacktest.Nearest(after, stars[0].Pos)] *= 0.5
 	require.NoError(t, audit.WriteDump(dir, &audit.Dump{Species: set, Before: before, After: after, Stars: stars}))
 	code, out, _ = runCLI("audit", "-manifest", path)
 	assert.Equal(t, 1, code)
