@@ -94,8 +94,8 @@ extern "C" {
 /* A count, size, stride, element type, species code, mode or other argument
  * is out of range, or the configuration is inconsistent. */
 #define EJECTA_ERR_INVALID_ARGUMENT 2
-/* A scheme, remnant fit or weighting name is not known, or a name field is
- * not NUL-terminated inside its array. */
+/* A scheme, remnant fit, weighting or IMF name is not known (or empty), or
+ * a name field is not NUL-terminated inside its array. */
 #define EJECTA_ERR_UNKNOWN_NAME 3
 /* The context handle is 0, was destroyed, or is not an ejecta context; or
  * (ejecta_dump_* calls) the dump handle is 0, was closed, or is not a dump
@@ -532,7 +532,8 @@ typedef struct ejecta_touched {
  * host hands ejecta only its star particles and the step length; ejecta
  * works out what each star releases over [age, age + dt] from a stellar
  * population model (core-collapse and Type Ia supernovae drawn as whole
- * events, winds, radiation pressure, photoionization), couples every
+ * events, winds, radiation pressure, photoionization, photoelectric
+ * heating), couples every
  * channel and keeps records and ledger exactly as ejecta_step does.
  *
  * The population has its own struct and call rather than fields of
@@ -889,7 +890,9 @@ int ejecta_population_defaults(ejecta_population_config *config);
  * unknown, empty or not NUL-terminated), EJECTA_ERR_INVALID_ARGUMENT (IMF
  * range not finite, not positive or not increasing,
  * max_supernovae_per_step 0, negative or NaN, a switch not 0 or 1, a path
- * not NUL-terminated within 4096 bytes),
+ * not NUL-terminated within 4096 bytes, a yields table that lacks an
+ * element of the context's species set, or carries elements outside the
+ * default set when none was chosen),
  * EJECTA_ERR_YIELDS_TABLE (the table cannot be read or is malformed; the
  * message names the file and line). On error the earlier population, if
  * any, stays in force. */
@@ -907,7 +910,8 @@ int ejecta_enable_population(ejecta_context context,
  * changed. Supernova ejecta mass and metals are released as their
  * expectation every step, so mass and metal budgets are exact; the
  * energy comes in whole events. The ledger sums the channels, so its
- * stars counts star-channel releases (6 per star); per channel see
+ * stars counts star-channel releases (EJECTA_NUM_STEP_CHANNELS per star,
+ * switched-off channels included); per channel see
  * ejecta_get_channel_ledger. Per-star results: ejecta_copy_star_results;
  * a smaller step: ejecta_suggested_step. step_index (>= 0) is the host's,
  * as in ejecta_step: ranks stepping in lockstep pass the same index and
@@ -980,7 +984,7 @@ int ejecta_suggested_step(ejecta_context context, double *dt);
 
 /* ejecta_get_channel_ledger copies the ledger of one channel
  * (EJECTA_CHANNEL_*, 0..EJECTA_NUM_STEP_CHANNELS-1) of the last population
- * step into *ledger; the ledgers of the six channels sum to
+ * step into *ledger; the ledgers of the EJECTA_NUM_STEP_CHANNELS channels sum to
  * ejecta_get_ledger's. All zero when the last step was not a population
  * step. Errors: EJECTA_ERR_NULL_POINTER, EJECTA_ERR_INVALID_ARGUMENT
  * (channel out of range). */

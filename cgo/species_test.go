@@ -1,6 +1,7 @@
 package main
 
 import (
+	"math"
 	"path/filepath"
 	"strconv"
 	"testing"
@@ -154,4 +155,22 @@ func TestSpeciesFromCAndFortran(t *testing.T) {
 	kv = keyValues(runHost(t, fbin))
 	assert.Equal(t, "3", kv["chosen_count"])
 	assert.Equal(t, "Z,Fe,O", kv["chosen"])
+}
+
+// A refused star names its species by the context's set, not by the
+// default set, and names the release field that is not finite.
+func TestStarErrorsNameTheContextsSpecies(t *testing.T) {
+	h := create(t, pcConfig())
+	require.Equal(t, codeOK, entryChooseSpecies(h, cString("Fe,O")), lastError(h))
+	g := newTestGas(4, 10, 1)
+	require.Equal(t, codeOK, entryBindGas(h, &g.desc), lastError(h))
+	star := starABI{ID: 7, Position: [3]float64{5, 5, 5}, Mass: 10, Channel: int32(yields.CoreCollapse), EjectedMass: 1, Energy: 1}
+	star.SpeciesMass[1] = 2
+	assert.Equal(t, codeBadValue, entryStep(h, &star, 1, 0, modeOwnFinder, nil, nil))
+	assert.Contains(t, lastError(h), "stars[0] (of 1): star 7: species Fe mass 2 exceeds the ejected mass 1")
+
+	star.SpeciesMass[1] = 0
+	star.Duration = math.Inf(1)
+	assert.Equal(t, codeBadValue, entryStep(h, &star, 1, 0, modeOwnFinder, nil, nil))
+	assert.Contains(t, lastError(h), "star 7: release duration +Inf is not finite")
 }

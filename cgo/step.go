@@ -84,7 +84,7 @@ func convertStars[C, G any](b *batch, stars *C, n int64, dst []G, convert func(*
 	for i, c := range unsafe.Slice(stars, n) {
 		g, id, err := convert(&c)
 		if err != nil {
-			return dst, fmt.Errorf("star %d of %d: %w", i, n, err)
+			return dst, fmt.Errorf("stars[%d] (of %d): %w", i, n, err)
 		}
 		dst = append(dst, g)
 		b.starIDs = append(b.starIDs, id)
@@ -179,8 +179,9 @@ func (s *session) rowFinder(n, k int, offsets, indices *int64) (neighbor.Finder,
 	return &b.rows, nil
 }
 
-// starSource converts one C star into a source, checking it.
-func starSource(st *starABI) (feedback.Source, error) {
+// starSource converts one C star into a source, checking it; errors name
+// species by set, the context's.
+func starSource(st *starABI, set yields.SpeciesSet) (feedback.Source, error) {
 	src := feedback.Source{
 		Star: feedback.Star{ID: st.ID, Pos: st.Position, Vel: st.Velocity, Mass: st.Mass,
 			Metallicity: st.Metallicity, Age: st.Age},
@@ -191,8 +192,9 @@ func starSource(st *starABI) (feedback.Source, error) {
 	if st.Channel < 0 || yields.Channel(st.Channel) >= yields.NumChannels {
 		return src, fail(codeInvalidArgument, "star %d: channel %d is not a channel code", st.ID, st.Channel)
 	}
-	if err := src.Validate(); err != nil {
-		return src, failWith(codeBadValue, err, "star %d", st.ID)
+	if err := src.ValidateIn(set); err != nil {
+		// ValidateIn's message names the star by its ID already.
+		return src, &abiError{code: codeForFailure(err, codeBadValue), err: err}
 	}
 	return src, nil
 }
@@ -207,7 +209,7 @@ func (s *session) step(stars *starABI, a batchArgs) error {
 	}
 	var err error
 	s.batch.sources, err = convertStars(&s.batch, stars, a.n, s.batch.sources, func(st *starABI) (feedback.Source, int64, error) {
-		src, err := starSource(st)
+		src, err := starSource(st, s.cfg.Species)
 		src.Step = uint64(a.step)
 		return src, st.ID, err
 	})

@@ -321,7 +321,7 @@ func (c *Coupler) coupleOne(ws *workerScratch, gas *Gas, finder neighbor.Finder,
 
 // coupleInto does the work of coupleOne, appending records to *recs.
 func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder, src *Source, idx int, metals Column, hasMetals bool, recs *[]Record) (Ledger, error) {
-	if err := src.validateIn(c.cfg.Species); err != nil {
+	if err := src.ValidateIn(c.cfg.Species); err != nil {
 		// A malformed release (NaN, negative) cannot be booked: nothing of
 		// it enters the ledger and the caller keeps it, told why.
 		return Ledger{Stars: 1, Skipped: 1}, err

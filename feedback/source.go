@@ -72,17 +72,22 @@ type Source struct {
 // Validate checks the star (Star.Validate), that the release is finite
 // and non-negative, and that no species outweighs the ejected mass. Errors name species as in
 // yields.DefaultSpeciesSet; a Coupler names them by its Config.Species.
-func (s *Source) Validate() error { return s.validateIn(yields.SpeciesSet{}) }
+func (s *Source) Validate() error { return s.ValidateIn(yields.SpeciesSet{}) }
 
-// validateIn is Validate with species named by set.
-func (s *Source) validateIn(set yields.SpeciesSet) error {
+// ValidateIn is Validate for a release laid out by the species set set:
+// errors name its species by set's symbols.
+func (s *Source) ValidateIn(set yields.SpeciesSet) error {
 	if err := s.Star.Validate(); err != nil {
 		return err
 	}
-	vals := [...]float64{s.Mass, s.Energy, s.Events, s.Photons, s.Duration, s.NewStellarMass, s.Dispersion}
-	for _, v := range vals {
-		if !finite(v) {
-			return errorf(ErrBadValue, "star %d: non-finite release", s.Star.ID)
+	vals := [...]struct {
+		name string
+		v    float64
+	}{{"mass", s.Mass}, {"energy", s.Energy}, {"events", s.Events}, {"photons", s.Photons},
+		{"duration", s.Duration}, {"new stellar mass", s.NewStellarMass}, {"dispersion", s.Dispersion}}
+	for _, f := range vals {
+		if !finite(f.v) {
+			return errorf(ErrBadValue, "star %d: release %s %g is not finite", s.Star.ID, f.name, f.v)
 		}
 	}
 	if v2 := dot(s.Star.Vel, s.Star.Vel); !finite(0.5 * s.Mass * v2) {
