@@ -269,8 +269,8 @@ func (t *Tree) Nearest(q Query, k int, buf []Neighbor) ([]Neighbor, error) {
 	}
 	h := growBuf(buf, k)
 	ids := t.ids
-	L, half := t.box.Size, t.half
 	worst := math.Inf(1)
+	var d2 [treeLeafSize]float64
 	var stack [64]treeVisit
 	sp := 0
 	node, gap := 1, 0.0
@@ -294,23 +294,12 @@ func (t *Tree) Nearest(q Query, k int, buf []Neighbor) ([]Neighbor, error) {
 			}
 			if node != 0 {
 				nd := &t.nodes[node]
-				for j := int(nd.begin); j < int(nd.end); j++ {
-					p := &t.pts[j].p
-					dx, dy, dz := qp[0]-p[0], qp[1]-p[1], qp[2]-p[2]
-					if dx > half[0] || dx < -half[0] {
-						dx = minImage1(dx, L[0], half[0])
-					}
-					if dy > half[1] || dy < -half[1] {
-						dy = minImage1(dy, L[1], half[1])
-					}
-					if dz > half[2] || dz < -half[2] {
-						dz = minImage1(dz, L[2], half[2])
-					}
-					d2 := float64(dx*dx) + float64(dy*dy) + float64(dz*dz)
-					if d2 > worst {
+				n := t.leafDist2(qp, nd, &d2)
+				for j := range n {
+					if d2[j] > worst {
 						continue
 					}
-					h = keepSorted(h, k, Neighbor{j, d2}, ids)
+					h = keepSorted(h, k, Neighbor{int(nd.begin) + j, d2[j]}, ids)
 					if len(h) == k {
 						worst = h[k-1].Dist2
 					}
@@ -329,6 +318,31 @@ func (t *Tree) Nearest(q Query, k int, buf []Neighbor) ([]Neighbor, error) {
 	return h, nil
 }
 
+// leafDist2 writes to d2 the squared minimum-image distance from q to each
+// element of leaf nd, in tree order, and returns how many it wrote. A
+// separation within half the box (always, in an open box) is taken as it
+// is. The products are rounded before they are summed (no fused
+// multiply-add), so the distances are the same on every platform.
+func (t *Tree) leafDist2(q [3]float64, nd *treeNode, d2 *[treeLeafSize]float64) int {
+	L, half := &t.box.Size, &t.half
+	pts := t.pts[nd.begin:nd.end]
+	for j := range pts {
+		p := &pts[j].p
+		dx, dy, dz := q[0]-p[0], q[1]-p[1], q[2]-p[2]
+		if dx > half[0] || dx < -half[0] {
+			dx = minImage1(dx, L[0], half[0])
+		}
+		if dy > half[1] || dy < -half[1] {
+			dy = minImage1(dy, L[1], half[1])
+		}
+		if dz > half[2] || dz < -half[2] {
+			dz = minImage1(dz, L[2], half[2])
+		}
+		d2[j] = float64(dx*dx) + float64(dy*dy) + float64(dz*dz)
+	}
+	return len(pts)
+}
+
 // Within returns every gas element with Dist2 <= r*r from q.Pos in
 // (Dist2, ID) order.
 func (t *Tree) Within(q Query, r float64, buf []Neighbor) ([]Neighbor, error) {
@@ -341,7 +355,7 @@ func (t *Tree) Within(q Query, r float64, buf []Neighbor) ([]Neighbor, error) {
 		return buf[:0], fmt.Errorf("neighbor: tree within: %w", err)
 	}
 	out := buf[:0]
-	L, half := t.box.Size, t.half
+	var d2 [treeLeafSize]float64
 	var stack [64]int
 	stack[0] = 1
 	sp := 1
@@ -357,20 +371,10 @@ func (t *Tree) Within(q Query, r float64, buf []Neighbor) ([]Neighbor, error) {
 			sp += 2
 			continue
 		}
-		for j := int(nd.begin); j < int(nd.end); j++ {
-			p := &t.pts[j].p
-			dx, dy, dz := qp[0]-p[0], qp[1]-p[1], qp[2]-p[2]
-			if dx > half[0] || dx < -half[0] {
-				dx = minImage1(dx, L[0], half[0])
-			}
-			if dy > half[1] || dy < -half[1] {
-				dy = minImage1(dy, L[1], half[1])
-			}
-			if dz > half[2] || dz < -half[2] {
-				dz = minImage1(dz, L[2], half[2])
-			}
-			if d2 := float64(dx*dx) + float64(dy*dy) + float64(dz*dz); d2 <= r2 {
-				out = append(out, Neighbor{j, d2})
+		n := t.leafDist2(qp, nd, &d2)
+		for j := range n {
+			if d2[j] <= r2 {
+				out = append(out, Neighbor{int(nd.begin) + j, d2[j]})
 			}
 		}
 	}
