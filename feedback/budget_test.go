@@ -9,7 +9,6 @@ import (
 
 	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/feedback/audit"
-	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
@@ -84,11 +83,9 @@ func TestPhotoheatingIsPaidFromTheLight(t *testing.T) {
 	// channels together take in the population's radiant energy, not more
 	// (energy conservation). A 1e4 Msun population from 0.5 to 1.5 Myr.
 	u := units.ParsecSolarMassKms()
-	pop, err := yields.NewPopulation(yields.DefaultConfig())
-	require.NoError(t, err)
+	pop := defaultPopulation(t)
 	g := uniformGas(3, 400, 100, 1, u)
-	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-	require.NoError(t, err)
+	f := newTree(t, g)
 	myr := units.Megayear / u.TimeS()
 	rel, err := pop.Release(0.5, 1.5, 0.0134)
 	require.NoError(t, err)
@@ -194,11 +191,9 @@ func TestPhotonsReachBeyondTheNeighbors(t *testing.T) {
 // ionizes its Strömgren mass, far more than its 32 neighbors hold.
 func TestStepperPhotoionizesTheStromgrenMass(t *testing.T) {
 	u := units.ParsecSolarMassKms()
-	pop, err := yields.NewPopulation(yields.DefaultConfig())
-	require.NoError(t, err)
+	pop := defaultPopulation(t)
 	g, _ := latticeOfMass(25, 10, 100, u)
-	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-	require.NoError(t, err)
+	f := newTree(t, g)
 	cfg := feedback.DefaultStepConfig(feedback.Config{Units: u, Neighbors: 32}, pop)
 	cfg.Seed, cfg.SkipRadiation, cfg.SkipWinds, cfg.SkipPhotoelectric = 1, true, true, true
 	cfg.Photoionization = feedback.Photoionization{Reach: 1 << 14}

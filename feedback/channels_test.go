@@ -156,8 +156,7 @@ func TestStepperSingleStarHundredMyr(t *testing.T) {
 	// metals equal the yields integral over that time to round-off, and the
 	// number of supernovae matches its expectation over many seeds.
 	u := units.ParsecSolarMassKms()
-	pop, err := yields.NewPopulation(yields.DefaultConfig())
-	require.NoError(t, err)
+	pop := defaultPopulation(t)
 	const formed = 1e4
 	const steps = 50
 	dt := 2 * units.Megayear / u.TimeS()
@@ -174,8 +173,7 @@ func TestStepperSingleStarHundredMyr(t *testing.T) {
 		cfg.Seed = seed
 		st, err := feedback.NewStepper(cfg)
 		require.NoError(t, err)
-		f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-		require.NoError(t, err)
+		f := newTree(t, g)
 		star := feedback.StarParticle{Star: feedback.Star{ID: 77, Mass: formed, Metallicity: 0.0134}, FormedMass: formed}
 		var total feedback.Ledger
 		var out feedback.StepOutput
@@ -205,15 +203,13 @@ func TestStepperSingleStarHundredMyr(t *testing.T) {
 
 func TestStepperSuggestsSmallerStep(t *testing.T) {
 	u := units.ParsecSolarMassKms()
-	pop, err := yields.NewPopulation(yields.DefaultConfig())
-	require.NoError(t, err)
+	pop := defaultPopulation(t)
 	g := uniformGas(3, 200, 100, 1, u)
 	cfg := feedback.DefaultStepConfig(feedback.Config{Units: u}, pop)
 	cfg.MaxSupernovaePerStep = 5
 	st, err := feedback.NewStepper(cfg)
 	require.NoError(t, err)
-	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-	require.NoError(t, err)
+	f := newTree(t, g)
 	dt := 10 * units.Megayear / u.TimeS()
 	star := feedback.StarParticle{Star: feedback.Star{ID: 1, Mass: 1e5, Age: 5 * units.Megayear / u.TimeS(), Metallicity: 0.0134}, FormedMass: 1e5}
 	var out feedback.StepOutput
@@ -224,16 +220,14 @@ func TestStepperSuggestsSmallerStep(t *testing.T) {
 
 func TestStepperDelayedCoolingFlags(t *testing.T) {
 	u := units.ParsecSolarMassKms()
-	pop, err := yields.NewPopulation(yields.DefaultConfig())
-	require.NoError(t, err)
+	pop := defaultPopulation(t)
 	g := uniformGas(4, 300, 100, 1, u)
 	cfg := feedback.DefaultStepConfig(feedback.Config{Units: u}, pop)
 	cfg.DelayedCooling = true
 	cfg.Seed = 3
 	st, err := feedback.NewStepper(cfg)
 	require.NoError(t, err)
-	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-	require.NoError(t, err)
+	f := newTree(t, g)
 	star := feedback.StarParticle{Star: feedback.Star{ID: 1, Mass: 1e5, Age: 10 * units.Megayear / u.TimeS(), Metallicity: 0.0134}, FormedMass: 1e5}
 	var out feedback.StepOutput
 	require.NoError(t, st.Step(g.View(), f, []feedback.StarParticle{star}, 0, units.Megayear/u.TimeS(), &out))
@@ -258,11 +252,9 @@ func TestStepperTypeIaIronAndWindEnergy(t *testing.T) {
 	// energy 1/2 M v^2 of the documented 2000 km/s wind (Lamers & Cassinelli
 	// 1999 terminal speeds, from memory).
 	u := units.ParsecSolarMassKms()
-	pop, err := yields.NewPopulation(yields.DefaultConfig())
-	require.NoError(t, err)
+	pop := defaultPopulation(t)
 	g := uniformGas(21, 400, 1e4, 1, u)
-	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-	require.NoError(t, err)
+	f := newTree(t, g)
 	cfg := feedback.DefaultStepConfig(feedback.Config{Units: u}, pop)
 	cfg.Seed = 8
 	st, err := feedback.NewStepper(cfg)
@@ -292,8 +284,7 @@ func TestStepperTypeIaIronAndWindEnergy(t *testing.T) {
 
 func TestStepperBitwiseForAnyWorkerCount(t *testing.T) {
 	u := units.ParsecSolarMassKms()
-	pop, err := yields.NewPopulation(yields.DefaultConfig())
-	require.NoError(t, err)
+	pop := defaultPopulation(t)
 	base := uniformGas(31, 1500, 100, 3, u)
 	myr := units.Megayear / u.TimeS()
 	var stars []feedback.StarParticle
@@ -310,8 +301,7 @@ func TestStepperBitwiseForAnyWorkerCount(t *testing.T) {
 			cfg.Seed = 4
 			st, err := feedback.NewStepper(cfg)
 			require.NoError(t, err)
-			f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-			require.NoError(t, err)
+			f := newTree(t, g)
 			var out feedback.StepOutput
 			view := g.View()
 			require.NoError(t, st.Step(view, f, stars, 7, myr, &out))
@@ -377,8 +367,7 @@ func TestStepperKeepsReturnedReleasesInTheStarsFrame(t *testing.T) {
 	// exactly 0) and the supernova energy it carries to the next step is the
 	// explosion energy alone, not the ejecta's kinetic energy in the lab.
 	u := units.ParsecSolarMassKms()
-	pop, err := yields.NewPopulation(yields.DefaultConfig())
-	require.NoError(t, err)
+	pop := defaultPopulation(t)
 	g := uniformGas(41, 50, 10, 1, u)
 	rows, err := neighbor.NewHostLists(g.Packed(), g.ID, neighbor.Box{}, []int{0, 0}, nil)
 	require.NoError(t, err)
@@ -400,11 +389,9 @@ func TestStepperKeepsReturnedReleasesInTheStarsFrame(t *testing.T) {
 
 func TestStepperRejectsUnusableStars(t *testing.T) {
 	u := units.ParsecSolarMassKms()
-	pop, err := yields.NewPopulation(yields.DefaultConfig())
-	require.NoError(t, err)
+	pop := defaultPopulation(t)
 	g := uniformGas(42, 50, 10, 1, u)
-	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-	require.NoError(t, err)
+	f := newTree(t, g)
 	st, err := feedback.NewStepper(feedback.DefaultStepConfig(feedback.Config{Units: u}, pop))
 	require.NoError(t, err)
 	for _, bad := range []func(s *feedback.StarParticle){

@@ -424,8 +424,7 @@ func TestIDIndexResolvesRecordsFromAnotherRank(t *testing.T) {
 func TestCoupleAllocatesNothingInSteadyState(t *testing.T) {
 	u := units.ParsecSolarMassKms()
 	g := uniformGas(1, 2000, 100, 1, u)
-	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-	require.NoError(t, err)
+	f := newTree(t, g)
 	var srcs []feedback.Source
 	for i := 0; i < 100; i++ {
 		s := supernova(int64(i+1), u)
@@ -500,8 +499,7 @@ func TestNonFiniteDepositsAreReturnedNotWritten(t *testing.T) {
 	g := uniformGas(15, 100, 10, 1, u)
 	c, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: overflowing{}, Neighbors: 16})
 	require.NoError(t, err)
-	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-	require.NoError(t, err)
+	f := newTree(t, g)
 	var out feedback.Output
 	require.NoError(t, c.Couple(g.View(), f, []feedback.Source{supernova(1, u)}, &out))
 	assert.Empty(t, out.Records)

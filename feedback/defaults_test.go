@@ -8,7 +8,6 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/ejecta-dev/ejecta/feedback"
-	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
@@ -48,8 +47,7 @@ func TestZeroSettingsMeanZero(t *testing.T) {
 		}
 		_, err := feedback.SchemeByName("stochastic-heating", feedback.SchemeOptions{})
 		assert.ErrorIs(t, err, feedback.ErrInvalidArgument)
-		pop, err := yields.NewPopulation(yields.DefaultConfig())
-		require.NoError(t, err)
+		pop := defaultPopulation(t)
 		cfg := feedback.DefaultStepConfig(feedback.Config{Units: u}, pop)
 		cfg.MaxSupernovaePerStep = 0
 		_, err = feedback.NewStepper(cfg)
@@ -95,11 +93,9 @@ func TestZeroSettingsMeanZero(t *testing.T) {
 		}
 	})
 	t.Run("photoheating", func(t *testing.T) {
-		pop, err := yields.NewPopulation(yields.DefaultConfig())
-		require.NoError(t, err)
+		pop := defaultPopulation(t)
 		g := uniformGas(15, 400, 100, 1, u)
-		f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-		require.NoError(t, err)
+		f := newTree(t, g)
 		myr := units.Megayear / u.TimeS()
 		star := feedback.StarParticle{Star: feedback.Star{ID: 1, Mass: 1e4, Metallicity: 0.0134, Age: 0.5 * myr}, FormedMass: 1e4}
 		for _, perPhoton := range []float64{0, feedback.DefaultPhotoheatingPerPhoton} {

@@ -11,7 +11,6 @@ import (
 	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/feedback/audit"
 	"github.com/ejecta-dev/ejecta/neighbor"
-	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
@@ -68,8 +67,7 @@ func TestErrorKinds(t *testing.T) {
 			c, err := feedback.NewCoupler(feedback.Config{Units: u})
 			require.NoError(t, err)
 			g := uniformGas(1, 10, 10, 1, u)
-			f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-			require.NoError(t, err)
+			f := newTree(t, g)
 			return c.Couple(g.View(), f, nil, nil)
 		}, []error{feedback.ErrInvalidArgument}},
 		{"columns of different lengths", func(t *testing.T) error {
@@ -129,21 +127,18 @@ func TestErrorKinds(t *testing.T) {
 			return l.Balanced(1e-12)
 		}, []error{feedback.ErrImbalance}},
 		{"star particle with negative mass", func(t *testing.T) error {
-			pop, err := yields.NewPopulation(yields.DefaultConfig())
-			require.NoError(t, err)
+			pop := defaultPopulation(t)
 			st, err := feedback.NewStepper(feedback.DefaultStepConfig(feedback.Config{Units: u}, pop))
 			require.NoError(t, err)
 			g := uniformGas(1, 40, 10, 1, u)
-			f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-			require.NoError(t, err)
+			f := newTree(t, g)
 			var out feedback.StepOutput
 			star := feedback.StarParticle{Star: feedback.Star{ID: 1, Mass: -1}, FormedMass: 1}
 			return st.Step(g.View(), f, []feedback.StarParticle{star}, 0, units.Megayear/u.TimeS(), &out)
 		}, []error{feedback.ErrBadValue}},
 		{"coupler in use", func(t *testing.T) error {
 			g := uniformGas(1, 40, 10, 1, u)
-			f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-			require.NoError(t, err)
+			f := newTree(t, g)
 			entered, release := make(chan struct{}), make(chan struct{})
 			c, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: blocking{entered, release}})
 			require.NoError(t, err)

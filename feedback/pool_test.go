@@ -10,7 +10,6 @@ import (
 
 	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/neighbor"
-	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
@@ -48,8 +47,7 @@ func TestCouplerRecoversWorkerPanics(t *testing.T) {
 		src.Star.Pos = [3]float64{g.Pos[0][i], g.Pos[1][i], g.Pos[2][i]}
 		srcs = append(srcs, src)
 	}
-	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-	require.NoError(t, err)
+	f := newTree(t, g)
 	for _, workers := range []int{1, 4} {
 		// The panicking star is late in the batch, so with 4 workers it
 		// falls to a goroutine other than the caller's.
@@ -83,8 +81,7 @@ func TestCouplerRecoversWorkerPanics(t *testing.T) {
 // channel's coupler the same way.
 func TestStepperRecoversWorkerPanics(t *testing.T) {
 	u := units.ParsecSolarMassKms()
-	pop, err := yields.NewPopulation(yields.DefaultConfig())
-	require.NoError(t, err)
+	pop := defaultPopulation(t)
 	g := uniformGas(8, 1500, 100, 3, u)
 	myr := units.Megayear / u.TimeS()
 	var stars []feedback.StarParticle
@@ -93,8 +90,7 @@ func TestStepperRecoversWorkerPanics(t *testing.T) {
 		stars = append(stars, feedback.StarParticle{Star: feedback.Star{ID: int64(100 + s), Mass: 3e4, Metallicity: 0.0134,
 			Pos: [3]float64{g.Pos[0][i], g.Pos[1][i], g.Pos[2][i]}, Age: 5 * myr}, FormedMass: 3e4})
 	}
-	tree, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-	require.NoError(t, err)
+	tree := newTree(t, g)
 	cases := []struct {
 		name   string
 		cfg    func(c *feedback.StepConfig)

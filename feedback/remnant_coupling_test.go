@@ -9,7 +9,6 @@ import (
 
 	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/feedback/audit"
-	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
@@ -122,14 +121,12 @@ func TestRemnantMomentumDoesNotDependOnWeighting(t *testing.T) {
 // step's 3000 supernovae.
 func TestPopulationMomentumDoesNotDependOnStepSize(t *testing.T) {
 	u := units.ParsecSolarMassKms()
-	pop, err := yields.NewPopulation(yields.DefaultConfig())
-	require.NoError(t, err)
+	pop := defaultPopulation(t)
 	myr := units.Megayear / u.TimeS()
 	type result struct{ perEvent, winds float64 }
 	run := func(steps int) result {
 		g, _ := latticeOfMass(9, 2e5, 1, u)
-		f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-		require.NoError(t, err)
+		f := newTree(t, g)
 		cfg := feedback.DefaultStepConfig(feedback.Config{Units: u, Neighbors: 32}, pop)
 		cfg.Seed, cfg.SkipRadiation, cfg.SkipPhotoionization = 11, true, true
 		st, err := feedback.NewStepper(cfg)

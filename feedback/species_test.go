@@ -8,7 +8,6 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/ejecta-dev/ejecta/feedback"
-	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
@@ -26,15 +25,13 @@ func TestStepperWithChosenSpecies(t *testing.T) {
 	require.NoError(t, err)
 	pop, err := yields.NewPopulation(cfg)
 	require.NoError(t, err)
-	ref, err := yields.NewPopulation(yields.DefaultConfig())
-	require.NoError(t, err)
+	ref := defaultPopulation(t)
 
 	g := uniformGas(11, 400, 1e4, 1, u)
 	n := g.Len()
 	g.Species = []yields.Species{yields.Metals, 1, 2}
 	g.Fractions = [][]float64{make([]float64, n), make([]float64, n), make([]float64, n)}
-	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-	require.NoError(t, err)
+	f := newTree(t, g)
 	sc := feedback.DefaultStepConfig(feedback.Config{Units: u}, pop)
 	sc.Seed, sc.SkipRadiation, sc.SkipPhotoionization = 3, true, true
 	st, err := feedback.NewStepper(sc)
@@ -103,8 +100,7 @@ func TestChosenSpeciesMismatches(t *testing.T) {
 	g := uniformGas(5, 100, 1e4, 1, u)
 	g.Species = []yields.Species{yields.Metals, yields.Iron}
 	g.Fractions = [][]float64{make([]float64, g.Len()), make([]float64, g.Len())}
-	f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-	require.NoError(t, err)
+	f := newTree(t, g)
 	cp, err := feedback.NewCoupler(feedback.Config{Units: u, Species: feo})
 	require.NoError(t, err)
 	var out feedback.Output

@@ -8,7 +8,6 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/ejecta-dev/ejecta/feedback"
-	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
@@ -34,8 +33,7 @@ func TestStochasticHeatingGivesTheJump(t *testing.T) {
 	}
 	for _, c := range cases {
 		g := uniformGas(21, 300, c.gasMass, 1, u)
-		f, err := neighbor.NewTree(g.Packed(), g.ID, neighbor.Box{})
-		require.NoError(t, err)
+		f := newTree(t, g)
 		cp, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: feedback.DefaultStochasticHeating(4), Neighbors: 32})
 		require.NoError(t, err)
 		view := g.View()
