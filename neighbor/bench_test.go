@@ -114,32 +114,8 @@ func bruteScan(g *benchGas, q Query, k int, buf []Neighbor) []Neighbor {
 func BenchmarkNearest(b *testing.B) {
 	gas := lazyGas()
 	for _, n := range benchSizes {
-		b.Run(fmt.Sprintf("default/n=%d", n), func(b *testing.B) {
-			g := gas(n)
-			tree, err := NewTree(g.pos, g.ids, g.box)
-			if err != nil {
-				b.Fatal(err)
-			}
-			buf := make([]Neighbor, 0, benchK)
-			b.ReportAllocs()
-			b.ResetTimer()
-			for i := 0; i < b.N; i++ {
-				if buf, err = tree.Nearest(g.queries[i%len(g.queries)], benchK, buf); err != nil {
-					b.Fatal(err)
-				}
-			}
-		})
-		b.Run(fmt.Sprintf("gonum/n=%d", n), func(b *testing.B) {
-			g := gas(n)
-			gb := newGonumBench(g)
-			b.ReportAllocs()
-			b.ResetTimer()
-			for i := 0; i < b.N; i++ {
-				if gb.nearest(g.queries[i%len(g.queries)], benchK) < benchK {
-					b.Fatal("too few")
-				}
-			}
-		})
+		b.Run(fmt.Sprintf("default/n=%d", n), func(b *testing.B) { benchNearestTree(b, gas(n)) })
+		b.Run(fmt.Sprintf("gonum/n=%d", n), func(b *testing.B) { benchNearestGonum(b, gas(n)) })
 		if n <= 65536 {
 			b.Run(fmt.Sprintf("brute/n=%d", n), func(b *testing.B) {
 				g := gas(n)
@@ -167,30 +143,37 @@ func BenchmarkNearestClustered(b *testing.B) {
 		j := rng.IntN(n)
 		g.queries[i] = Query{Pos: g.box.Wrap([3]float64{g.pos[3*j], g.pos[3*j+1], g.pos[3*j+2]})}
 	}
-	b.Run(fmt.Sprintf("default/n=%d", n), func(b *testing.B) {
-		tree, err := NewTree(g.pos, g.ids, g.box)
-		if err != nil {
+	b.Run(fmt.Sprintf("default/n=%d", n), func(b *testing.B) { benchNearestTree(b, g) })
+	b.Run(fmt.Sprintf("gonum/n=%d", n), func(b *testing.B) { benchNearestGonum(b, g) })
+}
+
+// benchNearestTree times the default tree's k = benchK queries on g.
+func benchNearestTree(b *testing.B, g *benchGas) {
+	tree, err := NewTree(g.pos, g.ids, g.box)
+	if err != nil {
+		b.Fatal(err)
+	}
+	buf := make([]Neighbor, 0, benchK)
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if buf, err = tree.Nearest(g.queries[i%len(g.queries)], benchK, buf); err != nil {
 			b.Fatal(err)
 		}
-		buf := make([]Neighbor, 0, benchK)
-		b.ReportAllocs()
-		b.ResetTimer()
-		for i := 0; i < b.N; i++ {
-			if buf, err = tree.Nearest(g.queries[i%len(g.queries)], benchK, buf); err != nil {
-				b.Fatal(err)
-			}
+	}
+}
+
+// benchNearestGonum times the same queries on gonum's k-d tree, the
+// baseline.
+func benchNearestGonum(b *testing.B, g *benchGas) {
+	gb := newGonumBench(g)
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if gb.nearest(g.queries[i%len(g.queries)], benchK) < benchK {
+			b.Fatal("too few")
 		}
-	})
-	b.Run(fmt.Sprintf("gonum/n=%d", n), func(b *testing.B) {
-		gb := newGonumBench(g)
-		b.ReportAllocs()
-		b.ResetTimer()
-		for i := 0; i < b.N; i++ {
-			if gb.nearest(g.queries[i%len(g.queries)], benchK) < benchK {
-				b.Fatal("too few")
-			}
-		}
-	})
+	}
 }
 
 func BenchmarkBuild(b *testing.B) {
