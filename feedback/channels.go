@@ -362,10 +362,12 @@ func (s Photoionization) Deposit(nb *Neighborhood, out []Deposit) (float64, erro
 // star's next step (StepOutput.Carry), so no energy is lost and the energy
 // deposited matches the energy released over many steps. Elements too
 // massive for the budget are heated once the star has carried enough.
-// When the budget could heat every neighbor (p >= 1), all are heated and
-// share the whole budget in proportion to their masses, each by at least
-// ΔT. Mass, species and the ejecta's momentum are shared by weight as in a
-// thermal dump.
+// When the mass share of the budget, A m_j / sum_j m_j, heats every
+// neighbor by at least ΔT (its cost above, ejecta included), all are
+// heated and share the whole budget in proportion to their masses;
+// otherwise the draws decide (every neighbor is drawn when p >= 1, and
+// heated by exactly ΔT while the budget lasts). Mass, species and the
+// ejecta's momentum are shared by weight as in a thermal dump.
 type StochasticHeating struct {
 	// TemperatureJump in K, positive and finite; DefaultStochasticHeating
 	// uses DefaultTemperatureJump.
@@ -414,8 +416,20 @@ func (s StochasticHeating) Deposit(nb *Neighborhood, out []Deposit) (float64, er
 	if !(budget > 0) {
 		return nb.CoupleRadial(out), nil
 	}
-	if budget >= du*total {
-		// Enough to heat every neighbor by the jump: all share it all.
+	// The heat that raises u_j by exactly du once dm_j is mixed in, less
+	// what the inelastic mixing itself turns into heat (which CoupleRadial
+	// adds back); and whether the mass shares of the budget pay every one.
+	cost := nb.scratch // free: no kicks, so CoupleRadial does not tilt
+	all := true
+	for j := range cost {
+		m, dm := nb.Mass[j], nb.Weight[j]*src.Mass
+		mt := m + dm
+		w := nb.RelVel[j]
+		cost[j] = math.Max(mt*(nb.InternalEnergy[j]+du)-m*nb.InternalEnergy[j]-m*dm*dot(w, w)/(2*mt), 0)
+		all = all && budget*(m/total) >= cost[j]
+	}
+	if all {
+		// Enough to heat every neighbor by at least the jump: all share it all.
 		for j := range nb.EnergyWeight {
 			nb.EnergyWeight[j] = nb.Mass[j] / total
 		}
@@ -424,23 +438,12 @@ func (s StochasticHeating) Deposit(nb *Neighborhood, out []Deposit) (float64, er
 		rng := yields.NewCounterRNG(s.Seed, uint64(src.Star.ID), src.Step, streamStochastic)
 		left, used := budget, 0.0
 		for j := range nb.EnergyWeight {
-			if !(rng.Float64() < p) {
+			if !(rng.Float64() < p) || cost[j] > left {
 				continue
 			}
-			m, dm := nb.Mass[j], nb.Weight[j]*src.Mass
-			mt := m + dm
-			w := nb.RelVel[j]
-			// The heat that raises u_j by exactly du once dm_j is mixed in,
-			// less what the inelastic mixing itself turns into heat (which
-			// CoupleRadial adds back).
-			cost := mt*(nb.InternalEnergy[j]+du) - m*nb.InternalEnergy[j] - m*dm*dot(w, w)/(2*mt)
-			cost = math.Max(cost, 0)
-			if cost > left {
-				continue
-			}
-			nb.EnergyWeight[j] = cost
-			left -= cost
-			used += cost
+			nb.EnergyWeight[j] = cost[j]
+			left -= cost[j]
+			used += cost[j]
 		}
 		if used > 0 {
 			for j := range nb.EnergyWeight {
