@@ -171,9 +171,10 @@ func TestPhotonsReachBeyondTheNeighbors(t *testing.T) {
 		gc := g.Clone()
 		out, _ := coupleOnce(t, gc, feedback.Config{Units: u, Scheme: feedback.Photoionization{Reach: c.reach}, Neighbors: 32}, []feedback.Source{src})
 		// Ionized gas is lifted from its start to the 1e4 K floor, u =
-		// (3/2) k T / (0.59 m_p); the last element in part. Count the
+		// (3/2) k T / (mu m_p) (TestIonizedMeanMass); the last element in
+		// part. Count the
 		// ionized mass in full lifts.
-		floor := 1.5 * units.Boltzmann * 1e4 / (0.59 * units.ProtonMass) / u.SpecificEnergy()
+		floor := 1.5 * units.Boltzmann * 1e4 / (feedback.IonizedMeanMolecularWeight * units.ProtonMass) / u.SpecificEnergy()
 		ionized := 0.0
 		for _, r := range out.Records {
 			i := r.GasIndex
@@ -243,4 +244,17 @@ func TestPhotonReachIsDeterministic(t *testing.T) {
 			require.Equal(t, math.Float64bits(ref.Energy[i]), math.Float64bits(g.Energy[i]), "workers %d", workers)
 		}
 	}
+}
+
+// Fully ionized gas of the solar mass fractions (X = 0.7381, Y = 0.2485,
+// Z = 0.0134; Asplund et al. 2009, from memory) has, per gram, 2 X / 1.008
+// + 3 Y / 4.0026 + Z / 2 particles per atomic mass unit (two per hydrogen
+// atom, three per helium atom, with the IUPAC standard atomic weights;
+// about one per two nucleons for heavy elements, common practice), so its
+// mean particle mass is 0.99277 (m_u / m_p, CODATA 2018) over that, 0.599
+// proton masses: the temperature scale of stochastic heating's jump and of
+// the ionized floor must use it, not a value for another composition.
+func TestIonizedMeanMass(t *testing.T) {
+	particles := 2*0.7381/1.008 + 3*0.2485/4.0026 + 0.0134/2
+	assert.InEpsilon(t, 0.99277/particles, feedback.IonizedMeanMolecularWeight, 1e-3)
 }

@@ -14,9 +14,14 @@ const (
 	// table 2.1; from memory).
 	CaseBRecombination = 2.6e-13
 	// IonizedMeanMolecularWeight is the mean mass per particle of fully
-	// ionized gas of solar-like composition in proton masses, 0.59 (common
-	// practice; from memory).
-	IonizedMeanMolecularWeight = 0.59
+	// ionized gas of the library's solar composition, in proton masses:
+	// 1 / (2 X + 3 Y / 4 + Z / 2), each hydrogen nucleus bringing one
+	// electron, each helium nucleus two and heavy elements about one
+	// particle per two nucleons (textbook stellar-structure formula; from
+	// memory), with the mass fractions X, Y, Z of package yields (Asplund
+	// et al. 2009): about 0.599. (The often quoted 0.59 belongs to a
+	// hydrogen-richer mix, X = 0.75.)
+	IonizedMeanMolecularWeight = 1 / (2*yields.SolarHydrogen + 0.75*yields.SolarHelium + 0.5*yields.SolarMetals)
 	// IonizedTemperature is the temperature photoionized gas is heated to,
 	// 1e4 K (common practice for H II regions).
 	IonizedTemperature = 1e4

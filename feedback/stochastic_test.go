@@ -22,8 +22,8 @@ func TestStochasticHeatingGivesTheJump(t *testing.T) {
 	u := units.ParsecSolarMassKms()
 	jump := math.Pow(10, 7.5)
 	// T = (2/3) mu m_p u / k for a monatomic gas of mean molecular weight
-	// mu = 0.59 (ionized gas; common practice).
-	kelvinPerSpecificEnergy := 2.0 / 3 * 0.59 * units.ProtonMass / units.Boltzmann * u.SpecificEnergy()
+	// mu = 0.599 (fully ionized solar gas, TestIonizedMeanMass).
+	kelvinPerSpecificEnergy := 2.0 / 3 * feedback.IonizedMeanMolecularWeight * units.ProtonMass / units.Boltzmann * u.SpecificEnergy()
 	cases := []struct {
 		gasMass, supernovaePerStep float64
 		steps                      int
