@@ -426,6 +426,7 @@ func clampRoundOff(r *yields.Release) {
 	}
 	r.RadiantEnergy = math.Max(r.RadiantEnergy, 0)
 	r.IonizingPhotons = math.Max(r.IonizingPhotons, 0)
+	r.FarUltravioletEnergy = math.Max(r.FarUltravioletEnergy, 0)
 }
 
 func resizeFloats(s []float64, n int) []float64 {
