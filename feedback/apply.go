@@ -152,7 +152,7 @@ func (r *Record) check() error {
 		return errorf(ErrBadValue, "negative mass %g or radiated energy %g", r.Mass, r.Radiated)
 	}
 	if r.FUVField < 0 {
-		return fmt.Errorf("negative far-ultraviolet field %g", r.FUVField)
+		return errorf(ErrBadValue, "negative far-ultraviolet field %g", r.FUVField)
 	}
 	for sp, m := range r.Species {
 		if !finite(m) || m < 0 || m > r.Mass*(1+1e-12) {

@@ -114,6 +114,13 @@ func TestErrorKinds(t *testing.T) {
 			_, _, err := new(feedback.Applier).Apply(g.View(), []feedback.Record{r}, nil)
 			return err
 		}, []error{feedback.ErrBadValue}},
+		{"record with a negative far-ultraviolet field", func(t *testing.T) error {
+			g := uniformGas(1, 10, 10, 1, u)
+			r := feedback.Record{GasIndex: 0, GasID: g.ID[0]}
+			r.FUVField = -1
+			_, _, err := new(feedback.Applier).Apply(g.View(), []feedback.Record{r}, nil)
+			return err
+		}, []error{feedback.ErrBadValue}},
 		{"unknown scheme", func(t *testing.T) error {
 			_, err := feedback.SchemeByName("no-such-scheme", feedback.SchemeOptions{})
 			return err
