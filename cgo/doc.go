@@ -24,12 +24,13 @@
 //	apply.go       ejecta_apply_step_records, ejecta_apply_records, ejecta_copy_touched
 //	population.go  population steps: config, star particles, per-star results, channel ledgers
 //	dump.go        audit dumps: the ejecta_dump session (ejecta_dump_*), ejecta_star_columns
-//	layout.go      abiMismatches: every struct offset and constant checked against ejecta.h
+//	layout.go      abiMismatches: struct sizes and constants checked against ejecta.h
 //
 // A new function goes into the file of its concern with its entry, gets
 // its wrapper in exports.go, its prototype and documentation in ejecta.h,
-// its interface in fortran/ejecta_mod.f90, and its struct offsets and
-// constants in layout.go.
+// its interface in fortran/ejecta_mod.f90, and its constants in layout.go;
+// TestStructLayoutsFieldByField compares every field of every struct in C,
+// Go and Fortran.
 package main
 
 // main is required by -buildmode=c-shared and c-archive and never runs.
