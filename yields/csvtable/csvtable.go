@@ -10,9 +10,10 @@
 // format with one fixed header) and parses each row into finite numbers
 // (Rows). Every defect is an error that names the line, and the column where
 // there is one, and wraps the format's sentinel error (Format.Err), so
-// callers match it with errors.Is; Errorf gives the checks each format makes
-// of its own (rising grids, sums) the same form. The package imports nothing
-// of the project, so every layer may use it.
+// callers match it with errors.Is. Grid checks the rectangular grid of
+// blocks most formats lay their rows out in, and Errorf gives the checks a
+// format makes of its own (sums, ranges) the same form. The package imports
+// nothing of the project, so every layer may use it.
 package csvtable
 
 import (
