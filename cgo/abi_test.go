@@ -3,6 +3,7 @@ package main
 import (
 	"math"
 	"math/rand/v2"
+	"slices"
 	"strings"
 	"testing"
 	"unsafe"
@@ -522,4 +523,71 @@ func FuzzEntryPoints(f *testing.F) {
 			require.NotEqual(t, codeInternal, code, lastError(h))
 		}
 	})
+}
+
+// ejecta_copy_records gives the records grouped by star in the order the
+// stars were given, and applying them does not reorder them: the copy
+// after ejecta_apply_step_records is the copy before.
+func TestRecordsKeepTheirOrderAcrossApply(t *testing.T) {
+	h := create(t, pcConfig())
+	g := newTestGas(8, 16, 3)
+	require.Equal(t, codeOK, entryBindGas(h, &g.desc))
+	stars := supernovae(3, 16, 4)
+	stars[0].ID, stars[1].ID, stars[2].ID = 30, 10, 20 // given out of ID order
+	require.Equal(t, codeOK, entryStep(h, &stars[0], 3, 0, modeOwnFinder, nil, nil), lastError(h))
+	copyAll := func() []recordABI {
+		var n, w int64
+		require.Equal(t, codeOK, entryRecordCount(h, &n))
+		recs := make([]recordABI, n)
+		require.Equal(t, codeOK, entryCopyRecords(h, &recs[0], n, &w), lastError(h))
+		return recs
+	}
+	before := copyAll()
+	var starOrder []int64
+	for k, r := range before {
+		if k == 0 || before[k-1].StarID != r.StarID {
+			starOrder = append(starOrder, r.StarID)
+		}
+	}
+	assert.Equal(t, []int64{30, 10, 20}, starOrder, "grouped by star, in the order given")
+	require.Equal(t, codeOK, entryApplyStepRecords(h, nil), lastError(h))
+	assert.Equal(t, before, copyAll())
+
+	// A population step: by channel in the documented order, then by star
+	// in the order given.
+	c := pcConfig()
+	c.BoxSize = [3]float64{12, 12, 12}
+	h = withPopulation(t, c, nil)
+	pg := denseGas(8, 12, 5)
+	require.Equal(t, codeOK, entryBindGas(h, &pg.desc))
+	young := []starParticleABI{cluster(9, 1e4, 12, 8), cluster(4, 1e4, 12, 8)}
+	young[1].Position[0] -= 3
+	require.Equal(t, codeOK, entryStepPopulation(h, &young[0], 2, 1/myrPerCodeTime, 0, modeOwnFinder, nil, nil), lastError(h))
+	type block struct {
+		channel int32
+		star    int64
+	}
+	var blocks []block
+	for k, r := range copyAll() {
+		if b := (block{r.Channel, r.StarID}); k == 0 || blocks[len(blocks)-1] != b {
+			blocks = append(blocks, b)
+		}
+	}
+	var want []block
+	for _, ch := range []yields.Channel{yields.CoreCollapse, yields.TypeIa, yields.MassiveWinds, yields.AGBWinds,
+		yields.Photoionization, yields.PhotoelectricHeating, yields.RadiationPressure} {
+		for _, st := range young {
+			want = append(want, block{int32(ch), st.ID})
+		}
+	}
+	// Channels that released nothing this step (Type Ia at 8 Myr) leave
+	// no records: keep the blocks seen, in order.
+	var seen []block
+	for _, b := range want {
+		if slices.Contains(blocks, b) {
+			seen = append(seen, b)
+		}
+	}
+	assert.Equal(t, seen, blocks)
+	assert.GreaterOrEqual(t, len(blocks), 8, "several channels coupled")
 }

@@ -796,8 +796,10 @@ int ejecta_step(ejecta_context context, const ejecta_star *stars,
 int ejecta_record_count(ejecta_context context, int64_t *count);
 
 /* ejecta_copy_records copies the records of the last step, grouped by star
- * in the order the stars were given (after ejecta_apply_step_records: in
- * the order they were applied, by gas ID then star ID), into records
+ * in the order the stars were given (after a population step: by channel,
+ * in the order core collapse, Type Ia, massive winds, AGB winds,
+ * photoionization, photoelectric heating, radiation pressure, then by
+ * star; applying them does not reorder them), into records
  * (capacity entries), with the copy rule above: *written is the number of
  * records (as ejecta_record_count gives). Errors: EJECTA_ERR_NULL_POINTER
  * (written NULL, or records NULL with capacity > 0),
@@ -1086,7 +1088,8 @@ int ejecta_dump_last_error(ejecta_dump dump, char *buffer, int64_t capacity,
  * relative_tolerance ~1e-12 suits float64 round-off. On imbalance a
  * NUL-terminated message goes to message (capacity bytes; may be NULL when
  * capacity is 0). Errors: EJECTA_ERR_NULL_POINTER, EJECTA_ERR_INVALID_ARGUMENT
- * (tolerance not finite and >= 0), EJECTA_ERR_IMBALANCE. Thread safe. */
+ * (tolerance negative, NaN or infinite), EJECTA_ERR_IMBALANCE. Thread
+ * safe. */
 int ejecta_ledger_balanced(const ejecta_ledger *ledger,
                            double relative_tolerance, char *message,
                            int64_t capacity);

@@ -293,7 +293,8 @@ func TestHostMPIPopulationDecomposition(t *testing.T) {
 	lib := libraryDir(t)
 	mpicc := requireTool(t, "mpicc")
 	mpirun := requireTool(t, "mpirun")
-	channels := []string{"core_collapse", "type_ia", "massive_winds", "agb_winds", "radiation_pressure", "photoionization"}
+	channels := []string{"core_collapse", "type_ia", "massive_winds", "agb_winds", "radiation_pressure", "photoionization",
+		"photoelectric_heating"}
 	for _, mode := range mpiModes {
 		t.Run(mode.link.name, func(t *testing.T) {
 			dir := t.TempDir()
@@ -320,13 +321,15 @@ func TestHostMPIPopulationDecomposition(t *testing.T) {
 
 			kv := runs[0]
 			assert.Positive(t, number(t, kv, "supernovae_cc"), "supernovae drawn")
-			// Mass from every channel that ejects some (radiation pressure
-			// and photoionization carry energy only), energy from every
-			// channel but Type Ia, which draws no event here.
+			// Mass from every channel that ejects some (radiation pressure,
+			// photoionization and photoelectric heating carry energy only),
+			// energy from every channel but Type Ia, which draws no event
+			// here.
 			for _, ch := range []string{"core_collapse", "type_ia", "massive_winds", "agb_winds"} {
 				assert.Positive(t, number(t, kv, ch+"_mass"), ch)
 			}
-			for _, ch := range []string{"core_collapse", "massive_winds", "agb_winds", "radiation_pressure", "photoionization"} {
+			for _, ch := range []string{"core_collapse", "massive_winds", "agb_winds", "radiation_pressure", "photoionization",
+				"photoelectric_heating"} {
 				assert.Positive(t, number(t, kv, ch+"_energy"), ch)
 			}
 			assert.InEpsilon(t, number(t, kv, "star_mass_loss"), number(t, kv, "gas_mass_gain"), 1e-12)
