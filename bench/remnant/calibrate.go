@@ -42,7 +42,11 @@ type Case struct {
 // that fails, or never reaches shell formation, is an error naming its
 // grid point.
 func Calibrate(ctx context.Context, base Config, g Grid) ([]Case, error) {
-	for name, v := range map[string][]float64{"densities": g.Densities, "metallicities": g.Metallicities} {
+	for _, axis := range [...]struct {
+		name string
+		v    []float64
+	}{{"densities", g.Densities}, {"metallicities", g.Metallicities}} {
+		name, v := axis.name, axis.v
 		if len(v) == 0 || !sort.Float64sAreSorted(v) {
 			return nil, fmt.Errorf("remnant: calibration %s %v: want a rising, non-empty list: %w", name, v, ErrConfig)
 		}

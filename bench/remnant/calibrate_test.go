@@ -103,6 +103,13 @@ func TestCalibrationErrors(t *testing.T) {
 		_, err := Calibrate(context.Background(), base, g)
 		assert.ErrorIs(t, err, ErrConfig, "%+v", g)
 	}
+	// With both axes wrong, the error always names the densities first
+	// (the check order is fixed, not a map's).
+	for range 20 {
+		_, err := Calibrate(context.Background(), base, Grid{Densities: []float64{2, 1}, Metallicities: []float64{0}})
+		require.ErrorIs(t, err, ErrConfig)
+		assert.Contains(t, err.Error(), "densities")
+	}
 	nc := base
 	nc.NoCooling = true
 	_, err := Calibrate(context.Background(), nc, Grid{Densities: []float64{1}, Metallicities: []float64{1}})
