@@ -63,6 +63,7 @@ func hydrogenDensity(rho float64, u units.CodeUnits) float64 {
 // heat the kicks leave; past it the heat falls as for a cooled remnant and
 // the rest is booked as radiated.
 type Winds struct {
+	// Fit is the remnant fit the wind energy's remnants follow.
 	Fit RemnantFit
 	// Table, when set, replaces Fit (see TerminalMomentum.Table).
 	Table *RemnantTable

@@ -15,10 +15,11 @@ const (
 	SedovThermalFraction = 0.72
 )
 
-// Thornton et al. 1998 (ApJ 500, 95; from memory): once a remnant has
-// cooled, its thermal energy falls roughly as (R/R_cool)^-6.5 while the
-// kinetic energy falls as (R/R_cool)^-1.5. The thermal exponent sets how
-// much heat an unresolved remnant leaves behind.
+// PostCoolingThermalExponent is how the thermal energy of a cooled remnant
+// falls with its radius: Thornton et al. 1998 (ApJ 500, 95; from memory)
+// find it falls roughly as (R/R_cool)^-6.5 once the remnant has cooled,
+// while the kinetic energy falls as (R/R_cool)^-1.5. It sets how much heat
+// an unresolved remnant leaves behind.
 const PostCoolingThermalExponent = -6.5
 
 // MassPerHydrogen is the gas mass per hydrogen atom in units of the proton

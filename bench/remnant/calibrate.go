@@ -31,8 +31,11 @@ type Grid struct {
 
 // Case is one finished calibration run.
 type Case struct {
+	// Density (n_H, cm^-3) and Metallicity (solar units) are the grid
+	// point.
 	Density, Metallicity float64
-	Result               *Result
+	// Result is the run there.
+	Result *Result
 }
 
 // Calibrate runs base (its Density, Metallicity and Cooling replaced) at
