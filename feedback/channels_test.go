@@ -409,3 +409,30 @@ func TestStepperRejectsUnusableStars(t *testing.T) {
 		assert.Error(t, st.Step(g.View(), f, []feedback.StarParticle{star}, 0, 1, &out))
 	}
 }
+
+// brokenModel is a user's yields model with a defect: its massive-star
+// winds release a NaN mass.
+type brokenModel struct{ yields.Model }
+
+func (m brokenModel) Release(age0, age1, z float64) (yields.Release, error) {
+	r, err := m.Model.Release(age0, age1, z)
+	r.Channels[yields.MassiveWinds].Mass = math.NaN()
+	return r, err
+}
+
+// A model whose release is not finite fails the step with ErrBadValue
+// before anything is coupled, as a model error does: nothing is
+// deposited, and no star is told it lost mass that went nowhere (the
+// stepper used to report such a source as a problem while its mass loss
+// came out NaN).
+func TestStepperRefusesNonFiniteReleases(t *testing.T) {
+	u := units.ParsecSolarMassKms()
+	g := uniformGas(42, 50, 10, 1, u)
+	st, err := feedback.NewStepper(feedback.DefaultStepConfig(feedback.Config{Units: u}, brokenModel{defaultPopulation(t)}))
+	require.NoError(t, err)
+	star := feedback.StarParticle{Star: feedback.Star{ID: 1, Mass: 1e4, Metallicity: 0.0134, Age: 1}, FormedMass: 1e4}
+	var out feedback.StepOutput
+	err = st.Step(g.View(), newTree(t, g), []feedback.StarParticle{star}, 0, 1, &out)
+	require.ErrorIs(t, err, feedback.ErrBadValue)
+	assert.Empty(t, out.Records)
+}

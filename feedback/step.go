@@ -231,6 +231,9 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 		if err != nil {
 			return errorf(ErrBadValue, "step: star %d: %w", st.ID, err)
 		}
+		if !releaseFinite(&rel) {
+			return errorf(ErrBadValue, "step: star %d: the yields model's release between %g and %g Myr is not finite", st.ID, age0, age0+dt*myr)
+		}
 		clampRoundOff(&rel)
 		formed := st.FormedMass * msun // Msun formed
 		base := Source{Star: st.Star, Step: step, Duration: dt}
@@ -412,6 +415,34 @@ func (st *StarParticle) Validate() error {
 		}
 	}
 	return nil
+}
+
+// releaseFinite reports whether every amount of a release is finite.
+func releaseFinite(r *yields.Release) bool {
+	sum := r.RadiantEnergy + r.IonizingPhotons + r.FarUltravioletEnergy
+	for c := range r.Channels {
+		e := &r.Channels[c]
+		sum += e.Events + e.Mass + e.Energy
+		for _, m := range e.Species {
+			sum += m
+		}
+	}
+	if finite(sum) {
+		return true
+	}
+	// A sum of finite amounts can overflow: look at them one by one.
+	vals := []float64{r.RadiantEnergy, r.IonizingPhotons, r.FarUltravioletEnergy}
+	for c := range r.Channels {
+		e := &r.Channels[c]
+		vals = append(vals, e.Events, e.Mass, e.Energy)
+		vals = append(vals, e.Species[:]...)
+	}
+	for _, v := range vals {
+		if !finite(v) {
+			return false
+		}
+	}
+	return true
 }
 
 // clampRoundOff sets to zero the tiny negative amounts a difference of
