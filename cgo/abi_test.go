@@ -85,7 +85,7 @@ func (g *testGas) clone() *testGas {
 
 func pcConfig() configABI {
 	c := defaultConfig()
-	c.LengthCm, c.MassG, c.VelocityCmPerS = units.Parsec, units.SolarMass, units.Kilometre
+	c.LengthCm, c.MassG, c.VelocityCmPerS = units.Parsec, units.SolarMass, units.Kilometer
 	return c
 }
 
@@ -93,7 +93,7 @@ func pcConfig() configABI {
 // ejecta, 2 of metals) inside a box of side box.
 func supernovae(n int, box float64, seed uint64) []starABI {
 	rng := rand.New(rand.NewPCG(seed, 5))
-	foe := units.FOE / (units.SolarMass * units.Kilometre * units.Kilometre)
+	foe := units.FOE / (units.SolarMass * units.Kilometer * units.Kilometer)
 	stars := make([]starABI, n)
 	for i := range stars {
 		s := &stars[i]

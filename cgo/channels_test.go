@@ -38,9 +38,9 @@ func TestPhotoelectricFieldThroughTheABI(t *testing.T) {
 	g := newTestGas(6, 12, 7)
 	require.Equal(t, codeOK, entryBindGas(h, &g.desc))
 	const lum = 1e39 // erg/s
-	dt := 0.1 * units.Megayear / (units.Parsec / units.Kilometre)
+	dt := 0.1 * units.Megayear / (units.Parsec / units.Kilometer)
 	star := starABI{ID: 5, Position: [3]float64{6.1, 5.9, 6.05}, Mass: 1e3, Metallicity: 0.0134,
-		Energy: lum * 0.1 * units.Megayear / (units.SolarMass * units.Kilometre * units.Kilometre), Duration: dt}
+		Energy: lum * 0.1 * units.Megayear / (units.SolarMass * units.Kilometer * units.Kilometer), Duration: dt}
 	require.Equal(t, codeOK, entryStep(h, &star, 1, 0, modeOwnFinder, nil, nil), lastError(h))
 	var l ledgerABI
 	require.Equal(t, codeOK, entryGetLedger(h, &l))

@@ -22,7 +22,7 @@ import (
 const exampleTable = "../testdata/yields/example_table.csv"
 
 // myrPerCodeTime is one code time unit (pc / (km/s)) in Myr.
-const myrPerCodeTime = units.Parsec / units.Kilometre / units.Megayear
+const myrPerCodeTime = units.Parsec / units.Kilometer / units.Megayear
 
 // denseGas is newTestGas at n_H ~ 100 cm^-3 (rho = 3.45 Msun/pc^3,
 // 1.4 m_p n_H), heavy enough that a 1e4 Msun star's ejecta do not swamp it.

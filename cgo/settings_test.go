@@ -224,7 +224,7 @@ func opaqueGas(side int, box float64, seed uint64) *testGas {
 // that with bound 1 (p = L dt / c (1 - exp(-tau_UV)) min(1 + tau_IR, B));
 // without a bound it is larger still.
 func TestInfraredBoostBound(t *testing.T) {
-	light := 1e6 * units.SolarLuminosity * 0.1 * units.Megayear / (units.SolarMass * units.Kilometre * units.Kilometre)
+	light := 1e6 * units.SolarLuminosity * 0.1 * units.Megayear / (units.SolarMass * units.Kilometer * units.Kilometer)
 	star := starABI{ID: 3, Position: [3]float64{4.1, 3.9, 4.05}, Mass: 1e4, Metallicity: 0.0134, Energy: light,
 		Duration: 0.1 / myrPerCodeTime}
 	radial := func(boost float64) float64 {
@@ -322,7 +322,7 @@ func TestPhotonReach(t *testing.T) {
 func TestWindEventEnergy(t *testing.T) {
 	wind := starABI{ID: 4, Position: [3]float64{4.1, 3.9, 4.05}, Mass: 1e4, Metallicity: 0.0134, Age: 3 / myrPerCodeTime,
 		Channel: int32(yields.MassiveWinds), EjectedMass: 0.5,
-		Energy: 1e50 / (units.SolarMass * units.Kilometre * units.Kilometre)}
+		Energy: 1e50 / (units.SolarMass * units.Kilometer * units.Kilometer)}
 	wind.SpeciesMass[yields.Metals] = 0.01
 	radial := func(ev float64) float64 {
 		c := withScheme("stellar-winds", 8)

@@ -13,7 +13,7 @@ import (
 // the records, and check the ledger.
 func ExampleCoupler_Couple() {
 	// Code units: parsec, solar mass, km/s.
-	u := units.CodeUnits{LengthCm: units.Parsec, MassG: units.SolarMass, VelocityCmPS: units.Kilometre}
+	u := units.CodeUnits{LengthCm: units.Parsec, MassG: units.SolarMass, VelocityCmPS: units.Kilometer}
 	const side = 6
 	n := side * side * side
 	var x, y, z, vx, vy, vz, m, rho, eint []float64

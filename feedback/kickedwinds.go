@@ -348,7 +348,7 @@ func (s KickedWinds) Deposit(nb *Neighborhood, out []Deposit) (float64, error) {
 	src := nb.Source
 	u := nb.Units
 	k := nb.Len()
-	kmps := units.Kilometre / u.VelocityCmPS // code velocity per km/s
+	kmps := units.Kilometer / u.VelocityCmPS // code velocity per km/s
 
 	sigma := src.Dispersion
 	if s.Scaling == MomentumDrivenWind && sigma == 0 {

@@ -153,7 +153,7 @@ func TestKickedWindsKickSpeedIsExactlyTheWindSpeed(t *testing.T) {
 		}
 		assert.Greater(t, kicked, 6, "direction %d", dir)
 		// Decoupled for 20 kpc / 484 km/s = 40.4 Myr.
-		want := 20e3 * units.Parsec / (484 * units.Kilometre) / u.TimeS()
+		want := 20e3 * units.Parsec / (484 * units.Kilometer) / u.TimeS()
 		for _, r := range out.Records {
 			if r.Flags&feedback.FlagHydroDecoupled != 0 {
 				assert.InEpsilon(t, want, r.HydroDecoupledUntil, 1e-12)

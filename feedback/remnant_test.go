@@ -130,7 +130,7 @@ func TestFitsSwitchAtTheirOwnPoint(t *testing.T) {
 		for _, zeta := range []float64{0.1, 1} {
 			c := CioffiMcKeeBertschinger1988.Remnant(units.FOE, n, zeta*CioffiSolarMetallicity)
 			assert.InEpsilon(t, c.CoolingMass(rho), c.SwitchMass, 1e-12)
-			v := c.SwitchMomentum / c.SwitchMass / units.Kilometre
+			v := c.SwitchMomentum / c.SwitchMass / units.Kilometer
 			assert.InEpsilon(t, 413*math.Pow(n, 1.0/7)*math.Pow(zeta, 3.0/14), v, 0.01, "n=%g zeta=%g", n, zeta)
 			assert.Greater(t, c.TerminalMomentum, c.SwitchMomentum)
 		}

@@ -13,7 +13,7 @@ import (
 // population model what it releases, draws its supernovae and couples
 // every channel; the records are then applied.
 func ExampleStepper_Step() {
-	u := units.CodeUnits{LengthCm: units.Parsec, MassG: units.SolarMass, VelocityCmPS: units.Kilometre}
+	u := units.CodeUnits{LengthCm: units.Parsec, MassG: units.SolarMass, VelocityCmPS: units.Kilometer}
 	gas := uniformGas(1, 500, 1e3, 1, u) // test helper: a ball of gas in Go slices
 	view := gas.View()
 	finder, err := neighbor.NewTree(view.PackedPositions(nil), view.IDs(nil), neighbor.Box{})

@@ -114,9 +114,9 @@ func NewPopulation(cfg Config) (*Population, error) {
 		}
 		p.iaCoef = cfg.TypeIa.EventsPerMsun / math.Log(HubbleTime/cfg.TypeIa.MinDelay)
 	}
-	v := cfg.MassiveWinds.Speed * units.Kilometre
+	v := cfg.MassiveWinds.Speed * units.Kilometer
 	p.windEV = 0.5 * units.SolarMass * v * v
-	v = cfg.AGB.Speed * units.Kilometre
+	v = cfg.AGB.Speed * units.Kilometer
 	p.agbEV = 0.5 * units.SolarMass * v * v
 	p.ccPat = cfg.CoreCollapse.NewMetalPattern
 	cc := cfg.CoreCollapse

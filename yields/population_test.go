@@ -90,7 +90,7 @@ func TestReleaseSpeciesConsistent(t *testing.T) {
 				v  float64
 			}{{MassiveWinds, p.cfg.MassiveWinds.Speed}, {AGBWinds, p.cfg.AGB.Speed}} {
 				e := r.Channels[c.ch]
-				want := 0.5 * e.Mass * units.SolarMass * math.Pow(c.v*units.Kilometre, 2)
+				want := 0.5 * e.Mass * units.SolarMass * math.Pow(c.v*units.Kilometer, 2)
 				assert.InDelta(t, want, e.Energy, 1e-12*want+1e-300)
 			}
 			// Supernovae: Events × 1e51 erg (common practice).

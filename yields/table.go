@@ -393,7 +393,7 @@ func (t *Table) Release(age0, age1, z float64) (Release, error) {
 			e.Species = restateFill(&e.Species, t.own, t.out)
 		}
 		if !ch.Discrete() && e.Mass > 0 {
-			e.WindSpeed = math.Sqrt(2*e.Energy/(e.Mass*units.SolarMass)) / units.Kilometre
+			e.WindSpeed = math.Sqrt(2*e.Energy/(e.Mass*units.SolarMass)) / units.Kilometer
 		}
 	}
 	r.RadiantEnergy = diff(colRadiant)

@@ -19,7 +19,7 @@ import (
 
 // Published constants in cgs.
 const (
-	// SpeedOfLight c in cm/s: exact by definition of the metre (SI, BIPM 2019).
+	// SpeedOfLight c in cm/s: exact by definition of the meter (SI, BIPM 2019).
 	SpeedOfLight = 2.99792458e10
 	// Gravitational constant G in cm^3 g^-1 s^-2 (CODATA 2018: 6.67430e-11 m^3 kg^-1 s^-2).
 	Gravitational = 6.67430e-8
@@ -35,8 +35,11 @@ const (
 	// Parsec in cm: IAU 2015 Resolution B2 defines 1 pc = 648000/pi au, with the au
 	// exact at 149597870700 m (IAU 2012 Resolution B2).
 	Parsec = 648000 / math.Pi * 1.495978707e13
-	// Kilometre in cm (SI).
-	Kilometre = 1e5
+	// Kilometer in cm (SI).
+	Kilometer = 1e5
+	// Kilometre is Kilometer under its former name, left for the one
+	// caller not yet moved over (the bench command); remove with it.
+	Kilometre = Kilometer
 	// JulianYear in s: 365.25 days of 86400 s (IAU).
 	JulianYear = 3.15576e7
 	// Megayear is 1e6 Julian years in s.
@@ -62,7 +65,7 @@ const (
 		(15 * Planck * Planck * Planck * SpeedOfLight * SpeedOfLight)
 	// MsunKms is one solar mass moving at one km/s, in g cm/s: the unit in which
 	// remnant momenta are quoted in the literature.
-	MsunKms = SolarMass * Kilometre
+	MsunKms = SolarMass * Kilometer
 )
 
 // CodeUnits states a host code's units: how many cm, g and cm/s one code unit
@@ -80,14 +83,14 @@ func CGS() CodeUnits { return CodeUnits{LengthCm: 1, MassG: 1, VelocityCmPS: 1} 
 // Astro returns a common galaxy-simulation system: kpc, 1e10 Msun and km/s
 // (common practice in the trade).
 func Astro() CodeUnits {
-	return CodeUnits{LengthCm: 1e3 * Parsec, MassG: 1e10 * SolarMass, VelocityCmPS: Kilometre}
+	return CodeUnits{LengthCm: 1e3 * Parsec, MassG: 1e10 * SolarMass, VelocityCmPS: Kilometer}
 }
 
 // ParsecSolarMassKms returns the system of star-cluster and interstellar
 // medium simulations: parsec, solar mass and km/s (code time about 0.98
 // Myr).
 func ParsecSolarMassKms() CodeUnits {
-	return CodeUnits{LengthCm: Parsec, MassG: SolarMass, VelocityCmPS: Kilometre}
+	return CodeUnits{LengthCm: Parsec, MassG: SolarMass, VelocityCmPS: Kilometer}
 }
 
 // Validate reports an error unless the three factors are finite and positive.
