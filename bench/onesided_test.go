@@ -60,7 +60,7 @@ func TestOneSidedGeometry(t *testing.T) {
 }
 
 // balancedByLP is the other side of Stiemke's alternative, solved as a
-// linear programme with gonum: do weights w_j >= 1 exist with sum w_j n_j
+// linear program with gonum: do weights w_j >= 1 exist with sum w_j n_j
 // = 0? (Any strictly positive solution scales to one.) With w = 1 + x,
 // x >= 0: sum x_j n_j = -sum n_j.
 func balancedByLP(t *testing.T, dirs [][3]float64) bool {
@@ -87,7 +87,7 @@ func balancedByLP(t *testing.T, dirs [][3]float64) bool {
 
 // On random directions in caps of every opening, OneSided agrees with an
 // independent linear-programming answer to the same question.
-func TestOneSidedAgreesWithLinearProgramme(t *testing.T) {
+func TestOneSidedAgreesWithLinearProgram(t *testing.T) {
 	rng := rand.New(rand.NewPCG(7, 11))
 	sides := 0
 	for trial := 0; trial < 300; trial++ {

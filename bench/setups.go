@@ -78,7 +78,7 @@ type Setup struct {
 // StandardSetups returns the built-in set-ups, the demo scenario last:
 //
 //   - uniform-lattice: a periodic cubic lattice of equal-mass elements at
-//     uniform density; the star sits at the box centre, in the middle of a
+//     uniform density; the star sits at the box center, in the middle of a
 //     lattice cell.
 //   - glass: the same lattice with every element displaced by a uniform
 //     random offset of up to a quarter spacing on each axis. It stands in
@@ -92,14 +92,14 @@ type Setup struct {
 //     the slab, a few in the ambient gas: the hard case for isotropy.
 //   - clumpy-cloud: the demo scenario, a setting of our own with invented
 //     numbers. A spherical cloud whose mean density is the reference holds
-//     half its mass in twelve Gaussian clumps (one at the centre) and half
+//     half its mass in twelve Gaussian clumps (one at the center) and half
 //     spread uniformly, with a 2 km/s random velocity dispersion and gas at
 //     about 100 K; a young cluster of eight stars within a tenth of the
-//     cloud radius of the centre, moving at about 1 km/s, each releases one
+//     cloud radius of the center, moving at about 1 km/s, each releases one
 //     supernova in the same step. Densities are k-nearest estimates.
 func StandardSetups() []Setup {
 	return []Setup{
-		{Name: "uniform-lattice", Description: "periodic cubic lattice, star at the centre of a cell", Build: buildLattice},
+		{Name: "uniform-lattice", Description: "periodic cubic lattice, star at the center of a cell", Build: buildLattice},
 		{Name: "glass", Description: "periodic lattice jittered by up to a quarter spacing (glass-like)", Build: buildGlass},
 		{Name: "interface", Description: "star at the face of a dense slab, density contrast 100", Build: buildInterface},
 		{Name: "clumpy-cloud", Description: "demo: clumpy cloud around a young cluster of 8 stars (invented numbers)", Build: buildClumpyCloud},
@@ -156,7 +156,7 @@ func setElement(g *audit.GasArrays, i int, p [3]float64, m, rho, u float64) {
 func latticeSide(elements int) int {
 	s := int(math.Round(math.Cbrt(float64(elements))))
 	if s%2 == 1 {
-		s++ // even, so the box centre is a cell centre
+		s++ // even, so the box center is a cell center
 	}
 	return max(s, 4)
 }
@@ -205,7 +205,7 @@ func lattice(spec CaseSpec, name string, jitter float64) (*Case, error) {
 }
 
 // buildInterface makes two half-lattices of equal-mass elements: a dense
-// slab below z = 0 and ambient gas above, both centred on the z axis.
+// slab below z = 0 and ambient gas above, both centered on the z axis.
 func buildInterface(spec CaseSpec) (*Case, error) {
 	if err := spec.validate(); err != nil {
 		return nil, fmt.Errorf("set-up interface: %w", err)
@@ -259,9 +259,9 @@ func buildClumpyCloud(spec CaseSpec) (*Case, error) {
 	rhoMean := codeDensity(spec.DensityCm3)
 	R := math.Cbrt(3 * float64(n) * spec.GasMassMsun / (4 * math.Pi * rhoMean))
 	rng := rand.New(rand.NewPCG(spec.Seed, 0xc10d))
-	centres := make([][3]float64, cloudClumps)
+	centers := make([][3]float64, cloudClumps)
 	for c := 1; c < cloudClumps; c++ {
-		centres[c] = ball(rng, 0.7*R)
+		centers[c] = ball(rng, 0.7*R)
 	}
 	g := newArrays(n)
 	u := gasTemperatureEnergy(cloudTemperatureK, 1.27)
@@ -269,7 +269,7 @@ func buildClumpyCloud(spec CaseSpec) (*Case, error) {
 	for i := 0; i < n; i++ {
 		var p [3]float64
 		if i < nClump {
-			c := centres[i%cloudClumps]
+			c := centers[i%cloudClumps]
 			for {
 				for a := 0; a < 3; a++ {
 					p[a] = c[a] + cloudClumpRadius*R*rng.NormFloat64()

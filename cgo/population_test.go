@@ -36,7 +36,7 @@ func denseGas(side int, box float64, seed uint64) *testGas {
 	return g
 }
 
-// cluster is one star particle of formed mass m at the box centre.
+// cluster is one star particle of formed mass m at the box center.
 func cluster(id int64, m, box, ageMyr float64) starParticleABI {
 	return starParticleABI{
 		ID: id, Position: [3]float64{box / 2, box / 2, box / 2}, Velocity: [3]float64{1.5, -0.5, 0.25},

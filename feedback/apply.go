@@ -24,7 +24,7 @@ type Touched struct {
 	FUVField            float64
 }
 
-// ApplyReport summarises an Apply call.
+// ApplyReport summarizes an Apply call.
 type ApplyReport struct {
 	// Records and Elements count what was applied.
 	Records, Elements int

@@ -16,7 +16,7 @@ import (
 )
 
 // latticeGas is a cubic lattice of side n, spacing dx (pc), at hydrogen
-// density nH, centred on the origin, at 100 K-like energy.
+// density nH, centered on the origin, at 100 K-like energy.
 func latticeGas(n int, dx, nH float64, u units.CodeUnits) *audit.GasArrays {
 	rho := nH * feedback.MassPerHydrogen * units.ProtonMass
 	m := rho * math.Pow(dx*units.Parsec, 3) / u.MassG

@@ -38,7 +38,7 @@ const (
 	// an isotropically drawn direction (from the same counter-based draws).
 	KickRadial KickDirection = iota
 	// KickAlongRotationAxis kicks along the local rotation axis, the
-	// direction of the neighbors' angular momentum about their centre of
+	// direction of the neighbors' angular momentum about their center of
 	// mass in the frame of their mean motion, with the sign that points
 	// away from the star's side of the plane through the star (plus when
 	// the element lies in the plane). Gas without angular momentum falls
@@ -293,7 +293,7 @@ func (nb *Neighborhood) dispersion() float64 {
 }
 
 // rotationAxis is the unit vector of the neighbors' angular momentum about
-// their centre of mass in the frame of their mean motion, or false when
+// their center of mass in the frame of their mean motion, or false when
 // they have none.
 func (nb *Neighborhood) rotationAxis() ([3]float64, bool) {
 	var cm, vm [3]float64

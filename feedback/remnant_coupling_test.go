@@ -87,7 +87,7 @@ func TestRemnantSwitchIsContinuousInCoupledMass(t *testing.T) {
 func TestRemnantMomentumDoesNotDependOnWeighting(t *testing.T) {
 	u := units.ParsecSolarMassKms()
 	e := units.FOE / u.EnergyErg()
-	offsets := map[string][3]float64{"near a site": {0.01, 0.02, 0.03}, "cell centre": {0.5, 0.5, 0.5}}
+	offsets := map[string][3]float64{"near a site": {0.01, 0.02, 0.03}, "cell center": {0.5, 0.5, 0.5}}
 	for _, fit := range []feedback.RemnantFit{feedback.KimOstriker2015, feedback.CioffiMcKeeBertschinger1988} {
 		rem := fit.Remnant(units.FOE, 1, 0.0134)
 		for _, w := range []feedback.Weighting{feedback.KernelVolume, feedback.SolidAngle} {

@@ -114,8 +114,8 @@ func netVector(a []float64, n [][3]float64) float64 {
 // Given positive amounts a_j along unit directions n_j, the correction finds
 // the positive amounts a'_j closest to a_j in relative entropy,
 // sum a'_j log(a'_j / a_j), with the same total and with sum a'_j n_j = 0.
-// The minimiser is an exponential tilt, a'_j = a_j exp(lambda . n_j) / Z,
-// where the 3-vector lambda minimises the convex function
+// The minimizer is an exponential tilt, a'_j = a_j exp(lambda . n_j) / Z,
+// where the 3-vector lambda minimizes the convex function
 // F(lambda) = log sum_j a_j exp(lambda . n_j); the gradient of F is the
 // normalized net vector and its Hessian is the covariance of the n_j under
 // a'. Newton's method with a backtracking line search converges in a handful

@@ -21,7 +21,7 @@ func requireSame(t *testing.T, want, got []Neighbor, msg string, args ...any) {
 	}
 }
 
-// queryPoints returns query centres: random ones, points on and just inside
+// queryPoints returns query centers: random ones, points on and just inside
 // every face, edge and corner of [0, 1)^3 (and of the box when it differs),
 // and points outside the box, which periodic finders wrap.
 func queryPoints(rng *rand.Rand, box Box, random int) [][3]float64 {
@@ -30,7 +30,7 @@ func queryPoints(rng *rand.Rand, box Box, random int) [][3]float64 {
 		out = append(out, [3]float64{rng.Float64(), rng.Float64(), rng.Float64()})
 	}
 	// Each axis takes a low, a high or a middle value: all 26 faces, edges
-	// and corners plus the centre.
+	// and corners plus the center.
 	edgeVals := func(a int) []float64 {
 		hi := 1.0
 		if L := box.Size[a]; L > 0 {

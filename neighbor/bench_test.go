@@ -132,7 +132,7 @@ func BenchmarkNearest(b *testing.B) {
 
 // BenchmarkNearestClustered: the same k = 48 queries on strongly clustered
 // gas (clusteredGas: 80% in three Gaussian clumps of widths 1e-2 to 1e-4),
-// centred on gas elements, where stars form.
+// centered on gas elements, where stars form.
 func BenchmarkNearestClustered(b *testing.B) {
 	const n = 65536
 	rng := rand.New(rand.NewPCG(8, 9))

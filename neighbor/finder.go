@@ -14,7 +14,7 @@ type Neighbor struct {
 	Dist2 float64
 }
 
-// Query is a search around one star. Pos is the centre; Star is the star's
+// Query is a search around one star. Pos is the center; Star is the star's
 // index in the caller's batch, used by finders that hold a precomputed list
 // per star (host-supplied lists) and ignored by spatial finders.
 type Query struct {

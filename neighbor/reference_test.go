@@ -200,7 +200,7 @@ func uniformGas(rng *rand.Rand, n int) ([]float64, []int64) {
 // to 1e-4), the rest uniform; a few exact duplicate positions.
 func clusteredGas(rng *rand.Rand, n int) ([]float64, []int64) {
 	pos := make([]float64, 3*n)
-	centres := [][3]float64{{0.2, 0.3, 0.4}, {0.99, 0.01, 0.5}, {0.7, 0.7, 0.05}}
+	centers := [][3]float64{{0.2, 0.3, 0.4}, {0.99, 0.01, 0.5}, {0.7, 0.7, 0.05}}
 	widths := []float64{1e-2, 1e-3, 1e-4}
 	for i := 0; i < n; i++ {
 		if rng.IntN(5) == 0 {
@@ -209,9 +209,9 @@ func clusteredGas(rng *rand.Rand, n int) ([]float64, []int64) {
 			}
 			continue
 		}
-		c := rng.IntN(len(centres))
+		c := rng.IntN(len(centers))
 		for a := 0; a < 3; a++ {
-			pos[3*i+a] = centres[c][a] + widths[c]*rng.NormFloat64()
+			pos[3*i+a] = centers[c][a] + widths[c]*rng.NormFloat64()
 		}
 	}
 	for d := 0; d < n/10; d++ { // duplicate positions

@@ -8,7 +8,7 @@ import "math"
 // what order.
 //
 // Construction. The key is folded from the four inputs with the SplitMix64
-// finaliser (Steele, Lea & Flood 2014, "Fast splittable pseudorandom number
+// finalizer (Steele, Lea & Flood 2014, "Fast splittable pseudorandom number
 // generators", OOPSLA; the mixing constants are Stafford's "Mix13"):
 //
 //	key = mix(mix(mix(mix(seed ⊕ c0) ⊕ starID) ⊕ step) ⊕ stream)
@@ -30,7 +30,7 @@ const (
 	keySalt0 = 0x6A09E667F3BCC909 // fractional part of √2 (SHA-512 IV), so seed 0 is not key 0
 )
 
-// mix64 is the SplitMix64 output finaliser (Mix13).
+// mix64 is the SplitMix64 output finalizer (Mix13).
 func mix64(z uint64) uint64 {
 	z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9
 	z = (z ^ (z >> 27)) * 0x94D049BB133111EB

@@ -14,7 +14,7 @@
 // Runge–Kutta steps (Shu & Osher 1988, J. Comput. Phys. 77, 439). The
 // geometric source of the momentum equation, p (A_R − A_L) per zone, is
 // folded into the pressure flux so that a uniform medium at rest stays at
-// rest bit for bit. The centre reflects; the outer edge lets gas out and
+// rest bit for bit. The center reflects; the outer edge lets gas out and
 // books what leaves. The step is the Courant step (CFL 0.4), shortened to
 // 0.3 of the shortest cooling time of gas hotter than 2e4 K but never below
 // a tenth of the Courant step.

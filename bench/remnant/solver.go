@@ -27,7 +27,7 @@ const floorTemperature = 1.0
 const ejectaScalar = 0
 
 // Solver evolves one remnant: spherical shells of equal width, from the
-// centre (reflecting) to the outer radius (outflow). Quantities are per
+// center (reflecting) to the outer radius (outflow). Quantities are per
 // steradian inside; diagnostics multiply by 4π. A Solver is not safe for
 // concurrent use; separate Solvers are independent.
 type Solver struct {
@@ -40,7 +40,7 @@ type Solver struct {
 	dr            float64
 	area          []float64 // face r^2, n+1 faces
 	vol           []float64 // (r_R^3 − r_L^3)/3
-	center        []float64 // zone centre radius
+	center        []float64 // zone center radius
 	u, u1, du     []hydro.Cons
 	w             []hydro.Prim // n+4 with ghosts
 	flux          []hydro.Cons // n+1
@@ -218,7 +218,7 @@ func (s *Solver) totalEnergy() float64 {
 	return 4 * math.Pi * e
 }
 
-// fill converts u to primitives with ghost zones: mirrored at the centre,
+// fill converts u to primitives with ghost zones: mirrored at the center,
 // copied at the outer edge. A zone whose temperature fell below the floor
 // (round-off in cold, fast flow) is raised to it and the energy added is
 // booked with the given weight (the share of this state in the step's
@@ -251,7 +251,7 @@ func (s *Solver) fill(u []hydro.Cons, weight float64) error {
 // unit time (per steradian).
 func (s *Solver) rates() (eOut, mOut float64) {
 	s.eos.PencilFluxes(s.cfg.Limiter, s.w, s.flux)
-	s.flux[0] = hydro.Cons{} // no flux through the centre (zero area)
+	s.flux[0] = hydro.Cons{} // no flux through the center (zero area)
 	for i := range s.n {
 		aL, aR := s.area[i], s.area[i+1]
 		fL, fR := s.flux[i], s.flux[i+1]

@@ -1,5 +1,5 @@
 // Package feedbacktest checks any feedback scheme, a user's own included,
-// inside go test: it runs the scheme on randomised and adversarial
+// inside go test: it runs the scheme on randomized and adversarial
 // neighborhoods (uniform, clustered, one-sided, a single neighbor, gas at
 // the star's position, a huge density contrast, a moving star in moving gas,
 // overlapping stars) and asserts that mass, every species, momentum and
@@ -115,15 +115,15 @@ func Scenarios(seed uint64) []Scenario {
 		Sources: []feedback.Source{SupernovaRelease(star(7, [3]float64{}, [3]float64{}))}})
 
 	// Six clumps of different size and density around the star.
-	centres := [][3]float64{{12, 0, 0}, {-9, 3, 0}, {0, 14, -2}, {1, -10, 0}, {0, 2, 11}, {-3, 0, -13}}
+	centers := [][3]float64{{12, 0, 0}, {-9, 3, 0}, {0, 14, -2}, {1, -10, 0}, {0, 2, 11}, {-3, 0, -13}}
 	radii := []float64{3, 5, 2, 6, 4, 3}
 	g = newGas(360, func(i int) [3]float64 {
-		c := centres[i%len(centres)]
-		p := ball(rng, radii[i%len(centres)])
+		c := centers[i%len(centers)]
+		p := ball(rng, radii[i%len(centers)])
 		return [3]float64{c[0] + p[0], c[1] + p[1], c[2] + p[2]}
 	}, 50, 30, rng, 0, 2)
 	for i := range g.Density {
-		g.Density[i] *= float64(1 + i%len(centres))
+		g.Density[i] *= float64(1 + i%len(centers))
 	}
 	out = append(out, Scenario{Name: "clustered", Gas: g, Neighbors: 200, Balanced: true,
 		Sources: []feedback.Source{SupernovaRelease(star(11, [3]float64{}, [3]float64{}))}})
