@@ -9,8 +9,8 @@
 // given star particles (StarParticle: a Star with its formed mass) and a
 // yields.Model, it works out each star's releases over a step, draws the
 // supernovae, searches each star's neighbors once and couples every
-// channel (supernovae, winds, radiation pressure, photoionization) through
-// a Coupler of its own, using only what Couple returns (StepConfig, Step,
+// channel (supernovae, winds, radiation pressure, photoionization,
+// photoelectric heating) through a Coupler of its own, using only what Couple returns (StepConfig, Step,
 // StepOutput). Use a Coupler when the host computes releases itself, a
 // Stepper when ejecta should.
 //
