@@ -299,7 +299,7 @@ func TestUndepositedStarIsReported(t *testing.T) {
 	stars := supernovae(2, 8, 5)
 	stars[1].Position = [3]float64{100, 100, 100}
 	require.Equal(t, codeUndeposited, entryStep(h, &stars[0], 2, 0, modeOwnFinder, nil, nil))
-	assert.Contains(t, lastError(h), "releases returned undeposited: 1 releases; first: star 8")
+	assert.Contains(t, lastError(h), "step: releases returned undeposited: 1; the first, index 1, channel core-collapse: star 8: ")
 	var l ledgerABI
 	require.Equal(t, codeOK, entryGetLedger(h, &l))
 	assert.Equal(t, int64(1), l.Skipped)

@@ -116,7 +116,7 @@ func (s *session) runBatch(kind stepKind, a *batchArgs, couple func(neighbor.Fin
 	}
 	s.phase, s.kind = phaseStepped, kind
 	if err := s.out.Err(); err != nil {
-		return failWith(codeUndeposited, err, "step of %d stars", a.n)
+		return failWith(codeUndeposited, err, "step")
 	}
 	return nil
 }

@@ -55,6 +55,7 @@ func problemsErr(problems []Problem) error {
 		return nil
 	}
 	p := &problems[0]
-	return fmt.Errorf("%w: %d releases; first: star %d (index %d, channel %s): %w",
-		ErrUndeposited, len(problems), p.StarID, p.Index, p.Channel.String(), p.Err)
+	// p.Err names the star by its ID already.
+	return fmt.Errorf("%w: %d; the first, index %d, channel %s: %w",
+		ErrUndeposited, len(problems), p.Index, p.Channel.String(), p.Err)
 }
