@@ -969,8 +969,9 @@ int ejecta_choose_species(ejecta_context context, const char *elements);
 int ejecta_species_count(ejecta_context context, int32_t *count);
 
 /* ejecta_species_symbol writes the symbol of species code (0 ..
- * count - 1) of the context's set, NUL-terminated: "Z" for the total
- * metals, else the element's chemical symbol.
+ * count - 1) of the context's set into buffer (capacity bytes; 3 always
+ * suffice), NUL-terminated and truncated to fit: "Z" for the total metals,
+ * else the element's chemical symbol.
  * Errors: EJECTA_ERR_INVALID_CONTEXT, EJECTA_ERR_INVALID_ARGUMENT (code
  * outside the set, capacity < 0), EJECTA_ERR_NULL_POINTER (buffer NULL
  * with capacity > 0), EJECTA_ERR_BUFFER_TOO_SMALL (truncated). */
