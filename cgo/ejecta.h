@@ -78,11 +78,20 @@ extern "C" {
 #endif
 
 /* Version of this header's binary interface: bumped when a struct layout,
- * a function signature or the meaning of a field changes. 5: every config
- * field means what it says, zero included (no zero stands for a default;
- * start from ejecta_config_defaults / ejecta_population_defaults), and
- * ejecta_config gains photon_reach, max_infrared_boost and
- * wind_event_energy_erg. */
+ * a function signature or the meaning of a field changes (functions that
+ * are only added do not bump it; ejecta_version gives the library's, to
+ * compare with this one). History:
+ * 2: ejecta_step takes the host's step_index (as ejecta_step_population
+ *    does), which keys every random draw with the seed and the star ID.
+ * 3: ejecta_config gains remnant_table.
+ * 4: ejecta_record and ejecta_touched gain fuv_field and
+ *    hydro_decoupled_until; ejecta_star gains new_stellar_mass and
+ *    dispersion; ejecta_ledger gains kick_energy and heat;
+ *    ejecta_population_config gains photoelectric_heating.
+ * 5: every config field means what it says, zero included (no zero stands
+ *    for a default; start from ejecta_config_defaults /
+ *    ejecta_population_defaults), and ejecta_config gains photon_reach,
+ *    max_infrared_boost and wind_event_energy_erg. */
 #define EJECTA_ABI_VERSION 5
 
 /* ---- error codes ---------------------------------------------------- */
