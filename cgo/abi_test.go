@@ -147,7 +147,7 @@ func TestConfigErrors(t *testing.T) {
 			}
 		}, codeUnknownName, "NUL"},
 		{"NaN length", func(c *configABI) { c.LengthCm = math.NaN() }, codeInvalidArgument, "units"},
-		{"zero mass unit", func(c *configABI) { c.MassG = 0 }, codeInvalidArgument, "units"},
+		{"zero mass unit", func(c *configABI) { c.MassG = 0 }, codeInvalidArgument, "config units: code mass unit must be finite and positive, got 0"},
 		{"negative count", func(c *configABI) { c.NeighborCount = -1 }, codeInvalidArgument, "neighbor_count"},
 		{"zero count", func(c *configABI) { c.NeighborCount = 0 }, codeInvalidArgument, "neighbor_count 0 must be >= 1"},
 		{"zero count in radius mode", func(c *configABI) { c.NeighborCount, c.CouplingRadius = 0, 3 }, codeInvalidArgument, "neighbor_count"},

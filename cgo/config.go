@@ -61,7 +61,7 @@ func parseConfig(c *configABI) (feedback.Config, feedback.SchemeOptions, error) 
 	}
 	cfg.Units = units.CodeUnits{LengthCm: c.LengthCm, MassG: c.MassG, VelocityCmPS: c.VelocityCmPerS}
 	if err := cfg.Units.Validate(); err != nil {
-		return cfg, opts, fail(codeInvalidArgument, "config units: %w", err)
+		return cfg, opts, fail(codeInvalidArgument, "config %w", err) // "config units: ..."
 	}
 	scheme, err := cName("scheme", &c.Scheme)
 	if err != nil {
