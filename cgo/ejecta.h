@@ -393,12 +393,14 @@ typedef struct ejecta_gas {
 typedef struct ejecta_star {
   /* Unique among the stars of a step (and across ranks): orders records. */
   int64_t id;
+  /* Code length and velocity; finite. */
   double position[3];
   double velocity[3];
+  /* Stellar mass (code mass), >= 0. */
   double mass;
-  /* Metal mass fraction. */
+  /* Metal mass fraction, in [0, 1). */
   double metallicity;
-  /* Code time since formation. */
+  /* Code time since formation, >= 0. */
   double age;
   /* EJECTA_CHANNEL_CORE_COLLAPSE .. EJECTA_CHANNEL_AGB_WINDS. */
   int32_t channel;
@@ -432,6 +434,8 @@ typedef struct ejecta_record {
   int64_t star_id;
   int32_t channel;
   uint32_t flags; /* EJECTA_FLAG_* bits */
+  /* Mass added (code mass), and of it the mass of each species, indexed
+   * by species code (entries past the context's set are 0). */
   double mass;
   double species_mass[EJECTA_NUM_SPECIES];
   /* Lab-frame momentum added. */
@@ -765,8 +769,9 @@ int ejecta_last_error(ejecta_context context, char *buffer, int64_t capacity,
  * lists with n_species > 0), EJECTA_ERR_INVALID_ARGUMENT (count <= 0,
  * unknown element type, stride smaller than or not a multiple of the
  * element, misaligned data, integer type in a written column, species code
- * unknown or repeated, n_species outside 0..12, written columns overlapping
- * others). On error the previous binding is dropped. */
+ * unknown or repeated, n_species outside 0..EJECTA_NUM_SPECIES, written
+ * columns overlapping others). On error the previous binding is
+ * dropped. */
 int ejecta_bind_gas(ejecta_context context, const ejecta_gas *gas);
 
 /* ---- step ------------------------------------------------------------- */
@@ -789,7 +794,8 @@ int ejecta_bind_gas(ejecta_context context, const ejecta_gas *gas);
  * EJECTA_ERR_INVALID_ARGUMENT (n_stars <= 0, step_index < 0, unknown
  * mode or channel, duplicate star IDs),
  * EJECTA_ERR_BAD_VALUE (NaN, infinite or negative star or release field,
- * a species mass above the ejected mass; nothing is done),
+ * metallicity >= 1, a species mass above the ejected mass; nothing is
+ * done),
  * EJECTA_ERR_NO_GAS, EJECTA_ERR_NEIGHBORS (malformed rows, a row or the
  * whole gas shorter than neighbor_count in count mode, gas positions or
  * IDs unusable for the tree: NaN, duplicate IDs; nothing is done),
