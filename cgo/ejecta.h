@@ -405,8 +405,9 @@ typedef struct ejecta_star {
   /* EJECTA_CHANNEL_CORE_COLLAPSE .. EJECTA_CHANNEL_AGB_WINDS. */
   int32_t channel;
   int32_t reserved;
-  /* Release: ejected mass, its species masses (species_mass[s] <=
-   * ejected_mass), energy (explosion energy, wind kinetic energy, emitted
+  /* Release: ejected mass, its species masses by species code
+   * (species_mass[s] <= ejected_mass; 0 at codes past the context's set),
+   * energy (explosion energy, wind kinetic energy, emitted
    * light for radiation pressure), number of discrete events (supernovae;
    * 0 for continuous release), hydrogen-ionizing photons emitted over the
    * step and the step's duration (code time; both used by
@@ -794,8 +795,8 @@ int ejecta_bind_gas(ejecta_context context, const ejecta_gas *gas);
  * EJECTA_ERR_INVALID_ARGUMENT (n_stars <= 0, step_index < 0, unknown
  * mode or channel, duplicate star IDs),
  * EJECTA_ERR_BAD_VALUE (NaN, infinite or negative star or release field,
- * metallicity >= 1, a species mass above the ejected mass; nothing is
- * done),
+ * metallicity >= 1, a species mass above the ejected mass or at a code
+ * past the context's species set; nothing is done),
  * EJECTA_ERR_NO_GAS, EJECTA_ERR_NEIGHBORS (malformed rows, a row or the
  * whole gas shorter than neighbor_count in count mode, gas positions or
  * IDs unusable for the tree: NaN, duplicate IDs; nothing is done),

@@ -174,3 +174,19 @@ func TestStarErrorsNameTheContextsSpecies(t *testing.T) {
 	assert.Equal(t, codeBadValue, entryStep(h, &star, 1, 0, modeOwnFinder, nil, nil))
 	assert.Contains(t, lastError(h), "star 7: release duration +Inf is not finite")
 }
+
+// A release may not carry species mass at a code the context's set does
+// not have: the step refuses it rather than book a species no gas column
+// can hold.
+func TestStarSpeciesPastTheSetAreRefused(t *testing.T) {
+	h := create(t, pcConfig())
+	require.Equal(t, codeOK, entryChooseSpecies(h, cString("Fe,O")), lastError(h))
+	g := newTestGas(4, 10, 1)
+	require.Equal(t, codeOK, entryBindGas(h, &g.desc), lastError(h))
+	star := starABI{ID: 7, Position: [3]float64{5, 5, 5}, Mass: 10, Channel: int32(yields.CoreCollapse), EjectedMass: 1, Energy: 1}
+	star.SpeciesMass[5] = 0.5
+	assert.Equal(t, codeBadValue, entryStep(h, &star, 1, 0, modeOwnFinder, nil, nil))
+	assert.Contains(t, lastError(h), "species mass 0.5 at code 5, past the codes 0..2 of the species set Fe,O")
+	star.SpeciesMass[5], star.SpeciesMass[2] = 0, 0.5
+	assert.Equal(t, codeOK, entryStep(h, &star, 1, 0, modeOwnFinder, nil, nil), lastError(h))
+}

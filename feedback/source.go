@@ -70,7 +70,8 @@ type Source struct {
 }
 
 // Validate checks the star (Star.Validate), that the release is finite
-// and non-negative, and that no species outweighs the ejected mass. Errors name species as in
+// and non-negative, that no species outweighs the ejected mass and that
+// no mass is given at a code past the species set. Errors name species as in
 // yields.DefaultSpeciesSet; a Coupler names them by its Config.Species.
 func (s *Source) Validate() error { return s.ValidateIn(yields.SpeciesSet{}) }
 
@@ -100,6 +101,10 @@ func (s *Source) ValidateIn(set yields.SpeciesSet) error {
 		return errorf(ErrBadValue, "star %d: negative new stellar mass %g or velocity dispersion %g", s.Star.ID, s.NewStellarMass, s.Dispersion)
 	}
 	for sp, m := range s.Species {
+		if sp >= set.Slots() && m != 0 {
+			return errorf(ErrBadValue, "star %d: species mass %g at code %d, past the codes 0..%d of the species set %s",
+				s.Star.ID, m, sp, set.Slots()-1, set)
+		}
 		if !finite(m) || m < 0 {
 			return errorf(ErrBadValue, "star %d: species %s mass %g is not finite and non-negative", s.Star.ID, set.Symbol(yields.Species(sp)), m)
 		}
