@@ -27,10 +27,10 @@ func ExampleRun() {
 		fmt.Printf("%-17s isotropy residual below 1e-9: %v\n", r.Scheme, r.Residual < 1e-9)
 	}
 	// Output:
-	// thermal-dump      m=1      p=0 (energy-conserving 5.3e+04, terminal 2.17e+05) Msun km/s
-	// terminal-momentum m=1      p=5.4e+04 (energy-conserving 5.3e+04, terminal 2.17e+05) Msun km/s
-	// thermal-dump      m=10000  p=0 (energy-conserving 4.2e+06, terminal 2.17e+05) Msun km/s
-	// terminal-momentum m=10000  p=2.2e+05 (energy-conserving 4.2e+06, terminal 2.17e+05) Msun km/s
+	// thermal-dump      m=1      p=0 (energy-conserving 5.3e+04, terminal 2.82e+05) Msun km/s
+	// terminal-momentum m=1      p=5.4e+04 (energy-conserving 5.3e+04, terminal 2.82e+05) Msun km/s
+	// thermal-dump      m=10000  p=0 (energy-conserving 4.2e+06, terminal 2.82e+05) Msun km/s
+	// terminal-momentum m=10000  p=2.8e+05 (energy-conserving 4.2e+06, terminal 2.82e+05) Msun km/s
 	// thermal-dump      isotropy residual below 1e-9: true
 	// terminal-momentum isotropy residual below 1e-9: true
 }

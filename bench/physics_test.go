@@ -61,9 +61,10 @@ func TestTerminalColumnFollowsKimOstriker(t *testing.T) {
 	res := runQuick(t, "uniform-lattice")
 	for _, r := range rowsOf(res, "terminal-momentum", "uniform-lattice") {
 		// p_sf = 2.17e5 Msun km/s n^-0.13 for one 1e51 erg SN (from memory:
-		// Kim & Ostriker 2015, ApJ 802, 99); the lattice is uniform, so the
+		// Kim & Ostriker 2015, ApJ 802, 99) and the final momentum about
+		// 30% above it (their abstract); the lattice is uniform, so the
 		// shared terminal momentum is the fit's at the set-up density.
-		assert.InEpsilon(t, 2.17e5*math.Pow(r.DensityCm3, -0.13), r.TerminalMsunKms, 0.01, "n=%g m=%g", r.DensityCm3, r.GasMassMsun)
+		assert.InEpsilon(t, 1.3*2.17e5*math.Pow(r.DensityCm3, -0.13), r.TerminalMsunKms, 0.01, "n=%g m=%g", r.DensityCm3, r.GasMassMsun)
 		// Coupled mass is the k nearest equal-mass elements.
 		assert.InEpsilon(t, float64(res.Neighbors)*r.GasMassMsun, r.CoupledMassMsun, 1e-12)
 	}

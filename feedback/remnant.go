@@ -30,6 +30,27 @@ const PostCoolingThermalExponent = -6.5
 // photoionization balance are written in.
 const MassPerHydrogen = 1 / yields.SolarHydrogen
 
+// KimOstrikerFinalMomentumRatio is the final momentum of a remnant in a
+// uniform medium over its momentum at shell formation: Kim & Ostriker 2015
+// (ApJ 802, 99, abstract) find the final momentum about 30% above the
+// shell-formation value. The 1D reference (bench/remnant) agrees: 1.32 to
+// 1.36 p_sf at three shell-formation times and 1.36 to 1.44 at ten, for
+// n = 1 to 100 cm^-3. A terminal momentum at p_sf itself delivered only
+// 0.69 to 0.80 of the 1D reference's momentum at three shell-formation
+// times on the 3D testbed (bench/testbed) wherever the coupled mass
+// exceeds the cooling mass (cells of 0.1 to 30 cooling masses, n = 1 and
+// 100 cm^-3); with the final momentum it delivers 0.87 to 1.04.
+const KimOstrikerFinalMomentumRatio = 1.3
+
+// KimOstrikerGrowthExponent is how the momentum of a Kim & Ostriker 2015
+// remnant grows with the swept mass past shell formation, p ∝ M^(1/3), up
+// to the final momentum: in the 1D reference (bench/remnant) the remnant
+// has swept 2.2 M_sf and carries 1.32 to 1.36 p_sf at three
+// shell-formation times (n = 1 to 100 cm^-3), and ln 1.3 / ln 2.2 is
+// about 1/3 (our calibration; the paper gives the final momentum, not the
+// path to it).
+const KimOstrikerGrowthExponent = 1.0 / 3
+
 // CioffiSolarMetallicity is the metal mass fraction Cioffi, McKee &
 // Bertschinger 1988 (ApJ 334, 252) mean by solar metallicity, zeta = 1:
 // they scale their cooling function with the metal abundance relative to
@@ -65,8 +86,10 @@ const (
 	//   p_sf = 2.17e5 Msun km/s E51^0.93 n0^-0.13,
 	//   R_sf = 22.1 pc E51^0.29 n0^-0.42,
 	//   M_sf = 1.54e3 Msun E51^0.87 n0^-0.26.
-	// The remnant switches at M_sf with p_sf and keeps p_sf as its terminal
-	// momentum. The fit has no metallicity dependence.
+	// The remnant switches at M_sf with p_sf; past it the momentum grows as
+	// the swept mass to the power KimOstrikerGrowthExponent up to the
+	// final momentum, KimOstrikerFinalMomentumRatio p_sf. The fit has no
+	// metallicity dependence.
 	KimOstriker2015 RemnantFit = iota
 	// CioffiMcKeeBertschinger1988 is the pressure-driven snowplough of
 	// Cioffi, McKee & Bertschinger 1988 (ApJ 334, 252; from memory), with
@@ -130,7 +153,8 @@ func (f RemnantFit) Remnant(e, n, z float64) Remnant {
 			CoolingRadius:    22.1 * units.Parsec * math.Exp(0.29*le-0.42*ln),
 			SwitchMass:       1.54e3 * units.SolarMass * math.Exp(0.87*le-0.26*ln),
 			SwitchMomentum:   p,
-			TerminalMomentum: p,
+			TerminalMomentum: KimOstrikerFinalMomentumRatio * p,
+			GrowthExponent:   KimOstrikerGrowthExponent,
 		}
 	}
 }

@@ -78,10 +78,12 @@ func TestRemnantSwitchIsContinuousInCoupledMass(t *testing.T) {
 // Every built-in weighting, on a uniform lattice at n = 1 cm^-3, delivers
 // the energy-conserving momentum of the coupled mass below the switch and
 // the terminal momentum past it, within 5%. For Kim & Ostriker 2015 the
-// reference is min(sqrt(2 E (M_ej + 0.28 M_sw)), p_sf): sweep-up with the
+// reference is sqrt(2 E (M_ej + 0.28 M_sw)) up to p_sf: sweep-up with the
 // Sedov–Taylor kinetic share (Chevalier 1974, ApJ 188, 501; from memory)
-// capped at p_sf = 2.17e5 Msun km/s (Kim & Ostriker 2015, ApJ 802, 99;
-// from memory). For Cioffi et al. 1988 it is their own law
+// up to p_sf = 2.17e5 Msun km/s at M_sf = 1540 Msun (Kim & Ostriker 2015,
+// ApJ 802, 99; from memory), then p_sf (M_sw / M_sf)^(1/3) up to the final
+// momentum 1.3 p_sf (about 30% above shell formation, their abstract).
+// For Cioffi et al. 1988 it is their own law
 // (Remnant.MomentumAt, checked against the paper in the package's tests).
 // Exact conservation is checked by coupleOnce.
 func TestRemnantMomentumDoesNotDependOnWeighting(t *testing.T) {
@@ -97,6 +99,9 @@ func TestRemnantMomentumDoesNotDependOnWeighting(t *testing.T) {
 					var want float64
 					if fit == feedback.KimOstriker2015 {
 						want = math.Min(math.Sqrt(2*e*(10+0.28*mc)), 2.17e5)
+						if mc > 1540 {
+							want = 2.17e5 * math.Min(math.Cbrt(mc/1540), 1.3)
+						}
 					} else {
 						pl, _, _ := rem.MomentumAt(units.FOE, 10*units.SolarMass, mc*units.SolarMass)
 						want = pl / u.MomentumGCmPS()
@@ -114,18 +119,20 @@ func TestRemnantMomentumDoesNotDependOnWeighting(t *testing.T) {
 // momentum once radiative, as Kim & Ostriker 2015 (ApJ 802, 99) find for
 // spatially correlated supernovae. Per drawn event, because the Poisson
 // counts of different step sequences differ by a few per cent; and the
-// per-event momentum is p_sf = 2.17e5 Msun km/s at n = 1 (Kim & Ostriker
-// 2015, from memory). The stellar winds of the same interval deliver a
-// momentum that depends on the step count by less than 10%. Gas of 2e5
-// Msun elements: 32 of them are far above the cooling mass of even one
-// step's 3000 supernovae.
+// per-event momentum is the final momentum 1.3 p_sf = 2.8e5 Msun km/s at
+// n = 1 (Kim & Ostriker 2015: p_sf = 2.17e5 from memory, the final
+// momentum about 30% above it, abstract). The stellar winds of the same
+// interval deliver a momentum that depends on the step count by less than
+// 10%. Gas of 1e6 Msun elements: 32 of them hold more than 2.2 cooling
+// masses per event (where the momentum has reached its final value) even
+// for one step's 3000 supernovae.
 func TestPopulationMomentumDoesNotDependOnStepSize(t *testing.T) {
 	u := units.ParsecSolarMassKms()
 	pop := defaultPopulation(t)
 	myr := units.Megayear / u.TimeS()
 	type result struct{ perEvent, winds float64 }
 	run := func(steps int) result {
-		g, _ := latticeOfMass(9, 2e5, 1, u)
+		g, _ := latticeOfMass(9, 1e6, 1, u)
 		f := newTree(t, g)
 		cfg := feedback.DefaultStepConfig(feedback.Config{Units: u, Neighbors: 32}, pop)
 		cfg.Seed, cfg.SkipRadiation, cfg.SkipPhotoionization = 11, true, true
@@ -155,7 +162,7 @@ func TestPopulationMomentumDoesNotDependOnStepSize(t *testing.T) {
 		return result{p / events, w}
 	}
 	one := run(1)
-	assert.InEpsilon(t, 2.17e5, one.perEvent, 0.05, "one step")
+	assert.InEpsilon(t, 1.3*2.17e5, one.perEvent, 0.05, "one step")
 	for _, steps := range []int{10, 100} {
 		r := run(steps)
 		assert.InEpsilon(t, one.perEvent, r.perEvent, 0.05, "%d steps: supernova momentum per event", steps)

@@ -17,7 +17,8 @@ import (
 
 // koTable is a remnant table holding the Kim & Ostriker 2015 fit's own
 // values (feedback.KimOstriker2015) on a grid of densities and two
-// metallicities, with no late growth, as the fit has none.
+// metallicities, with the fit's late growth: its final momentum reached
+// where the momentum law reaches it.
 func koTable(t *testing.T) *feedback.RemnantTable {
 	t.Helper()
 	var rows []feedback.RemnantTableRow
@@ -28,6 +29,8 @@ func koTable(t *testing.T) *feedback.RemnantTable {
 				Density: n, Metallicity: z, Energy: units.FOE, ShellTime: 1,
 				ShellRadius: r.CoolingRadius / units.Parsec, ShellMass: r.SwitchMass / units.SolarMass,
 				ShellMomentum: r.SwitchMomentum / units.MsunKms,
+				LateTime:      10, LateMomentum: r.TerminalMomentum / units.MsunKms,
+				LateMass: r.SwitchMass * math.Pow(r.TerminalMomentum/r.SwitchMomentum, 1/r.GrowthExponent) / units.SolarMass,
 			})
 		}
 	}
