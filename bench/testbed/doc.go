@@ -42,4 +42,26 @@
 // feedback.Apply; the grid then follows (Grid.AfterApply): densities from
 // the new masses, and a cell flagged feedback.FlagHoldCooling has its
 // cooling held until the time the record says.
+//
+// # The experiment
+//
+// Run evolves one supernova per case: every Variant (a scheme and its
+// coupler settings, the library's or a user's) in uniform gas at each
+// density, at cell masses given in units of the cooling mass of the
+// one-dimensional reference (package remnant: its mass inside the shock at
+// shell formation, with the same cooling curve, ambient temperature,
+// energy and ejecta). The box is BoxMargin times wider than the
+// reference's remnant at the last measurement time, and at least MinCells
+// cells across, with the star at its centre, a cell corner. The supernova
+// goes in at t = 0; energy a scheme hands back undeposited is carried by
+// the star and released again at the next step, as a host would. Steps
+// are the Courant step, never longer than StepFraction of the time since
+// the explosion (so that large cells do not jump over the early evolution
+// in one step). At each measurement time (in shell-formation times of the
+// reference) the grid's radial momentum about the star, kinetic energy,
+// thermal energy above the ambient gas's, energy radiated (by the grid's
+// cooling and by the scheme at injection) and hot-gas mass (T > 2e4 K) are
+// set beside the reference's at the same time (Outcome). Cases run
+// Workers at a time, each on one goroutine, so results do not depend on
+// the worker count.
 package testbed

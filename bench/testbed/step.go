@@ -8,21 +8,30 @@ import (
 )
 
 // StableStep is the largest time step (code) the Courant condition allows
-// for the present state: Courant × dx / max over cells of (max_a |v_a| + c).
-// It is +Inf for gas at rest at zero temperature.
+// for the present state: Courant × dx / max over cells of (max_a |v_a| + c),
+// and, with CoolingCourant > 0, no more than CoolingCourant times the
+// shortest cooling time of a hot cell whose cooling is not held, unless that
+// is below a tenth of the Courant step. It is +Inf for gas at rest at zero
+// temperature without cooling.
 func (g *Grid) StableStep() float64 {
 	g.run(taskSignal, g.n)
-	s := 0.0
+	s, tc := 0.0, math.Inf(1)
 	for p := range g.planes {
 		s = math.Max(s, g.planes[p].maxSpeed)
+		tc = math.Min(tc, g.planes[p].minCooling)
 	}
-	if s == 0 {
-		return math.Inf(1)
+	dt := math.Inf(1)
+	if s > 0 {
+		dt = g.cfg.Courant * g.dx / s
 	}
-	return g.cfg.Courant * g.dx / s
+	if c := g.cfg.CoolingCourant * tc; c < dt {
+		dt = math.Max(c, dt/10)
+	}
+	return dt
 }
 
-// signalPlane finds the largest signal speed in plane k.
+// signalPlane finds the largest signal speed in plane k and, when the
+// step follows cooling, the shortest cooling time (code).
 func (g *Grid) signalPlane(k int) {
 	n := g.n
 	gg := g.gas.Gamma * (g.gas.Gamma - 1)
@@ -32,6 +41,20 @@ func (g *Grid) signalPlane(k int) {
 		s = math.Max(s, v+math.Sqrt(gg*g.eint[c]))
 	}
 	g.planes[k].maxSpeed = s
+	tc := math.Inf(1)
+	if curve := g.cfg.Cooling; curve != nil && g.cfg.CoolingCourant > 0 {
+		th := g.cfg.Thermo
+		eHot := th.SpecificEnergy(CoolingStepTemperature) / g.eCGS
+		for c := k * n * n; c < (k+1)*n*n; c++ {
+			if g.eint[c] <= eHot || g.holdUntil[c] > g.time {
+				continue
+			}
+			rho := g.dens[c] * g.rhoCGS
+			tc = math.Min(tc, curve.CoolingTime(th.HydrogenDensity(rho), th.Temperature(g.eint[c]*g.eCGS), th.HeatCapacity(rho)))
+		}
+		tc /= g.tCGS
+	}
+	g.planes[k].minCooling = tc
 }
 
 // Step advances the grid by dt (code time): the three sweeps of the split
