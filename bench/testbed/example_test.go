@@ -46,3 +46,30 @@ func ExampleGrid() {
 	// radiated 74% of the supernova energy
 	// ledger closes: true
 }
+
+// The terminal-momentum scheme and a thermal dump in cells of ten cooling
+// masses at n_H = 100 cm^-3, evolved to three shell-formation times and set
+// beside the 1D reference remnant; the experiment adds the
+// terminal-momentum scheme with a remnant table calibrated from that
+// reference.
+func ExampleRun() {
+	cfg := testbed.DefaultConfig()
+	cfg.Variants = []testbed.Variant{
+		{Name: "thermal-dump", Scheme: feedback.ThermalDump{}},
+		{Name: "terminal-momentum", Scheme: feedback.TerminalMomentum{Fit: feedback.KimOstriker2015}},
+	}
+	cfg.DensitiesCm3, cfg.CellMassRatios, cfg.ShellTimes = []float64{100}, []float64{10}, []float64{3}
+	cfg.HistorySamples, cfg.SliceCellMassRatio = 0, 0
+	res, err := testbed.Run(cfg)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, o := range res.Outcome {
+		fmt.Printf("%s: %.1f of the 1D reference's momentum\n", o.Scheme, o.MomentumRatio())
+	}
+	// Output:
+	// thermal-dump: 0.1 of the 1D reference's momentum
+	// terminal-momentum: 1.0 of the 1D reference's momentum
+	// terminal-momentum-calibrated: 1.0 of the 1D reference's momentum
+}

@@ -79,6 +79,11 @@ type Config struct {
 	// whose density and temperature are sliced through the star at
 	// SliceShellTime; zero takes no slices.
 	SliceCellMassRatio, SliceShellTime float64
+	// CalibratedVariant, when not empty, names one more variant: the
+	// terminal-momentum scheme with a remnant table calibrated from the
+	// experiment's own 1D references (CalibratedTable), so its remnant
+	// comes from the same cooling as the grid's.
+	CalibratedVariant string
 	// Workers is the number of cases evolved at once; each case runs on
 	// one goroutine, so results do not depend on it.
 	Workers int
@@ -99,6 +104,7 @@ func DefaultConfig() Config {
 		Neighbors: feedback.DefaultNeighbors, ReferenceZones: 200, BoxMargin: 1.25, MinCells: 8,
 		StepFraction: 0.2, FirstStepShellTimes: 0.01, CoolingCourant: 0,
 		HistorySamples: 24, HistoryStart: 0.05, SliceCellMassRatio: 1e-3, SliceShellTime: 3, Workers: 1,
+		CalibratedVariant: "terminal-momentum-calibrated",
 	}
 }
 
@@ -265,10 +271,24 @@ func Run(cfg Config) (*Result, error) {
 	if err := errors.Join(errs...); err != nil {
 		return nil, err
 	}
+	variants := cfg.Variants
+	if cfg.CalibratedVariant != "" {
+		tab, err := CalibratedTable(refs)
+		if err != nil {
+			return nil, err
+		}
+		variants = append(variants[:len(variants):len(variants)], Variant{Name: cfg.CalibratedVariant,
+			Scheme: feedback.TerminalMomentum{Table: tab}})
+		for _, v := range cfg.Variants {
+			if v.Name == cfg.CalibratedVariant {
+				return nil, fmt.Errorf("testbed: variant %q named twice: %w", v.Name, ErrConfig)
+			}
+		}
+	}
 
 	// Cases, the most expensive first so the workers finish together.
 	var jobs []*caseJob
-	for vi := range cfg.Variants {
+	for vi := range variants {
 		for di := range cfg.DensitiesCm3 {
 			for ri, ratio := range cfg.CellMassRatios {
 				j := &caseJob{variant: vi, density: di, ratio: ri, order: len(jobs)}
@@ -287,7 +307,7 @@ func Run(cfg Config) (*Result, error) {
 		go func() {
 			defer wg.Done()
 			for j := range queue {
-				j.result, j.err = runCase(&cfg, curve, cfg.Variants[j.variant], refs[j.density], j, prog)
+				j.result, j.err = runCase(&cfg, curve, variants[j.variant], refs[j.density], j, prog)
 				prog.finish(j)
 			}
 		}()
@@ -297,6 +317,7 @@ func Run(cfg Config) (*Result, error) {
 	}
 	close(queue)
 	wg.Wait()
+	prog.complete()
 
 	res := &Result{}
 	for _, j := range jobs {
@@ -580,6 +601,14 @@ func (m *progressMeter) advance(j *caseJob, f float64) {
 }
 
 func (m *progressMeter) finish(j *caseJob) { m.advance(j, 1) }
+
+// done reports the whole work done, whatever round-off the sums carry.
+func (m *progressMeter) complete() {
+	if m.fn != nil && m.last < progressUnits {
+		m.last = progressUnits
+		m.fn(progressUnits, progressUnits)
+	}
+}
 
 func (m *progressMeter) report() {
 	n := int(progressUnits * m.done / m.total)

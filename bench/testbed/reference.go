@@ -1,12 +1,14 @@
 package testbed
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 	"math"
 	"sort"
 
 	"github.com/ejecta-dev/ejecta/bench/remnant"
+	"github.com/ejecta-dev/ejecta/feedback"
 )
 
 // ErrReference marks a one-dimensional reference that cannot serve: no
@@ -28,6 +30,7 @@ type Reference struct {
 	// mass and momentum) of the one-dimensional run.
 	ShellFormation remnant.Point
 	history        []remnant.Sample
+	result         *remnant.Result
 }
 
 // NewReference runs the one-dimensional remnant of cfg and keeps what the
@@ -52,7 +55,7 @@ func ReferenceFromResult(res *remnant.Result) (*Reference, error) {
 	h := append([]remnant.Sample(nil), res.History...)
 	sort.SliceStable(h, func(i, j int) bool { return h[i].Time < h[j].Time })
 	return &Reference{DensityCm3: res.Config.Density, Metallicity: res.Config.Metallicity,
-		AmbientTemperature: res.AmbientTemperature, ShellFormation: res.ShellFormation, history: h}, nil
+		AmbientTemperature: res.AmbientTemperature, ShellFormation: res.ShellFormation, history: h, result: res}, nil
 }
 
 // ShellTime is the shell-formation time in s.
@@ -89,4 +92,30 @@ func (r *Reference) At(t float64) (remnant.Sample, error) {
 		Kinetic: mix(a.Kinetic, b.Kinetic), Thermal: mix(a.Thermal, b.Thermal), Radiated: mix(a.Radiated, b.Radiated),
 	}
 	return s, nil
+}
+
+// CalibratedTable is a remnant table (package feedback) calibrated from
+// references at one metallicity and several densities, as "ejecta remnant
+// -calibrate" would write it: each row the shell formation and the end of
+// a reference run. It clamps inputs outside its densities to the nearest
+// one.
+func CalibratedTable(refs []*Reference) (*feedback.RemnantTable, error) {
+	byDensity := append([]*Reference(nil), refs...)
+	sort.Slice(byDensity, func(i, j int) bool { return byDensity[i].DensityCm3 < byDensity[j].DensityCm3 })
+	cases := make([]remnant.Case, len(byDensity))
+	for i, r := range byDensity {
+		if i > 0 && r.Metallicity != byDensity[0].Metallicity {
+			return nil, fmt.Errorf("testbed: calibrated table: metallicities %v and %v: %w", byDensity[0].Metallicity, r.Metallicity, ErrReference)
+		}
+		cases[i] = remnant.Case{Density: r.DensityCm3, Metallicity: r.Metallicity, Result: r.result}
+	}
+	var buf bytes.Buffer
+	if err := feedback.WriteRemnantTable(&buf, nil, remnant.TableRows(cases)); err != nil {
+		return nil, fmt.Errorf("testbed: calibrated table: %w", err)
+	}
+	tab, err := feedback.ReadRemnantTable(&buf)
+	if err != nil {
+		return nil, fmt.Errorf("testbed: calibrated table: %w", err)
+	}
+	return tab.WithOutsideGrid(feedback.ClampToGrid), nil
 }
