@@ -86,6 +86,7 @@ func BenchmarkTouchFloor(b *testing.B) {
 func BenchmarkQuickSuite(b *testing.B) {
 	s := QuickSuite()
 	s.Speed.Stars = 0
+	s.Outcome = OutcomeSpec{}
 	for i := 0; i < b.N; i++ {
 		if _, err := Run(s, Options{}); err != nil {
 			b.Fatal(err)

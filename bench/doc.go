@@ -34,9 +34,25 @@
 //     the ratio of its time to the touch-only floor (TouchFloor: the same
 //     neighbor search, gathers and scatters with no physics) measured on
 //     the same gas in the same run.
+//   - Outcome (Suite.Outcome): what each scheme delivers once its remnant
+//     has evolved. Its supernova goes into a periodic 3D grid of uniform gas
+//     through the coupler and Apply, the grid evolves it with cooling
+//     (package testbed), and at 3 and 10 shell-formation times the radial
+//     momentum about the star, the kinetic, thermal and radiated energy and
+//     the hot gas are set beside the 1D reference remnant's (package
+//     remnant) at the same time, against cell mass in units of the
+//     reference's cooling mass. Most of a suite's time goes here.
 //
 // WriteResults writes results.json, a CSV per table and PNG plots
-// (Figures). The ejecta command runs all this as "ejecta bench".
+// (Figures): momentum against gas element mass per set-up (zero momenta
+// said in words, the cooling mass marked), the isotropy residual, the
+// energy split against gas element mass per set-up, the speed, and for
+// the outcome the delivered over reference momentum against cell mass
+// (outcome_momentum.png, the headline), momentum against time beside the
+// 1D curve, and density and temperature slices through the star. Every
+// figure keeps its key in a column of its own and writes log-axis ticks
+// by one rule (0.01 to 1000 as decimals, 1e<k> beyond). The ejecta command
+// runs all this as "ejecta bench".
 //
 // # A user's own gas
 //

@@ -13,7 +13,8 @@ func ExampleRun() {
 	suite.Setups, _ = bench.SelectSetups([]string{"uniform-lattice"})
 	suite.DensitiesCm3 = []float64{1}
 	suite.GasMassesMsun = []float64{1, 1e4}
-	suite.Speed.Stars = 0 // no timing here; see BenchmarkSchemes
+	suite.Speed.Stars = 0               // no timing here; see BenchmarkSchemes
+	suite.Outcome = bench.OutcomeSpec{} // no 3D evolution here; package testbed's ExampleRun shows it
 	schemes, _ := bench.SelectSchemes([]string{"thermal-dump", "terminal-momentum"})
 	res, err := bench.Run(suite, bench.Options{Schemes: schemes})
 	if err != nil {

@@ -22,7 +22,16 @@ const (
 	SpeedFile       = "speed.csv"
 	// SpeedFigureFile is the speed plot, written when speed was measured.
 	SpeedFigureFile = "speed.png"
+	// OutcomeTableFile and OutcomeHistoryTableFile hold the evolved
+	// outcome's rows and momentum histories, written when it was run.
+	OutcomeTableFile        = "outcome.csv"
+	OutcomeHistoryTableFile = "outcome_history.csv"
 )
+
+// figurePrefixes are the beginnings of the names of every figure
+// WriteResults writes; a figure of these names that a run did not make is
+// removed from the folder.
+var figurePrefixes = []string{"momentum_", "energy", "isotropy", "speed", "outcome_"}
 
 // csvDigits is the number of significant digits of the CSV tables: enough
 // for any comparison the tables serve, without float64 round-off noise
@@ -57,6 +66,7 @@ func WriteResults(dir string, res *Result) ([]string, error) {
 	}{
 		{ConvergenceFile, res.Convergence}, {IsotropyFile, res.Isotropy},
 		{EnergyFile, res.Energy}, {SpeedFile, res.Speed},
+		{OutcomeTableFile, res.Outcome}, {OutcomeHistoryTableFile, res.OutcomeHistory},
 	}
 	for _, t := range tables {
 		p := filepath.Join(dir, t.name)
@@ -75,9 +85,21 @@ func WriteResults(dir string, res *Result) ([]string, error) {
 	if err != nil {
 		return written, fmt.Errorf("write results: %w", err)
 	}
-	if len(res.Speed) == 0 {
-		if err := removeStale(filepath.Join(dir, SpeedFigureFile)); err != nil {
+	made := map[string]bool{}
+	for _, f := range figs {
+		made[f.File] = true
+	}
+	for _, prefix := range figurePrefixes {
+		old, err := filepath.Glob(filepath.Join(dir, prefix+"*.png"))
+		if err != nil {
 			return written, fmt.Errorf("write results: %w", err)
+		}
+		for _, o := range old {
+			if !made[filepath.Base(o)] {
+				if err := removeStale(o); err != nil {
+					return written, fmt.Errorf("write results: %w", err)
+				}
+			}
 		}
 	}
 	for _, f := range figs {

@@ -29,6 +29,7 @@ func smallResult(t *testing.T) *Result {
 	s.DensitiesCm3 = []float64{1, 100}
 	s.GasMassesMsun = []float64{1, 100, 1e4}
 	s.Speed.Stars, s.Speed.MinDuration, s.Speed.MinRounds = 16, time.Millisecond, 1
+	s.Outcome = OutcomeSpec{}
 	res, err := Run(s, Options{})
 	require.NoError(t, err)
 	return res
@@ -55,7 +56,8 @@ func TestFiguresAreLabelled(t *testing.T) {
 	require.Contains(t, files, "momentum_interface.png")
 	require.Contains(t, files, "momentum_clumpy-cloud.png")
 	require.Contains(t, files, "isotropy.png")
-	require.Contains(t, files, "energy.png")
+	require.Contains(t, files, "energy_interface.png")
+	require.Contains(t, files, "energy_clumpy-cloud.png")
 	require.Contains(t, files, "speed.png")
 
 	m := files["momentum_interface.png"]
@@ -65,17 +67,29 @@ func TestFiguresAreLabelled(t *testing.T) {
 	assert.Equal(t, "gas element mass [Msun]", p.X.Label.Text)
 	assert.Equal(t, "radial momentum per SN [Msun km/s]", p.Y.Label.Text)
 	assert.Contains(t, p.Title.Text, "n = 1 cm^-3")
-	// A line per scheme plus the two analytic references.
-	require.Len(t, m.Legend, len(Schemes())+2)
+	// A line per scheme, the two analytic references and the cooling-mass
+	// mark, in a key of their own; a scheme that gives no radial momentum
+	// says "zero" in words instead of being drawn on the log axis.
+	require.Len(t, m.Legend, len(Schemes())+3)
+	require.NotNil(t, m.Key)
 	assert.True(t, strings.HasPrefix(m.Legend[0], "thermal-dump"))
-	assert.Contains(t, m.Legend[0], "axis floor", "a thermal dump's zero momentum is drawn at the floor, and says so")
-	assert.Contains(t, m.Legend[len(m.Legend)-2], "energy-conserving")
-	assert.Contains(t, m.Legend[len(m.Legend)-1], "terminal momentum (kim-ostriker-2015)")
+	assert.Contains(t, m.Legend[0], "zero at every mass (not drawn)")
+	assert.Contains(t, m.Legend[len(m.Legend)-3], "energy-conserving")
+	assert.Contains(t, m.Legend[len(m.Legend)-2], "terminal momentum (kim-ostriker-2015)")
+	assert.Contains(t, m.Legend[len(m.Legend)-1], "cooling mass")
+	// Tick labels follow one rule on every log axis: no "e+", no long runs
+	// of zeros.
+	for _, tk := range p.X.Tick.Marker.Ticks(1, 1e5) {
+		assert.NotContains(t, tk.Label, "+")
+		assert.NotContains(t, tk.Label, "0000")
+	}
 
 	assert.Contains(t, files["isotropy.png"].Panels[0][0].Y.Label.Text, "isotropy residual")
 	assert.Len(t, files["isotropy.png"].Legend, len(Schemes()))
-	assert.Equal(t, []string{"kinetic", "thermal", "radiated", "undeposited"}, files["energy.png"].Legend)
-	assert.Equal(t, "share of the energy released", files["energy.png"].Panels[0][0].Y.Label.Text)
+	e := files["energy_interface.png"]
+	assert.Equal(t, []string{"kinetic", "thermal", "radiated", "undeposited"}, e.Legend)
+	assert.Equal(t, "share of the energy", e.Panels[0][0].Y.Label.Text)
+	assert.Equal(t, "gas element mass [Msun]", e.Panels[0][0].X.Label.Text, "the energy split across resolutions")
 	sp := files["speed.png"]
 	assert.Equal(t, "stars per second [1/s]", sp.Panels[0][0].Y.Label.Text)
 	assert.Contains(t, sp.Panels[0][1].Y.Label.Text, "touch ratio")
@@ -104,7 +118,7 @@ func TestWriteResults(t *testing.T) {
 		assert.GreaterOrEqual(t, img.Bounds().Dy(), 300, p)
 		assert.Greater(t, len(b), 10000, "%s is more than a blank image", p)
 	}
-	assert.Equal(t, 2+3, pngs, "two momentum figures, isotropy, energy, speed")
+	assert.Equal(t, 2+1+2+1, pngs, "two momentum figures, isotropy, two energy figures, speed")
 
 	// results.json carries the documented keys.
 	b, err := os.ReadFile(filepath.Join(dir, ResultsFile))
@@ -208,4 +222,94 @@ func TestWriteResultsSingleCaseWithoutSpeed(t *testing.T) {
 			assert.Contains(t, ticks[0].Label, "1 one-sided")
 		}
 	}
+}
+
+func TestOutcomeInResults(t *testing.T) {
+	s := QuickSuite()
+	var err error
+	s.Setups, err = SelectSetups([]string{"uniform-lattice"})
+	require.NoError(t, err)
+	s.DensitiesCm3, s.GasMassesMsun, s.Speed.Stars = []float64{1}, []float64{100}, 0
+	s.Outcome = OutcomeSpec{DensitiesCm3: []float64{100}, CellMassRatios: []float64{0.1, 10}, ShellTimes: []float64{3},
+		SliceCellMassRatio: 0.1, SliceShellTime: 3}
+	schemes, err := SelectSchemes([]string{"thermal-dump", "terminal-momentum"})
+	require.NoError(t, err)
+	var calls, last, total int
+	res, err := Run(s, Options{Schemes: schemes, Workers: 2, Progress: func(d, n int) { calls, last, total = calls+1, d, n }})
+	require.NoError(t, err)
+	// Two schemes and the terminal-momentum scheme with the table the 1D
+	// reference calibrates, at two resolutions.
+	require.Len(t, res.Outcome, 6)
+	assert.Equal(t, total, last, "the progress reaches its total")
+	assert.Greater(t, calls, 4, "the progress moves while the 3D cases run")
+	require.Len(t, res.Slices, 3)
+	require.Len(t, res.References, 1)
+
+	dir := t.TempDir()
+	files, err := WriteResults(dir, res)
+	require.NoError(t, err)
+	for _, name := range []string{OutcomeTableFile, OutcomeHistoryTableFile, OutcomeFigureFile, OutcomeHistoryFile,
+		"outcome_density_n100.png", "outcome_temperature_n100.png"} {
+		assert.Contains(t, files, filepath.Join(dir, name))
+	}
+	// results.json: outcome rows with the documented keys; the CSV beside.
+	b, err := os.ReadFile(filepath.Join(dir, ResultsFile))
+	require.NoError(t, err)
+	var doc struct {
+		Outcome []map[string]any `json:"outcome"`
+	}
+	require.NoError(t, json.Unmarshal(b, &doc))
+	require.Len(t, doc.Outcome, 6)
+	for _, k := range []string{"scheme", "density_cm3", "cell_mass_msun", "cell_mass_over_cooling_mass",
+		"time_over_shell_formation", "radial_momentum_msun_kms", "reference_momentum_msun_kms",
+		"kinetic_share", "thermal_share", "radiated_share", "reference_kinetic_share"} {
+		assert.Contains(t, doc.Outcome[0], k)
+	}
+	f, err := os.Open(filepath.Join(dir, OutcomeTableFile))
+	require.NoError(t, err)
+	defer f.Close()
+	rows, err := csv.NewReader(f).ReadAll()
+	require.NoError(t, err)
+	require.Len(t, rows, 7)
+	assert.Equal(t, "scheme", rows[0][0])
+	for _, o := range res.Outcome {
+		if o.Scheme == "thermal-dump" && o.CellMassOverCoolingMass == 10 {
+			assert.Less(t, o.MomentumRatio(), 0.3, "a thermal dump overcools in cells of 10 cooling masses")
+		}
+	}
+	// Written again without the outcome, the folder keeps no outcome files.
+	s2 := *res
+	s2.Outcome, s2.OutcomeHistory, s2.References, s2.Slices = nil, nil, nil, nil
+	_, err = WriteResults(dir, &s2)
+	require.NoError(t, err)
+	stale, _ := filepath.Glob(filepath.Join(dir, "outcome*"))
+	assert.Empty(t, stale)
+}
+
+func TestSinglePointFigureIsReadable(t *testing.T) {
+	// A user's own gas gives one gas mass at one density: the momentum
+	// figure spans a decade around it with labelled ticks, not an empty
+	// range.
+	res := smallResult(t)
+	var rows []Convergence
+	for _, r := range res.Convergence {
+		if r.DensityCm3 == 1 && r.GasMassMsun == 100 && r.Setup == "interface" {
+			rows = append(rows, r)
+		}
+	}
+	res.Convergence = rows
+	f, err := momentumFigure(res, "interface")
+	require.NoError(t, err)
+	p := f.Panels[0][0]
+	require.NotNil(t, p)
+	// The axis ranges are set when the panel is drawn.
+	require.NoError(t, f.SavePNG(filepath.Join(t.TempDir(), "one.png")))
+	assert.GreaterOrEqual(t, p.X.Max/p.X.Min, 10.0)
+	labelled := 0
+	for _, tk := range p.X.Tick.Marker.Ticks(p.X.Min, p.X.Max) {
+		if tk.Label != "" {
+			labelled++
+		}
+	}
+	assert.GreaterOrEqual(t, labelled, 1)
 }

@@ -19,6 +19,7 @@ func runQuick(t testing.TB, setups ...string) *Result {
 	t.Helper()
 	s := QuickSuite()
 	s.Speed.Stars = 0
+	s.Outcome = OutcomeSpec{}
 	var err error
 	s.Setups, err = SelectSetups(setups)
 	require.NoError(t, err)
@@ -173,7 +174,12 @@ func TestEnergyBudgetCloses(t *testing.T) {
 		assert.InDelta(t, 1, sum, 1e-12, "%s %s n=%g m=%g", r.Scheme, r.Setup, r.DensityCm3, r.GasMassMsun)
 		assert.GreaterOrEqual(t, r.Thermal, 0.0)
 		assert.GreaterOrEqual(t, r.Radiated, 0.0)
-		assert.Zero(t, r.Undeposited)
+		if r.Scheme != "stochastic-heating" {
+			// Stochastic heating hands back what cannot pay for a whole
+			// temperature jump (Dalla Vecchia & Schaye 2012); the rest
+			// deposit everything.
+			assert.Zero(t, r.Undeposited, "%s", r.Scheme)
+		}
 		if r.Scheme == "thermal-dump" && r.Setup == "uniform-lattice" {
 			assert.InDelta(t, 1, r.Thermal, 1e-12)
 		}
@@ -192,6 +198,8 @@ func TestRunDeterministic(t *testing.T) {
 	s := QuickSuite()
 	s.Speed.Stars = 0
 	s.DensitiesCm3 = []float64{1, 100}
+	s.Outcome = OutcomeSpec{}
+
 	s.GasMassesMsun = []float64{10, 1e4}
 	a, err := Run(s, Options{Workers: 1})
 	require.NoError(t, err)
@@ -206,6 +214,7 @@ func TestRunDeterministic(t *testing.T) {
 func TestRunRejectsBadInput(t *testing.T) {
 	good := QuickSuite()
 	good.Speed.Stars = 0
+	good.Outcome = OutcomeSpec{}
 	tests := []struct {
 		name  string
 		suite func() Suite

@@ -11,21 +11,28 @@ import (
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
-	"gonum.org/v1/plot/plotutil"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
+
+	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/yields"
+	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
-// Figure is one PNG file: a grid of plot panels, row by row.
+// Figure is one PNG file: a grid of plot panels, row by row, and a key
+// (the legend) in a tile of its own.
 type Figure struct {
 	// File is the PNG's file name.
 	File string
 	// Panels are the plots, Panels[row][col]; a nil panel leaves its tile
 	// empty.
 	Panels [][]*plot.Plot
-	// Legend lists the legend entries, in order, of the panel that carries
-	// the legend.
+	// Key, when set, is a legend-only panel drawn in a column of width
+	// KeyWidth at the right of the panels, the figure's full height.
+	Key      *plot.Plot
+	KeyWidth vg.Length
+	// Legend lists the key's entries, in order.
 	Legend []string
 	// Width and Height are the image size.
 	Width, Height vg.Length
@@ -38,16 +45,23 @@ func (f *Figure) SavePNG(path string) error {
 		return fmt.Errorf("figure %s: no panels", f.File)
 	}
 	cols := len(f.Panels[0])
-	img := vgimg.New(f.Width, f.Height)
-	dc := draw.New(img)
-	tiles := draw.Tiles{Rows: rows, Cols: cols, PadX: vg.Millimeter * 4, PadY: vg.Millimeter * 4,
-		PadTop: vg.Millimeter * 2, PadBottom: vg.Millimeter * 2, PadLeft: vg.Millimeter * 2, PadRight: vg.Millimeter * 2}
+	img := vgimg.NewWith(vgimg.UseWH(f.Width, f.Height), vgimg.UseDPI(110))
+	full := draw.New(img)
+	dc := full
+	if f.Key != nil {
+		dc = draw.Crop(full, 0, -f.KeyWidth, 0, 0)
+	}
+	tiles := draw.Tiles{Rows: rows, Cols: cols, PadX: vg.Millimeter * 5, PadY: vg.Millimeter * 5,
+		PadTop: vg.Millimeter * 3, PadBottom: vg.Millimeter * 3, PadLeft: vg.Millimeter * 3, PadRight: vg.Millimeter * 3}
 	for r := range f.Panels {
 		for c, p := range f.Panels[r] {
 			if p != nil {
 				p.Draw(tiles.At(dc, c, r))
 			}
 		}
+	}
+	if f.Key != nil {
+		f.Key.Draw(draw.Crop(full, f.Width-f.KeyWidth, 0, vg.Millimeter*3, -vg.Millimeter*3))
 	}
 	out, err := os.Create(path)
 	if err != nil {
@@ -65,7 +79,8 @@ func (f *Figure) SavePNG(path string) error {
 
 // Figures builds the plots of a result: radial momentum against gas
 // element mass for each set-up (one panel per density), the isotropy
-// residual by set-up, the energy shares, and the speed (when measured).
+// residual by set-up, the energy shares against gas element mass for each
+// set-up, the speed (when measured), and the evolved outcome (when run).
 func Figures(res *Result) ([]*Figure, error) {
 	var figs []*Figure
 	for _, s := range setupOrder(res) {
@@ -80,17 +95,23 @@ func Figures(res *Result) ([]*Figure, error) {
 		return nil, err
 	}
 	figs = append(figs, f)
-	if f, err = energyFigure(res); err != nil {
-		return nil, err
+	for _, s := range setupOrder(res) {
+		if f, err = energyFigure(res, s); err != nil {
+			return nil, err
+		}
+		figs = append(figs, f)
 	}
-	figs = append(figs, f)
 	if len(res.Speed) > 0 {
 		if f, err = speedFigure(res); err != nil {
 			return nil, err
 		}
 		figs = append(figs, f)
 	}
-	return figs, nil
+	more, err := outcomeFigures(res)
+	if err != nil {
+		return nil, err
+	}
+	return append(figs, more...), nil
 }
 
 // setupOrder lists the set-ups in the order they first appear.
@@ -127,8 +148,11 @@ func fileSafe(s string) string {
 func formatNumber(v float64) string { return strconv.FormatFloat(v, 'g', 3, 64) }
 
 // momentumFigure draws radial momentum per supernova against gas element
-// mass, one log-log panel per density, a line per scheme and the analytic
-// references dashed.
+// mass, one log-log panel per density, a line per scheme, the analytic
+// references dashed, and a dotted mark where the coupled gas (neighbors ×
+// element mass) reaches the cooling mass of the Kim & Ostriker 2015 fit. A
+// scheme's zero momentum cannot be drawn on the log axis: its points are
+// left out and its key entry says "zero" in words.
 func momentumFigure(res *Result, setup string) (*Figure, error) {
 	var densities []float64
 	seen := map[float64]bool{}
@@ -139,76 +163,68 @@ func momentumFigure(res *Result, setup string) (*Figure, error) {
 		}
 	}
 	sort.Float64s(densities)
-	cols := min(3, len(densities))
-	rows := (len(densities) + cols - 1) / cols
-	fig := &Figure{File: "momentum_" + fileSafe(setup) + ".png",
-		Width: vg.Length(cols) * 4.2 * vg.Inch, Height: vg.Length(rows) * 3.6 * vg.Inch}
-	fig.Panels = make([][]*plot.Plot, rows)
-	for r := range fig.Panels {
-		fig.Panels[r] = make([]*plot.Plot, cols)
-	}
-	for di, n := range densities {
-		p := plot.New()
-		p.Title.Text = fmt.Sprintf("%s, n = %s cm^-3", setup, formatNumber(n))
-		p.X.Label.Text = "gas element mass [Msun]"
-		p.Y.Label.Text = "radial momentum per SN [Msun km/s]"
-		p.X.Scale, p.Y.Scale = plot.LogScale{}, plot.LogScale{}
-		p.X.Tick.Marker, p.Y.Tick.Marker = plot.LogTicks{Prec: -1}, plot.LogTicks{Prec: -1}
-		var ec, term plotter.XYs
-		floor := math.Inf(1)
+	schemes := schemeOrder(res)
+	// Where each scheme was zero, over all panels.
+	zeros := make([]int, len(schemes))
+	points := make([]int, len(schemes))
+	for si, name := range schemes {
 		for _, r := range res.Convergence {
-			if r.Setup == setup && r.DensityCm3 == n && r.Scheme == res.Schemes[0].Name {
-				ec = append(ec, plotter.XY{X: r.GasMassMsun, Y: r.EnergyConservingMsunKm})
-				term = append(term, plotter.XY{X: r.GasMassMsun, Y: r.TerminalMsunKms})
-				floor = math.Min(floor, 0.1*math.Min(r.EnergyConservingMsunKm, r.TerminalMsunKms))
-			}
-		}
-		if !(floor > 0) || math.IsInf(floor, 0) {
-			floor = 1
-		}
-		var legend []string
-		add := func(name string, th ...plot.Thumbnailer) {
-			if di == 0 {
-				p.Legend.Add(name, th...)
-				legend = append(legend, name)
-			}
-		}
-		for si, name := range schemeOrder(res) {
-			var xy plotter.XYs
-			clamped := false
-			for _, r := range res.Convergence {
-				if r.Setup == setup && r.DensityCm3 == n && r.Scheme == name {
-					y := r.RadialMomentumMsunKms
-					if !(y > floor) {
-						y, clamped = floor, true
-					}
-					xy = append(xy, plotter.XY{X: r.GasMassMsun, Y: y})
+			if r.Setup == setup && r.Scheme == name {
+				points[si]++
+				if !(r.RadialMomentumMsunKms > 0) {
+					zeros[si]++
 				}
 			}
-			if len(xy) == 0 {
-				continue
+		}
+	}
+	var key []keyEntry
+	panels := make([]*plot.Plot, len(densities))
+	for di, n := range densities {
+		p := newPanel(fmt.Sprintf("%s, n = %s cm^-3", setup, formatNumber(n)),
+			"gas element mass [Msun]", "radial momentum per SN [Msun km/s]")
+		logAxes(p, true, true)
+		var ec, term plotter.XYs
+		for _, r := range res.Convergence {
+			if r.Setup == setup && r.DensityCm3 == n && r.Scheme == schemes[0] {
+				ec = append(ec, plotter.XY{X: r.GasMassMsun, Y: r.EnergyConservingMsunKm})
+				term = append(term, plotter.XY{X: r.GasMassMsun, Y: r.TerminalMsunKms})
 			}
-			line, points, err := plotter.NewLinePoints(xy)
-			if err != nil {
-				return nil, fmt.Errorf("momentum plot %s: %w", setup, err)
+		}
+		for si, name := range schemes {
+			var xy plotter.XYs
+			for _, r := range res.Convergence {
+				if r.Setup == setup && r.DensityCm3 == n && r.Scheme == name && r.RadialMomentumMsunKms > 0 {
+					xy = append(xy, plotter.XY{X: r.GasMassMsun, Y: r.RadialMomentumMsunKms})
+				}
 			}
-			line.Color = plotutil.Color(si)
-			line.Width = vg.Points(1.5)
-			points.Color = plotutil.Color(si)
-			points.Shape = plotutil.Shape(si)
-			p.Add(line, points)
-			label := name
-			if clamped {
-				label += " (zero: at axis floor)"
+			line, pts := &plotter.Line{}, &plotter.Scatter{}
+			if len(xy) > 0 {
+				var err error
+				if line, pts, err = plotter.NewLinePoints(xy); err != nil {
+					return nil, fmt.Errorf("momentum plot %s: %w", setup, err)
+				}
 			}
-			add(label, line, points)
+			styleLine(si, line, pts)
+			if len(xy) > 0 {
+				p.Add(line, pts)
+			}
+			if di == 0 {
+				label := name
+				switch {
+				case zeros[si] == points[si]:
+					label += ": zero at every mass (not drawn)"
+				case zeros[si] > 0:
+					label += fmt.Sprintf(": zero at %d of %d points (not drawn)", zeros[si], points[si])
+				}
+				key = append(key, keyEntry{label, []plot.Thumbnailer{line, pts}})
+			}
 		}
 		for i, ref := range []struct {
 			xy    plotter.XYs
 			name  string
 			color color.Color
 		}{
-			{ec, "energy-conserving sqrt(2E(M_ej+0.28 M_sw))", color.Black},
+			{ec, "energy-conserving sqrt(2E(M_ej + 0.28 M_sw)) of the coupled gas", color.Black},
 			{term, "terminal momentum (" + res.TerminalFit + ")", color.Gray{Y: 110}},
 		} {
 			if len(ref.xy) == 0 {
@@ -222,29 +238,39 @@ func momentumFigure(res *Result, setup string) (*Figure, error) {
 			l.Width = vg.Points(1.2)
 			l.Dashes = []vg.Length{vg.Points(6), vg.Points(3 + 2*float64(i))}
 			p.Add(l)
-			add(ref.name, l)
+			if di == 0 {
+				key = append(key, keyEntry{ref.name, []plot.Thumbnailer{l}})
+			}
+		}
+		mark := verticalMark{X: coolingElementMass(n, res.Neighbors),
+			Style: draw.LineStyle{Color: color.Gray{Y: 60}, Width: vg.Points(1), Dashes: []vg.Length{vg.Points(1.5), vg.Points(2.5)}}}
+		p.Add(mark)
+		if di == 0 {
+			key = append(key, keyEntry{fmt.Sprintf("coupled mass (%d x element) = cooling mass (Kim & Ostriker 2015)", res.Neighbors),
+				[]plot.Thumbnailer{mark}})
 		}
 		// A single gas mass (a user's own gas) or equal momenta give an
-		// empty log range, which the plot would widen linearly past zero:
-		// widen it by a factor instead.
-		widenLogRange(&p.X.Min, &p.X.Max)
-		widenLogRange(&p.Y.Min, &p.Y.Max)
-		p.Legend.Top, p.Legend.Left = true, true
-		p.Legend.TextStyle.Font.Size = vg.Points(7)
-		if di == 0 {
-			fig.Legend = legend
-		}
-		fig.Panels[di/cols][di%cols] = p
+		// empty log range: widen it to a decade or more.
+		padLogRange(&p.X.Min, &p.X.Max)
+		padLogRange(&p.Y.Min, &p.Y.Max)
+		panels[di] = p
+	}
+	keyP := keyPanel("key", key)
+	fig := newFigure("momentum_"+fileSafe(setup)+".png", len(densities), 3, 4.6*vg.Inch, 4.2*vg.Inch, keyP, keyLabels(key), 4.6*vg.Inch)
+	for i, p := range panels {
+		fig.place(i, p)
 	}
 	return fig, nil
 }
 
-// widenLogRange spreads an empty positive axis range to a factor of 3 on
-// each side.
-func widenLogRange(lo, hi *float64) {
-	if *lo == *hi && *lo > 0 {
-		*lo, *hi = *lo/3, *hi*3
-	}
+// coolingElementMass is the gas element mass (Msun) at which the coupled
+// gas of k elements holds the cooling mass of the Kim & Ostriker 2015 fit
+// at hydrogen density n (cm^-3): the mass inside the shell-formation
+// radius.
+func coolingElementMass(n float64, k int) float64 {
+	rem := feedback.KimOstriker2015.Remnant(SupernovaEnergyErg, n, yields.SolarMetals)
+	rho := n * feedback.MassPerHydrogen * units.ProtonMass
+	return rem.CoolingMass(rho) / units.SolarMass / float64(max(k, 1))
 }
 
 // logBar maps a residual onto a bar height: decades above 1e-16.
@@ -265,10 +291,7 @@ func (residualTicks) Ticks(lo, hi float64) []plot.Tick {
 	for v := 0.0; v <= residualFloorDecades; v++ {
 		label := ""
 		if int(v)%4 == 0 {
-			label = fmt.Sprintf("1e%d", int(v)-residualFloorDecades)
-			if v == residualFloorDecades {
-				label = "1"
-			}
+			label = decadeLabel(int(v) - residualFloorDecades)
 		}
 		t = append(t, plot.Tick{Value: v, Label: label})
 	}
@@ -277,21 +300,20 @@ func (residualTicks) Ticks(lo, hi float64) []plot.Tick {
 
 func nominalBars(p *plot.Plot, names []string) {
 	p.NominalX(names...)
+	p.X.Tick.Label.Font.Size = vg.Points(tickFontSize)
 	p.X.Tick.Label.Rotation = math.Pi / 6
 	p.X.Tick.Label.XAlign = draw.XRight
 	p.X.Tick.Label.YAlign = draw.YTop
 }
 
-// isotropyFigure draws the isotropy residual by set-up, a bar per scheme.
+// isotropyFigure draws the isotropy residual by set-up, a bar per scheme
+// on a log scale; a residual of exactly zero (a scheme that hands out no
+// radial momentum) has no bar and is written "zero" in its place.
 func isotropyFigure(res *Result) (*Figure, error) {
 	setups := setupOrder(res)
 	schemes := schemeOrder(res)
-	p := plot.New()
-	p.Title.Text = "isotropy residual by set-up (worst star)"
-	p.X.Label.Text = "set-up"
-	p.Y.Label.Text = "isotropy residual |sum p_j| / sum |p_j| (log scale)"
-	// Head room above a residual of one keeps the legend clear of the bars.
-	p.Y.Min, p.Y.Max = 0, residualFloorDecades+6
+	p := newPanel("isotropy residual by set-up (worst star)", "set-up", "isotropy residual |sum p_j| / sum |p_j|")
+	p.Y.Min, p.Y.Max = 0, residualFloorDecades+1
 	p.Y.Tick.Marker = residualTicks{}
 	// A set-up with stars whose gas is all on one side says so under its
 	// bars: no correction can balance those stars.
@@ -306,14 +328,18 @@ func isotropyFigure(res *Result) (*Figure, error) {
 		}
 	}
 	nominalBars(p, labels)
-	fig := &Figure{File: "isotropy.png", Width: 9 * vg.Inch, Height: 5 * vg.Inch}
-	w := vg.Points(math.Min(18, 360/float64(len(setups)*max(len(schemes), 1))))
+	w := vg.Points(math.Min(18, 420/float64(len(setups)*max(len(schemes), 1))))
+	var key []keyEntry
 	for si, name := range schemes {
 		vals := make(plotter.Values, len(setups))
+		var zero plotter.XYs
 		for i, s := range setups {
 			for _, r := range res.Isotropy {
 				if r.Scheme == name && r.Setup == s {
 					vals[i] = logBar(r.Residual)
+					if r.Residual == 0 {
+						zero = append(zero, plotter.XY{X: float64(i), Y: 0.3})
+					}
 				}
 			}
 		}
@@ -321,71 +347,89 @@ func isotropyFigure(res *Result) (*Figure, error) {
 		if err != nil {
 			return nil, fmt.Errorf("isotropy plot: %w", err)
 		}
-		b.Color = plotutil.Color(si)
+		c, _, _ := seriesStyle(si)
+		b.Color = c
 		b.LineStyle.Width = 0
 		b.Offset = w * vg.Length(float64(si)-float64(len(schemes)-1)/2)
 		p.Add(b)
-		p.Legend.Add(name, b)
-		fig.Legend = append(fig.Legend, name)
+		if len(zero) > 0 {
+			words := make([]string, len(zero))
+			for i := range words {
+				words[i] = "zero"
+			}
+			l, err := plotter.NewLabels(plotter.XYLabels{XYs: zero, Labels: words})
+			if err != nil {
+				return nil, fmt.Errorf("isotropy plot: %w", err)
+			}
+			for i := range l.TextStyle {
+				l.TextStyle[i].Rotation = math.Pi / 2
+				l.TextStyle[i].Font.Size = vg.Points(7)
+				l.TextStyle[i].Color = c
+				l.TextStyle[i].XAlign = draw.XCenter
+			}
+			l.Offset = vg.Point{X: b.Offset}
+			p.Add(l)
+		}
+		key = append(key, keyEntry{name, []plot.Thumbnailer{b}})
 	}
-	p.Legend.Top = true
-	p.Legend.TextStyle.Font.Size = vg.Points(7)
-	fig.Panels = [][]*plot.Plot{{p}}
+	fig := newFigure("isotropy.png", 1, 1, 8*vg.Inch, 5*vg.Inch, keyPanel("key", key), keyLabels(key), 3*vg.Inch)
+	fig.place(0, p)
 	return fig, nil
 }
 
-// referenceCase picks the case the energy figure shows: the density
-// closest to 1 cm^-3 and the gas mass closest to 100 Msun, in log.
-func referenceCase(res *Result) (float64, float64) {
-	bestN, bestM := math.NaN(), math.NaN()
-	for _, r := range res.Energy {
-		if math.IsNaN(bestN) || math.Abs(math.Log10(r.DensityCm3)) < math.Abs(math.Log10(bestN)) {
-			bestN = r.DensityCm3
-		}
-		if math.IsNaN(bestM) || math.Abs(math.Log10(r.GasMassMsun)-2) < math.Abs(math.Log10(bestM)-2) {
-			bestM = r.GasMassMsun
-		}
-	}
-	return bestN, bestM
+// energyParts are the shares an energy budget splits into.
+var energyParts = []struct {
+	name string
+	get  func(EnergyBudget) float64
+}{
+	{"kinetic", func(e EnergyBudget) float64 { return e.Kinetic }},
+	{"thermal", func(e EnergyBudget) float64 { return e.Thermal }},
+	{"radiated", func(e EnergyBudget) float64 { return e.Radiated }},
+	{"undeposited", func(e EnergyBudget) float64 { return e.Undeposited }},
 }
 
-// energyFigure draws stacked energy shares per scheme, one panel per
-// set-up, at the reference case.
-func energyFigure(res *Result) (*Figure, error) {
-	setups := setupOrder(res)
+// energyDensity is the density of a set-up's energy rows closest to
+// 1 cm^-3 in log.
+func energyDensity(res *Result, setup string) float64 {
+	best := math.NaN()
+	for _, r := range res.Energy {
+		if r.Setup == setup && (math.IsNaN(best) || math.Abs(math.Log10(r.DensityCm3)) < math.Abs(math.Log10(best))) {
+			best = r.DensityCm3
+		}
+	}
+	return best
+}
+
+// energyFigure draws, for one set-up at the density closest to 1 cm^-3,
+// where each scheme puts the energy at every gas element mass: one panel
+// per scheme, a stacked bar per mass.
+func energyFigure(res *Result, setup string) (*Figure, error) {
 	schemes := schemeOrder(res)
-	n, m := referenceCase(res)
-	cols := min(2, max(len(setups), 1))
-	rows := max((len(setups)+cols-1)/cols, 1)
-	fig := &Figure{File: "energy.png", Width: vg.Length(cols) * 5 * vg.Inch, Height: vg.Length(rows) * 4 * vg.Inch}
-	fig.Panels = make([][]*plot.Plot, rows)
-	for r := range fig.Panels {
-		fig.Panels[r] = make([]*plot.Plot, cols)
+	n := energyDensity(res, setup)
+	var masses []float64
+	for _, r := range res.Energy {
+		if r.Setup == setup && r.DensityCm3 == n && r.Scheme == schemes[0] {
+			masses = append(masses, r.GasMassMsun)
+		}
 	}
-	parts := []struct {
-		name string
-		get  func(EnergyBudget) float64
-	}{
-		{"kinetic", func(e EnergyBudget) float64 { return e.Kinetic }},
-		{"thermal", func(e EnergyBudget) float64 { return e.Thermal }},
-		{"radiated", func(e EnergyBudget) float64 { return e.Radiated }},
-		{"undeposited", func(e EnergyBudget) float64 { return e.Undeposited }},
+	names := make([]string, len(masses))
+	for i, m := range masses {
+		names[i] = formatMass(m)
 	}
-	w := vg.Points(math.Min(24, 240/float64(max(len(schemes), 1))))
-	for i, s := range setups {
-		p := plot.New()
-		p.Title.Text = fmt.Sprintf("%s: n = %s cm^-3, gas element %s Msun", s, formatNumber(n), formatNumber(m))
-		p.X.Label.Text = "scheme"
-		p.Y.Label.Text = "share of the energy released"
-		p.Y.Min, p.Y.Max = 0, 1.25
-		nominalBars(p, schemes)
+	w := vg.Points(math.Min(22, 200/float64(max(len(masses), 1))))
+	var key []keyEntry
+	panels := make([]*plot.Plot, len(schemes))
+	for si, name := range schemes {
+		p := newPanel(name, "gas element mass [Msun]", "share of the energy")
+		p.Y.Min, p.Y.Max = 0, 1.05
+		nominalBars(p, names)
 		var below *plotter.BarChart
-		for pi, part := range parts {
-			vals := make(plotter.Values, len(schemes))
-			for si, name := range schemes {
+		for pi, part := range energyParts {
+			vals := make(plotter.Values, len(masses))
+			for mi, m := range masses {
 				for _, r := range res.Energy {
-					if r.Scheme == name && r.Setup == s && r.DensityCm3 == n && r.GasMassMsun == m {
-						vals[si] = math.Max(part.get(r), 0)
+					if r.Scheme == name && r.Setup == setup && r.DensityCm3 == n && r.GasMassMsun == m {
+						vals[mi] = math.Max(part.get(r), 0)
 					}
 				}
 			}
@@ -393,23 +437,33 @@ func energyFigure(res *Result) (*Figure, error) {
 			if err != nil {
 				return nil, fmt.Errorf("energy plot: %w", err)
 			}
-			b.Color = plotutil.Color(pi)
+			b.Color, _, _ = seriesStyle(pi)
 			b.LineStyle.Width = 0
 			if below != nil {
 				b.StackOn(below)
 			}
 			below = b
 			p.Add(b)
-			p.Legend.Add(part.name, b)
-			if i == 0 {
-				fig.Legend = append(fig.Legend, part.name)
+			if si == 0 {
+				key = append(key, keyEntry{part.name, []plot.Thumbnailer{b}})
 			}
 		}
-		p.Legend.Top = true
-		p.Legend.TextStyle.Font.Size = vg.Points(7)
-		fig.Panels[i/cols][i%cols] = p
+		panels[si] = p
+	}
+	fig := newFigure("energy_"+fileSafe(setup)+".png", len(schemes), 4, 3.6*vg.Inch, 3.4*vg.Inch,
+		keyPanel(fmt.Sprintf("share of the energy\non %s\nat n = %s cm^-3", setup, formatNumber(n)), key), keyLabels(key), 1.8*vg.Inch)
+	for i, p := range panels {
+		fig.place(i, p)
 	}
 	return fig, nil
+}
+
+// formatMass writes a gas element mass for a category label.
+func formatMass(m float64) string {
+	if k := math.Log10(m); m > 0 && k == math.Round(k) {
+		return decadeLabel(int(k))
+	}
+	return formatNumber(m)
 }
 
 // speedFigure draws stars per second for each scheme beside the touch-only
@@ -424,12 +478,10 @@ func speedFigure(res *Result) (*Figure, error) {
 		rate[i], floor[i], ratio[i] = r.StarsPerS, r.FloorStarsPerS, r.TouchRatio
 	}
 	w := vg.Points(math.Min(18, 240/float64(len(names))))
-	p1 := plot.New()
-	p1.Title.Text = fmt.Sprintf("speed on %s, %d stars x %d neighbors", res.Speed[0].Setup, res.Speed[0].Stars, res.Speed[0].Neighbors)
-	p1.X.Label.Text = "scheme"
-	p1.Y.Label.Text = "stars per second [1/s]"
+	p1 := newPanel(fmt.Sprintf("speed on %s, %d stars x %d neighbors", res.Speed[0].Setup, res.Speed[0].Stars, res.Speed[0].Neighbors),
+		"scheme", "stars per second [1/s]")
 	nominalBars(p1, names)
-	fig := &Figure{File: SpeedFigureFile, Width: 10 * vg.Inch, Height: 4.5 * vg.Inch}
+	var key []keyEntry
 	for i, v := range []struct {
 		vals plotter.Values
 		name string
@@ -438,27 +490,23 @@ func speedFigure(res *Result) (*Figure, error) {
 		if err != nil {
 			return nil, fmt.Errorf("speed plot: %w", err)
 		}
-		b.Color = plotutil.Color(i)
+		b.Color, _, _ = seriesStyle(i)
 		b.LineStyle.Width = 0
 		b.Offset = w * vg.Length(float64(i)-0.5)
 		p1.Add(b)
-		p1.Legend.Add(v.name, b)
-		fig.Legend = append(fig.Legend, v.name)
+		key = append(key, keyEntry{v.name, []plot.Thumbnailer{b}})
 	}
-	p1.Legend.Top = true
-	p1.Legend.TextStyle.Font.Size = vg.Points(7)
-	p2 := plot.New()
-	p2.Title.Text = "time per star over the touch-only floor"
-	p2.X.Label.Text = "scheme"
-	p2.Y.Label.Text = "touch ratio (scheme time / floor time)"
+	p2 := newPanel("time per star over the touch-only floor", "scheme", "touch ratio (scheme time / floor time)")
 	nominalBars(p2, names)
 	b, err := plotter.NewBarChart(ratio, w)
 	if err != nil {
 		return nil, fmt.Errorf("speed plot: %w", err)
 	}
-	b.Color = plotutil.Color(2)
+	b.Color, _, _ = seriesStyle(2)
 	b.LineStyle.Width = 0
 	p2.Add(b)
-	fig.Panels = [][]*plot.Plot{{p1, p2}}
+	fig := newFigure(SpeedFigureFile, 2, 2, 5*vg.Inch, 4.5*vg.Inch, keyPanel("key", key), keyLabels(key), 2.4*vg.Inch)
+	fig.place(0, p1)
+	fig.place(1, p2)
 	return fig, nil
 }

@@ -7,6 +7,7 @@ import (
 	"math/rand/v2"
 	"time"
 
+	"github.com/ejecta-dev/ejecta/bench/testbed"
 	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields"
@@ -46,6 +47,27 @@ type Suite struct {
 	// Speed says where and how long the speed is measured; Speed.Stars = 0
 	// skips the measurement.
 	Speed SpeedSpec
+	// Outcome sets up the evolved outcome (package testbed); no densities
+	// skips it.
+	Outcome OutcomeSpec
+}
+
+// OutcomeSpec sets up the evolved-outcome experiment: every scheme's
+// supernova injected into a 3D grid of uniform gas, evolved with cooling,
+// and measured against the 1D reference remnant (package testbed).
+type OutcomeSpec struct {
+	// DensitiesCm3 are the ambient hydrogen densities; empty skips the
+	// experiment.
+	DensitiesCm3 []float64
+	// CellMassRatios are the cell masses in cooling masses (the 1D
+	// reference's mass at shell formation at each density).
+	CellMassRatios []float64
+	// ShellTimes are the measurement times in shell-formation times.
+	ShellTimes []float64
+	// SliceCellMassRatio is the resolution (one of CellMassRatios) whose
+	// density and temperature are sliced through the star at SliceShellTime
+	// shell-formation times.
+	SliceCellMassRatio, SliceShellTime float64
 }
 
 // SpeedSpec sets up the speed measurement: many stars exploding at once in
@@ -77,6 +99,8 @@ func QuickSuite() Suite {
 		Elements:      4096, Neighbors: 64, Seed: 1,
 		Speed: SpeedSpec{Setup: "glass", DensityCm3: 1, GasMassMsun: 100, Elements: 4096, Stars: 256,
 			MinDuration: 100 * time.Millisecond, MinRounds: 3},
+		Outcome: OutcomeSpec{DensitiesCm3: []float64{1, 100}, CellMassRatios: []float64{1e-3, 0.1, 30},
+			ShellTimes: []float64{3, 10}, SliceCellMassRatio: 1e-3, SliceShellTime: 3},
 	}
 }
 
@@ -90,6 +114,8 @@ func FullSuite() Suite {
 	s.Elements = 8000
 	s.Speed = SpeedSpec{Setup: "glass", DensityCm3: 1, GasMassMsun: 100, Elements: 32768, Stars: 4096,
 		MinDuration: time.Second, MinRounds: 5}
+	s.Outcome.DensitiesCm3 = []float64{0.1, 1, 10, 100}
+	s.Outcome.CellMassRatios = []float64{3e-4, 1e-3, 1e-2, 0.1, 1, 3, 10, 30}
 	return s
 }
 
@@ -148,6 +174,15 @@ type Result struct {
 	Isotropy           []Isotropy     `json:"isotropy"`
 	Energy             []EnergyBudget `json:"energy"`
 	Speed              []Speed        `json:"speed"`
+	// Outcome is what each scheme delivered once its remnant evolved on
+	// the 3D grid, beside the 1D reference (package testbed); empty when
+	// the suite has no outcome experiment.
+	Outcome        []testbed.Outcome       `json:"outcome"`
+	OutcomeHistory []testbed.HistoryPoint  `json:"outcome_history"`
+	References     []testbed.ReferenceInfo `json:"references"`
+	// Slices are the density and temperature through the star, for the
+	// slice figures.
+	Slices []testbed.Slice `json:"-"`
 }
 
 // SchemeInfo names and describes a compared variant; IsotropyCorrected
@@ -263,9 +298,31 @@ func Run(suite Suite, opts Options) (*Result, error) {
 			}
 		}
 	}
+	outcome := len(suite.Outcome.DensitiesCm3) > 0
+	progress := opts.Progress
+	injected := 0 // progress units of the injection comparison
+	if outcome && progress != nil {
+		opts.Progress = func(done, total int) {
+			injected = total
+			progress(done, total+outcomeProgress)
+		}
+	}
 	res, err := run(cases, speedCase, suite.Neighbors, suite.Speed, opts)
 	if err != nil {
 		return nil, err
+	}
+	if outcome {
+		cfg := outcomeConfig(suite, opts)
+		if progress != nil {
+			cfg.Progress = func(done, total int) {
+				progress(injected+done*outcomeProgress/max(total, 1), injected+outcomeProgress)
+			}
+		}
+		out, err := testbed.Run(cfg)
+		if err != nil {
+			return nil, fmt.Errorf("run: outcome: %w", err)
+		}
+		res.Outcome, res.OutcomeHistory, res.References, res.Slices = out.Outcome, out.History, out.References, out.Slices
 	}
 	res.Suite = suite.Name
 	res.Seed = suite.Seed
@@ -273,6 +330,38 @@ func Run(suite Suite, opts Options) (*Result, error) {
 		res.Setups = append(res.Setups, SetupInfo{Name: s.Name, Description: s.Description})
 	}
 	return res, nil
+}
+
+// outcomeProgress is the share of the progress bar the outcome experiment
+// takes: it is most of a suite's time.
+const outcomeProgress = 1000
+
+// outcomeConfig sets up the testbed experiment of a suite: the bench's
+// supernova (SupernovaEnergyErg, EjectaMassMsun, EjectaMetalFraction) in
+// solar-metallicity gas, every scheme compared that couples a supernova,
+// plus the terminal-momentum scheme with a remnant table calibrated from
+// the experiment's own 1D references, Options.Workers cases at a time.
+func outcomeConfig(suite Suite, opts Options) testbed.Config {
+	cfg := testbed.DefaultConfig()
+	o := suite.Outcome
+	cfg.DensitiesCm3 = o.DensitiesCm3
+	cfg.CellMassRatios = o.CellMassRatios
+	cfg.ShellTimes = o.ShellTimes
+	cfg.SliceCellMassRatio, cfg.SliceShellTime = o.SliceCellMassRatio, o.SliceShellTime
+	cfg.EnergyErg, cfg.EjectaMassMsun, cfg.EjectaMetalFraction = SupernovaEnergyErg, EjectaMassMsun, EjectaMetalFraction
+	cfg.Workers = max(opts.Workers, 1)
+	schemes := opts.Schemes
+	if schemes == nil {
+		schemes = Schemes()
+	}
+	for _, s := range schemes {
+		if s.Drive != SupernovaDrive {
+			continue // the outcome is that of a supernova remnant
+		}
+		cfg.Variants = append(cfg.Variants, testbed.Variant{Name: s.Name, Scheme: s.Scheme, Weighting: s.Weighting,
+			SkipIsotropyCorrection: s.SkipIsotropyCorrection})
+	}
+	return cfg
 }
 
 // RunCase runs every scheme on one case of the caller's own (a snapshot

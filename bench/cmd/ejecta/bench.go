@@ -5,12 +5,15 @@ import (
 	"io"
 	"math"
 	"os"
+	"runtime"
+	"sort"
 	"strings"
 	"text/tabwriter"
 
 	"github.com/schollz/progressbar/v3"
 
 	"github.com/ejecta-dev/ejecta/bench"
+	"github.com/ejecta-dev/ejecta/bench/testbed"
 	"github.com/ejecta-dev/ejecta/feedback"
 	"github.com/ejecta-dev/ejecta/neighbor"
 	"github.com/ejecta-dev/ejecta/yields/units"
@@ -24,7 +27,7 @@ type benchFlags struct {
 	boxSize                             float64
 	neighbors, workers                  int
 	seed                                uint64
-	skipSpeed, quiet, list              bool
+	skipSpeed, skipOutcome, quiet, list bool
 }
 
 var benchCommand = subcommand{
@@ -53,9 +56,10 @@ func runBench(args []string, stdout, stderr io.Writer) int {
 	fs.Float64Var(&f.velocityCmPS, "velocity-unit-cms", units.Kilometre, "with -gas: cm/s per code velocity unit (default 1e5, 1 km/s)")
 	fs.Float64Var(&f.boxSize, "box-size", 0, "with -gas: side of the periodic cubic box [0, L) in code length units (0: open box)")
 	fs.IntVar(&f.neighbors, "neighbors", 0, "gas elements each star couples to (0: the suite's, 64)")
-	fs.IntVar(&f.workers, "workers", 1, "goroutines per coupler (results other than speed do not depend on it)")
+	fs.IntVar(&f.workers, "workers", runtime.NumCPU(), "goroutines per coupler, and 3D outcome cases run at once (results other than speed do not depend on it)")
 	fs.Uint64Var(&f.seed, "seed", 0, "seed of the built-in set-ups (0: the suite's)")
 	fs.BoolVar(&f.skipSpeed, "skip-speed", false, "skip the speed measurement (no speed table or plot is written)")
+	fs.BoolVar(&f.skipOutcome, "skip-outcome", false, "skip the evolved outcome on the 3D grid (the suite's longest part; no outcome table or plots are written)")
 	fs.BoolVar(&f.quiet, "quiet", false, "no progress bar")
 	fs.BoolVar(&f.list, "list", false, "list the schemes and set-ups and exit")
 	if code, ok := benchCommand.parseFlags(fs, args, stdout, stderr); !ok {
@@ -140,6 +144,9 @@ func benchResult(f *benchFlags, stderr io.Writer) (*bench.Result, error) {
 	if f.seed != 0 {
 		suite.Seed = f.seed
 	}
+	if f.skipOutcome {
+		suite.Outcome.DensitiesCm3 = nil
+	}
 	if f.skipSpeed {
 		suite.Speed.Stars = 0
 	}
@@ -221,6 +228,8 @@ func summarise(w io.Writer, res *bench.Result) {
 			"touch ratio: the scheme's time over the touch-only floor's (the same neighbor search, reads and "+
 				"writes of the same gas fields, no physics), timed alternately in the same run; 1 would be the memory floor")
 	}
+
+	summariseOutcome(w, res)
 
 	fmt.Fprintln(w, "\nworst isotropy residual per set-up (worst star over its cases):")
 	oneSided := map[string]int{}
@@ -312,6 +321,85 @@ func summarise(w io.Writer, res *bench.Result) {
 				"the shell-formation mass",
 			"every table at all densities is in convergence.csv; results.json has the same rows")
 	}
+}
+
+// summariseOutcome prints, for each density and measurement time, the
+// radial momentum each scheme delivered on the 3D grid over the 1D
+// reference's, by cell mass in cooling masses.
+func summariseOutcome(w io.Writer, res *bench.Result) {
+	if len(res.Outcome) == 0 {
+		return
+	}
+	var keys []struct{ n, t float64 }
+	seen := map[[2]float64]bool{}
+	var ratios []float64
+	var schemes []string
+	seenR := map[float64]bool{}
+	seenS := map[string]bool{}
+	for _, o := range res.Outcome {
+		if !seenS[o.Scheme] {
+			seenS[o.Scheme] = true
+			schemes = append(schemes, o.Scheme)
+		}
+		if k := [2]float64{o.DensityCm3, o.TimeOverShellFormation}; !seen[k] {
+			seen[k] = true
+			keys = append(keys, struct{ n, t float64 }{k[0], k[1]})
+		}
+		if !seenR[o.CellMassOverCoolingMass] {
+			seenR[o.CellMassOverCoolingMass] = true
+			ratios = append(ratios, o.CellMassOverCoolingMass)
+		}
+	}
+	sort.Float64s(ratios)
+	sort.Slice(keys, func(i, j int) bool {
+		if keys[i].t != keys[j].t {
+			return keys[i].t < keys[j].t
+		}
+		return keys[i].n < keys[j].n
+	})
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	for _, k := range keys {
+		var ref testbed.ReferenceInfo
+		for _, r := range res.References {
+			if r.DensityCm3 == k.n {
+				ref = r
+			}
+		}
+		fmt.Fprintf(w, "\nevolved radial momentum over the 1D reference at n = %g cm^-3, t = %g t_sf (t_sf = %.3g kyr, cooling mass %.3g Msun):\n",
+			k.n, k.t, ref.ShellFormationKyr, ref.CoolingMassMsun)
+		header := "scheme\t"
+		for _, r := range ratios {
+			header += fmt.Sprintf("%g M_c\t", r)
+		}
+		fmt.Fprintln(tw, header)
+		for _, name := range schemes {
+			line := name + "\t"
+			for _, r := range ratios {
+				cell := "-"
+				for _, o := range res.Outcome {
+					if o.Scheme == name && o.DensityCm3 == k.n && o.TimeOverShellFormation == k.t && o.CellMassOverCoolingMass == r {
+						cell = fmt.Sprintf("%.2f", math.Max(o.MomentumRatio(), 0))
+						if o.UndepositedShare > 0.5 {
+							cell += "*"
+						}
+					}
+				}
+				line += cell + "\t"
+			}
+			fmt.Fprintln(tw, line)
+		}
+		tw.Flush()
+	}
+	printLegend(w,
+		"each scheme's supernova goes into a periodic 3D grid of uniform gas through the coupler and Apply, and the grid "+
+			"evolves it with the same cooling as the 1D reference remnant; columns are cell masses in cooling masses "+
+			"(M_c, the 1D reference's mass at shell formation), entries the radial momentum about the star over the "+
+			"1D reference's at the same time: 1 is right, below 1 overcooled, above 1 too much momentum",
+		"*: the scheme handed most of the energy back undeposited (stochastic heating that cannot pay for one "+
+			"heated cell keeps carrying it)",
+		"terminal-momentum-calibrated: the terminal-momentum scheme with a remnant table calibrated from these "+
+			"same 1D references (the cooling the grid runs)",
+		"energies, hot gas and the momentum histories are in outcome.csv and outcome_history.csv")
 }
 
 // formatResidual prints an isotropy residual to two digits, and those

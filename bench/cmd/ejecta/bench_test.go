@@ -39,7 +39,7 @@ func readResult(t *testing.T, dir string) *bench.Result {
 
 func TestBenchCommandSuite(t *testing.T) {
 	dir := t.TempDir()
-	args := []string{"bench", "-out", dir, "-quiet", "-setups", "interface,uniform-lattice"}
+	args := []string{"bench", "-out", dir, "-quiet", "-setups", "interface,uniform-lattice", "-skip-outcome"}
 	if testing.Short() {
 		args = append(args, "-schemes", "terminal-momentum,terminal-momentum-uncorrected,thermal-dump")
 	}
@@ -70,7 +70,7 @@ func TestBenchCommandSuite(t *testing.T) {
 			assert.Greater(t, r.Residual, 0.1)
 		}
 	}
-	for _, name := range []string{"momentum_interface.png", "momentum_uniform-lattice.png", "isotropy.png", "energy.png", "speed.png"} {
+	for _, name := range []string{"momentum_interface.png", "momentum_uniform-lattice.png", "isotropy.png", "energy_interface.png", "speed.png"} {
 		b, err := os.ReadFile(filepath.Join(dir, name))
 		require.NoError(t, err, name)
 		_, err = png.Decode(bytes.NewReader(b))
@@ -79,6 +79,8 @@ func TestBenchCommandSuite(t *testing.T) {
 	for _, name := range []string{bench.ConvergenceFile, bench.IsotropyFile, bench.EnergyFile, bench.SpeedFile} {
 		assert.FileExists(t, filepath.Join(dir, name))
 	}
+	assert.NoFileExists(t, filepath.Join(dir, bench.OutcomeTableFile), "-skip-outcome")
+	assert.NotContains(t, stdout, "evolved radial momentum")
 }
 
 func writeNpy(t *testing.T, dir, name string, v any) {
@@ -195,7 +197,7 @@ func TestBenchCommandErrors(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			args := append([]string{"bench", "-quiet", "-skip-speed", "-out", t.TempDir()}, tc.args...)
+			args := append([]string{"bench", "-quiet", "-skip-speed", "-skip-outcome", "-out", t.TempDir()}, tc.args...)
 			code, _, stderr := runCLI(args...)
 			assert.Equal(t, tc.code, code)
 			assert.Contains(t, stderr, tc.want)
