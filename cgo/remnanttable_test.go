@@ -1,6 +1,7 @@
 package main
 
 import (
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -27,6 +28,9 @@ func writeKOTable(t *testing.T, path string, densities []float64) {
 				Density: n, Metallicity: z, Energy: units.FOE, ShellTime: 1,
 				ShellRadius: r.CoolingRadius / units.Parsec, ShellMass: r.SwitchMass / units.SolarMass,
 				ShellMomentum: r.SwitchMomentum / units.MsunKms,
+				// The fit's final momentum, where its momentum law reaches it.
+				LateTime: 10, LateMomentum: r.TerminalMomentum / units.MsunKms,
+				LateMass: r.SwitchMass * math.Pow(r.TerminalMomentum/r.SwitchMomentum, 1/r.GrowthExponent) / units.SolarMass,
 			})
 		}
 	}
