@@ -85,6 +85,8 @@ func TestEnergyConservingSchemesConvergeWhenResolved(t *testing.T) {
 		t.Logf("%s: %.3f of the reference (cell %.2f r_sf)", o.Scheme, o.MomentumRatio(), o.CellSizeOverShellRadius)
 		assert.Less(t, o.CellSizeOverShellRadius, 1.0/3)
 		assert.InDelta(t, 1, o.MomentumRatio(), 0.25, o.Scheme)
-		assert.Zero(t, o.UndepositedShare, o.Scheme)
+		// Stochastic heating carries what cannot pay for a whole
+		// temperature jump; at this resolution that is a trace.
+		assert.Less(t, o.UndepositedShare, 1e-3, o.Scheme)
 	}
 }
