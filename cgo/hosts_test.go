@@ -397,8 +397,11 @@ func headerCodes(t *testing.T) []string {
 // TestHostErrorCodes runs examples/error_codes.c, which provokes every
 // documented error code through the real exports and checks each call
 // returns what ejecta.h promises: among them host rows shorter than the
-// neighbor count (EJECTA_ERR_NEIGHBORS, nothing done), a context busy
-// with another thread's step (ejecta_last_error returns EJECTA_ERR_BUSY),
+// neighbor count (EJECTA_ERR_NEIGHBORS, nothing done), a context held by
+// another thread's call (ejecta_last_error, ejecta_step and
+// ejecta_record_count return EJECTA_ERR_BUSY and do nothing; the threads
+// are synchronized through a named pipe the holder reads, so the check is
+// deterministic),
 // a gas element with a metal mass fraction above 1 (its star's release
 // comes back: EJECTA_ERR_UNDEPOSITED), and a gas column that faults when
 // ejecta's worker threads read it (EJECTA_ERR_INTERNAL, and the process

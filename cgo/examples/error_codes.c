@@ -4,8 +4,8 @@
  * the code its documentation promises: a NULL pointer, an argument out of
  * range, an unknown name, a dead context, a step before any gas, a NaN
  * release, host neighbor rows shorter than the neighbor count, a short
- * buffer, a record for gas this rank does not hold, a call while another
- * runs on the same context (from a second thread), a gas element whose
+ * buffer, a record for gas this rank does not hold, calls while another
+ * thread's call holds the same context, a gas element whose
  * metal mass fraction is above 1, a tampered ledger, records applied
  * twice, a population step without a population, a missing yields table,
  * an audit dump into a directory that cannot be created,
@@ -16,14 +16,16 @@
  * "code NAME ok"; then key=value lines with the messages, and
  * "result pass" when every check held. Code units: pc, Msun, km/s.
  */
-#define _DEFAULT_SOURCE /* MAP_ANONYMOUS */
+#define _DEFAULT_SOURCE /* MAP_ANONYMOUS, mkdtemp */
 #include <math.h>
 #include <pthread.h>
-#include <stdatomic.h>
+#include <signal.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <sys/mman.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 #include "ejecta.h"
 #include "host_common.h"
@@ -155,56 +157,117 @@ static ejecta_context create(int32_t workers, int32_t neighbors) {
   return ctx;
 }
 
-/* A long step on another thread, to catch the context busy. */
-typedef struct busy_step {
+/* A call that holds the context until the host lets it go: enabling a
+ * population whose yields table is a named pipe reads the pipe inside the
+ * call, with the context held, until the writer closes it. */
+typedef struct pipe_holder {
   ejecta_context ctx;
-  ejecta_star *stars;
-  int64_t n;
+  const char *table;
   int code;
-  atomic_int done;
-} busy_step;
+} pipe_holder;
 
-static void *run_step(void *arg) {
-  busy_step *b = arg;
-  b->code = ejecta_step(b->ctx, b->stars, b->n, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL);
-  atomic_store(&b->done, 1);
+static void *enable_from_pipe(void *arg) {
+  pipe_holder *h = arg;
+  ejecta_population_config pc;
+  ejecta_population_defaults(&pc);
+  pc.yields_table = h->table;
+  h->code = ejecta_enable_population(h->ctx, &pc);
   return NULL;
 }
 
-/* busy calls ejecta_last_error (and ejecta_record_count) while a step of
- * many stars runs on the same context from another thread. */
+/* write_table writes a yields table in the documented CSV format: every
+ * column the default species set needs, two ages at one metallicity, and
+ * nothing released. */
+static void write_table(FILE *w) {
+  static const char *const channels[] = {"ccsn", "snia", "massive_wind", "agb_wind"};
+  static const char *const elements[] = {"z", "h", "he", "c", "n", "o", "ne", "mg", "si", "s", "ca", "fe"};
+  int columns = 6;
+  fprintf(w, "age[Myr],metallicity[mass_fraction],luminosity[Lsun/Msun],ionizing_rate[photons/s/Msun],"
+             "radiant_energy[erg/Msun],ionizing_photons[photons/Msun]");
+  for (int c = 0; c < 4; c++) {
+    if (c < 2) {
+      fprintf(w, ",%s_events[1/Msun]", channels[c]);
+      columns++;
+    }
+    fprintf(w, ",%s_mass[Msun/Msun],%s_energy[erg/Msun]", channels[c], channels[c]);
+    columns += 2;
+    for (size_t e = 0; e < sizeof elements / sizeof elements[0]; e++) {
+      fprintf(w, ",%s_%s[Msun/Msun]", channels[c], elements[e]);
+      columns++;
+    }
+  }
+  fprintf(w, "\n");
+  for (int row = 0; row < 2; row++) {
+    fprintf(w, "%d,0.0134", row == 0 ? 1 : 10);
+    for (int k = 2; k < columns; k++) fprintf(w, ",0");
+    fprintf(w, "\n");
+  }
+}
+
+/* busy holds a context in one thread while the main thread calls it:
+ * the other thread enables a population from a named pipe, and opening the
+ * pipe for writing returns only once that thread has opened it for
+ * reading, inside ejecta_enable_population with the context held. Until
+ * the table is written and the pipe closed, every call on the context is
+ * refused with EJECTA_ERR_BUSY, and nothing it asked for is done. */
 static void busy(void) {
   gas_element *g = lattice();
   ejecta_gas d;
   int32_t species[1];
   ejecta_field fractions[1];
   describe(g, N_GAS, &d, species, fractions);
-  ejecta_context ctx = create(1, 64);
+  ejecta_context ctx = create(1, 8);
   must(ctx, ejecta_bind_gas(ctx, &d), "bind");
-  const int64_t n = 4000;
-  ejecta_star *stars = supernovae((int)n);
-  int caught = 0;
-  char msg[256] = "";
-  for (int attempt = 0; attempt < 20 && !caught; attempt++) {
-    busy_step b = {ctx, stars, n, -1, 0};
-    pthread_t th;
-    if (pthread_create(&th, NULL, run_step, &b) != 0) {
-      fprintf(stderr, "FAIL pthread_create\n");
-      exit(2);
-    }
-    while (!atomic_load(&b.done) && !caught) {
-      int64_t len = 0;
-      if (ejecta_last_error(ctx, msg, sizeof msg, &len) == EJECTA_ERR_BUSY) {
-        caught = 1;
-        EXPECT(EJECTA_ERR_BUSY, EJECTA_ERR_BUSY, 0, "last error while a step runs");
-        CHECK(strstr(msg, "in use") != NULL, "busy message: %s", msg);
-      }
-    }
-    pthread_join(th, NULL);
-    EXPECT(b.code, EJECTA_OK, ctx, "the step that kept the context busy");
+  ejecta_star *stars = supernovae(4);
+
+  char dir[] = "/tmp/ejecta-busy-XXXXXX", table[64];
+  if (!mkdtemp(dir)) {
+    fprintf(stderr, "FAIL mkdtemp\n");
+    exit(2);
   }
-  CHECK(caught, "no call saw the context busy in 20 long steps");
+  snprintf(table, sizeof table, "%s/table.csv", dir);
+  if (mkfifo(table, 0600) != 0) {
+    fprintf(stderr, "FAIL mkfifo %s\n", table);
+    exit(2);
+  }
+  /* A pipe closed early by the reader must come back as a write error. */
+  signal(SIGPIPE, SIG_IGN);
+  pipe_holder h = {ctx, table, -1};
+  pthread_t th;
+  if (pthread_create(&th, NULL, enable_from_pipe, &h) != 0) {
+    fprintf(stderr, "FAIL pthread_create\n");
+    exit(2);
+  }
+  FILE *w = fopen(table, "w");
+  if (!w) {
+    fprintf(stderr, "FAIL open %s for writing\n", table);
+    exit(2);
+  }
+
+  /* The other thread holds the context now. */
+  char msg[256] = "";
+  int64_t len = 0, count = -1;
+  EXPECT(ejecta_last_error(ctx, msg, sizeof msg, &len), EJECTA_ERR_BUSY, 0, "last error while another call holds the context");
+  CHECK(strstr(msg, "in use") != NULL, "busy message: %s", msg);
   printf("busy_error=%s\n", msg);
+  EXPECT(ejecta_step(ctx, stars, 4, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL), EJECTA_ERR_BUSY, 0,
+         "a step while another call holds the context");
+  EXPECT(ejecta_record_count(ctx, &count), EJECTA_ERR_BUSY, 0, "record count while another call holds the context");
+  CHECK(count == -1, "a refused call writes nothing: count %lld", (long long)count);
+
+  write_table(w);
+  CHECK(fclose(w) == 0, "table written to the pipe");
+  pthread_join(th, NULL);
+  EXPECT(h.code, EJECTA_OK, ctx, "the population that held the context");
+
+  /* Free again: the refused step did nothing, and now runs. */
+  EXPECT(ejecta_record_count(ctx, &count), EJECTA_OK, ctx, "record count once the context is free");
+  CHECK(count == 0, "the refused step left no records: %lld", (long long)count);
+  EXPECT(ejecta_step(ctx, stars, 4, 0, EJECTA_NEIGHBORS_OWN_FINDER, NULL, NULL), EJECTA_OK, ctx, "a step once the context is free");
+  EXPECT(ejecta_record_count(ctx, &count), EJECTA_OK, ctx, "record count after the step");
+  CHECK(count > 0, "the step wrote records: %lld", (long long)count);
+  unlink(table);
+  rmdir(dir);
   ejecta_destroy(&ctx);
   free(stars);
   free(g);
@@ -331,7 +394,7 @@ int main(void) {
   must(ctx, ejecta_destroy(&ctx), "destroy");
   EXPECT(ejecta_last_error(stale, msg, sizeof msg, NULL), EJECTA_ERR_INVALID_CONTEXT, 0, "destroyed context");
 
-  /* BUSY: another thread's step holds the context. */
+  /* BUSY: another thread's call holds the context. */
   busy();
 
   /* INTERNAL: a mass column the process may not read, read by ejecta's
