@@ -436,3 +436,44 @@ func TestStepperRefusesNonFiniteReleases(t *testing.T) {
 	require.ErrorIs(t, err, feedback.ErrBadValue)
 	assert.Empty(t, out.Records)
 }
+
+// overweightModel is a user's yields model with a defect a release check
+// catches: its massive-star winds eject more iron than mass.
+type overweightModel struct{ yields.Model }
+
+func (m overweightModel) Release(age0, age1, z float64) (yields.Release, error) {
+	r, err := m.Model.Release(age0, age1, z)
+	w := &r.Channels[yields.MassiveWinds]
+	w.Species[yields.Iron] = 2 * w.Mass
+	return r, err
+}
+
+// A release the coupler refuses stays with the star: the stepper reports
+// it as a problem and does not count its mass as lost (it used to, while
+// the refused source booked nothing undeposited), and everything the star
+// lost is in its records.
+func TestStepperKeepsRefusedReleasesWithTheStar(t *testing.T) {
+	u := units.ParsecSolarMassKms()
+	myr := units.Megayear / u.TimeS()
+	g := uniformGas(42, 50, 10, 1, u)
+	st, err := feedback.NewStepper(feedback.DefaultStepConfig(feedback.Config{Units: u}, overweightModel{defaultPopulation(t)}))
+	require.NoError(t, err)
+	// At 10 Myr supernovae eject mass next to the winds.
+	star := feedback.StarParticle{Star: feedback.Star{ID: 1, Mass: 1e4, Metallicity: 0.0134, Age: 10 * myr}, FormedMass: 1e4}
+	var out feedback.StepOutput
+	require.NoError(t, st.Step(g.View(), newTree(t, g), []feedback.StarParticle{star}, 0, myr, &out))
+	require.Positive(t, out.Channels[yields.CoreCollapse].Deposited.Mass)
+	require.Len(t, out.Problems, 1)
+	assert.Equal(t, yields.MassiveWinds, out.Problems[0].Channel)
+	assert.ErrorIs(t, out.Problems[0].Err, feedback.ErrBadValue)
+	winds := out.Channels[yields.MassiveWinds]
+	require.Positive(t, winds.Undeposited.Mass, "the winds' mass comes back")
+	assert.Equal(t, winds.In.Mass, winds.Undeposited.Mass)
+	deposited := 0.0
+	for _, r := range out.Records {
+		deposited += r.Mass
+	}
+	assert.InEpsilon(t, deposited, out.MassLoss[0], 1e-12, "the mass the star lost is the mass its records deposit")
+	assert.InEpsilon(t, out.Ledger.Deposited.Mass, out.MassLoss[0], 1e-12)
+	require.NoError(t, out.Ledger.Balanced(1e-12))
+}

@@ -144,8 +144,9 @@ func (c *Coupler) Config() Config { return c.cfg }
 // are written to out.Records (not applied: call Apply, or send them to the
 // owning rank first), and out.Ledger accounts for everything. A source
 // that cannot be coupled (bad values, no neighbors, a neighbor with bad
-// fields) is returned undeposited in the ledger and listed in
-// out.Problems; Couple's error is for problems with the call itself.
+// fields) is returned whole (out.Undeposited, and the ledger's Undeposited
+// when its amounts are finite) and listed in out.Problems; Couple's error
+// is for problems with the call itself.
 func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out *Output) error {
 	if !c.mu.TryLock() {
 		return fmt.Errorf("couple: coupler %w", ErrBusy)
@@ -219,6 +220,9 @@ func (c *Coupler) Couple(gas *Gas, finder neighbor.Finder, sources []Source, out
 		}
 		out.Undeposited[i] = sl.ledger.Undeposited
 		if sl.err != nil {
+			// A source with a problem is returned whole, also when its
+			// ledger could not book it.
+			out.Undeposited[i] = sourceQuantities(&sources[i])
 			out.Problems = append(out.Problems, Problem{StarID: sources[i].Star.ID, Index: i, Channel: sources[i].Channel, Err: sl.err})
 		}
 		c.order[i] = i
@@ -303,6 +307,29 @@ func depositsFinite(deps []Deposit) bool {
 	return true
 }
 
+// quantitiesFinite reports whether every amount of q is finite.
+func quantitiesFinite(q *Quantities) bool {
+	sum := q.Mass + q.Energy + q.Momentum[0] + q.Momentum[1] + q.Momentum[2]
+	for _, m := range q.Species {
+		sum += m
+	}
+	if finite(sum) {
+		return true
+	}
+	// A sum of finite amounts can overflow: look at them one by one.
+	for _, v := range [...]float64{q.Mass, q.Energy, q.Momentum[0], q.Momentum[1], q.Momentum[2]} {
+		if !finite(v) {
+			return false
+		}
+	}
+	for _, m := range q.Species {
+		if !finite(m) {
+			return false
+		}
+	}
+	return true
+}
+
 // undeposited books a whole source as returned to the caller.
 func undeposited(src *Source, err error) (Ledger, error) {
 	l := Ledger{Stars: 1, Skipped: 1}
@@ -322,8 +349,13 @@ func (c *Coupler) coupleOne(ws *workerScratch, gas *Gas, finder neighbor.Finder,
 // coupleInto does the work of coupleOne, appending records to *recs.
 func (c *Coupler) coupleInto(ws *workerScratch, gas *Gas, finder neighbor.Finder, src *Source, idx int, metals Column, hasMetals bool, recs *[]Record) (Ledger, error) {
 	if err := src.ValidateIn(c.cfg.Species); err != nil {
-		// A malformed release (NaN, negative) cannot be booked: nothing of
-		// it enters the ledger and the caller keeps it, told why.
+		// A refused release is returned whole (Couple writes it to
+		// Output.Undeposited). The ledger books it, as going in and coming
+		// back, only when its amounts are finite: a NaN would spoil every
+		// sum.
+		if q := sourceQuantities(src); quantitiesFinite(&q) {
+			return undeposited(src, err)
+		}
 		return Ledger{Stars: 1, Skipped: 1}, err
 	}
 	if src.Mass == 0 && src.Energy == 0 && src.Photons == 0 {

@@ -277,6 +277,7 @@ func TestBadInputLosesNothing(t *testing.T) {
 		skip   bool // the source is returned undeposited
 	}{
 		{"nan star position", func(g *audit.GasArrays, s *feedback.Source) { s.Star.Pos[0] = math.NaN() }, true},
+		{"nan energy", func(g *audit.GasArrays, s *feedback.Source) { s.Energy = math.NaN() }, true},
 		{"negative ejecta", func(g *audit.GasArrays, s *feedback.Source) { s.Mass = -1 }, true},
 		{"species above mass", func(g *audit.GasArrays, s *feedback.Source) { s.Species[yields.Iron] = 2 * s.Mass }, true},
 		{"negative gas mass", func(g *audit.GasArrays, s *feedback.Source) { g.Mass[0] = -1 }, true},
@@ -315,6 +316,26 @@ func TestBadInputLosesNothing(t *testing.T) {
 				assert.Len(t, out.Problems, 1)
 				assert.Equal(t, 1, out.Ledger.Skipped)
 				assert.Empty(t, out.Records)
+				// The whole release comes back, refused ones included:
+				// lab-frame momentum M v and energy E + M v^2 / 2.
+				back := out.Undeposited[0]
+				v := src.Star.Vel
+				assert.Equal(t, src.Mass, back.Mass)
+				assert.Equal(t, src.Species, back.Species)
+				for a := 0; a < 3; a++ {
+					assert.Equal(t, src.Mass*v[a], back.Momentum[a])
+				}
+				assert.True(t, back.Energy == src.Energy+0.5*src.Mass*(v[0]*v[0]+v[1]*v[1]+v[2]*v[2]) ||
+					math.IsNaN(src.Energy) && math.IsNaN(back.Energy), "energy %g of %g", back.Energy, src.Energy)
+				// The ledger books it going in and coming back when it can:
+				// a NaN stays out of its sums.
+				if math.IsNaN(src.Energy) {
+					assert.Zero(t, out.Ledger.In)
+					assert.Zero(t, out.Ledger.Undeposited)
+				} else {
+					assert.Equal(t, back, out.Ledger.Undeposited)
+					assert.Equal(t, back, out.Ledger.In)
+				}
 			} else {
 				assert.Empty(t, out.Problems)
 			}

@@ -39,9 +39,13 @@ type Output struct {
 	// Problems lists the sources returned undeposited.
 	Problems []Problem
 	// Undeposited holds, for each source in input order, what of its
-	// release was returned to the caller: all of it for a Problem, the
-	// energy a scheme could not place (stochastic heating that drew no
-	// neighbor), or nothing. Ledger.Undeposited is their sum.
+	// release was returned to the caller: all of it for a Problem (as
+	// given, for a release refused as malformed), the energy a scheme
+	// could not place (stochastic heating that heated no neighbor), or
+	// nothing. Ledger.Undeposited is their sum, except for a refused
+	// release with an amount that is not finite, which the ledger does not
+	// book at all (neither In nor Undeposited) so that its sums stay
+	// finite.
 	Undeposited []Quantities
 }
 
