@@ -171,10 +171,10 @@ func TestPhotonsReachBeyondTheNeighbors(t *testing.T) {
 		gc := g.Clone()
 		out, _ := coupleOnce(t, gc, feedback.Config{Units: u, Scheme: feedback.Photoionization{Reach: c.reach}, Neighbors: 32}, []feedback.Source{src})
 		// Ionized gas is lifted from its start to the 1e4 K floor, u =
-		// (3/2) k T / (mu m_p) (TestIonizedMeanMass); the last element in
+		// (3/2) k T / (mu m_p) (photoionizedMeanMass); the last element in
 		// part. Count the
 		// ionized mass in full lifts.
-		floor := 1.5 * units.Boltzmann * 1e4 / (feedback.IonizedMeanMolecularWeight * units.ProtonMass) / u.SpecificEnergy()
+		floor := 1.5 * units.Boltzmann * 1e4 / (photoionizedMeanMass() * units.ProtonMass) / u.SpecificEnergy()
 		ionized := 0.0
 		for _, r := range out.Records {
 			i := r.GasIndex
@@ -252,9 +252,48 @@ func TestPhotonReachIsDeterministic(t *testing.T) {
 // atom, three per helium atom, with the IUPAC standard atomic weights;
 // about one per two nucleons for heavy elements, common practice), so its
 // mean particle mass is 0.99277 (m_u / m_p, CODATA 2018) over that, 0.599
-// proton masses: the temperature scale of stochastic heating's jump and of
-// the ionized floor must use it, not a value for another composition.
+// proton masses: the temperature scale of stochastic heating's jump must
+// use it, not a value for another composition.
 func TestIonizedMeanMass(t *testing.T) {
 	particles := 2*0.7381/1.008 + 3*0.2485/4.0026 + 0.0134/2
 	assert.InEpsilon(t, 0.99277/particles, feedback.IonizedMeanMolecularWeight, 1e-3)
+}
+
+// photoionizedMeanMass is the mean particle mass, in proton masses, of
+// the gas whose electrons photoionization's recombinations count:
+// hydrogen fully and helium singly ionized (electronsPerHydrogen), so per
+// hydrogen atom 1 + n_He / n_H nuclei and as many electrons, in 1/X proton
+// masses of gas (X = 0.7381, Asplund et al. 2009, from memory): 0.624.
+func photoionizedMeanMass() float64 {
+	return (1 / 0.7381) / (2 * electronsPerHydrogen())
+}
+
+// Photoionized gas is lifted to 1e4 K at the mean particle mass of the
+// composition its recombinations assume (hydrogen fully and helium singly
+// ionized, 1.085 electrons per hydrogen atom): before, the floor took the
+// fully ionized 0.599 (helium doubly ionized) while the recombinations
+// counted singly ionized helium's electrons, and the floor came out 4%
+// hotter than the gas the Strömgren budget describes.
+func TestPhotoionizedFloorMatchesItsElectrons(t *testing.T) {
+	assert.InDelta(t, 0.624, photoionizedMeanMass(), 0.001)
+	assert.InEpsilon(t, photoionizedMeanMass(), feedback.PhotoionizedMeanMolecularWeight, 1e-3)
+	// The same composition in the library's own terms: particles per
+	// hydrogen atom are the nuclei (1 + n_He / n_H) plus the electrons.
+	assert.InEpsilon(t, feedback.MassPerHydrogen/(2*feedback.ElectronsPerHydrogen), feedback.PhotoionizedMeanMolecularWeight, 1e-12)
+
+	// A source with photons to spare ionizes every neighbor of cold gas
+	// and lifts it exactly to the floor.
+	u := units.ParsecSolarMassKms()
+	g := uniformGas(9, 100, 10, 1, u)
+	dt := units.Megayear / u.TimeS()
+	photons := 1e50 * units.Megayear
+	src := feedback.Source{Star: feedback.Star{ID: 1, Pos: [3]float64{0.1, 0.05, 0.02}}, Channel: yields.Photoionization,
+		Photons: photons, Duration: dt, Energy: 1e60 / u.EnergyErg()}
+	out, _ := coupleOnce(t, g, feedback.Config{Units: u, Scheme: feedback.Photoionization{}, Neighbors: 8}, []feedback.Source{src})
+	require.Len(t, out.Records, 8)
+	floor := 1.5 * units.Boltzmann * 1e4 / (photoionizedMeanMass() * units.ProtonMass) / u.SpecificEnergy()
+	for _, r := range out.Records {
+		require.NotZero(t, r.Flags&feedback.FlagIonized)
+		assert.InEpsilon(t, floor, g.Energy[r.GasIndex], 1e-3, "element %d", r.GasID)
+	}
 }

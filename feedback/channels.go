@@ -20,7 +20,9 @@ const (
 	// particle per two nucleons (textbook stellar-structure formula; from
 	// memory), with the mass fractions X, Y, Z of package yields (Asplund
 	// et al. 2009): about 0.599. (The often quoted 0.59 belongs to a
-	// hydrogen-richer mix, X = 0.75.)
+	// hydrogen-richer mix, X = 0.75.) It is the temperature scale of gas
+	// hot enough to have lost every electron: stochastic heating's jump of
+	// 10^7.5 K.
 	IonizedMeanMolecularWeight = 1 / (2*yields.SolarHydrogen + 0.75*yields.SolarHelium + 0.5*yields.SolarMetals)
 	// IonizedTemperature is the temperature photoionized gas is heated to,
 	// 1e4 K (common practice for H II regions).
@@ -29,8 +31,26 @@ const (
 	// and helium singly ionized: 1 + n_He / n_H, with n_He / n_H =
 	// (Y / X) (m_H / m_He) for the solar mass fractions of package yields
 	// (Asplund et al. 2009, from memory) and the standard atomic weights of
-	// hydrogen and helium, 1.008 and 4.0026 (IUPAC): about 1.085.
-	ElectronsPerHydrogen = 1 + yields.SolarHelium/yields.SolarHydrogen*hydrogenAtomicWeight/heliumAtomicWeight
+	// hydrogen and helium, 1.008 and 4.0026 (IUPAC): about 1.085. Singly
+	// ionized helium is the H II region of a young cluster: its stars emit
+	// few photons above helium's second ionization edge, 54.4 eV
+	// (Osterbrock & Ferland 2006, ch. 2; from memory).
+	ElectronsPerHydrogen = 1 + heliumPerHydrogen
+	// PhotoionizedMeanMolecularWeight is the mean mass per particle of
+	// photoionized gas, in proton masses, for the same composition as
+	// ElectronsPerHydrogen: per hydrogen nucleus the mass MassPerHydrogen
+	// and the particles 1 + n_He / n_H nuclei plus ElectronsPerHydrogen
+	// electrons (heavy elements add their mass, but at about one atom per
+	// thousand hydrogen atoms no particles worth counting): about 0.624.
+	// Photoionization's floor of IonizedTemperature uses it, so that the
+	// gas it heats has the electrons its recombinations count.
+	PhotoionizedMeanMolecularWeight = MassPerHydrogen / (1 + heliumPerHydrogen + ElectronsPerHydrogen)
+	// heliumPerHydrogen is n_He / n_H for the solar mass fractions behind
+	// MassPerHydrogen: (Y / X) (m_H / m_He) with the standard atomic
+	// weights. Neutral atomic gas has 1 + n_He / n_H particles per
+	// hydrogen atom, a mean molecular weight of MassPerHydrogen / (1 +
+	// n_He / n_H), about 1.25.
+	heliumPerHydrogen = yields.SolarHelium / yields.SolarHydrogen * hydrogenAtomicWeight / heliumAtomicWeight
 )
 
 // Standard atomic weights (IUPAC 2021 abridged values).
@@ -212,7 +232,8 @@ func (s RadiationPressure) Deposit(nb *Neighborhood, out []Deposit) (float64, er
 // singly ionized helium: n_e = ElectronsPerHydrogen n_j). While the
 // photon rate Q = Photons / Duration covers the running sum, each
 // neighbor is flagged FlagIonized and heated to IonizedTemperature (never
-// cooled). The first neighbor the budget cannot fully cover is ionized by
+// cooled), at the mean particle mass PhotoionizedMeanMolecularWeight of
+// the same composition. The first neighbor the budget cannot fully cover is ionized by
 // the fraction f of its recombinations that remain: it receives f of its
 // heating, and the flag only if f >= 1/2 (our choice: a deterministic
 // rounding of the ionized fraction). The heat is paid from the source's
@@ -306,7 +327,7 @@ func (s Photoionization) Deposit(nb *Neighborhood, out []Deposit) (float64, erro
 	flagged := 0
 	need := 0.0
 	if q := nb.photonRate(); q > 0 {
-		floor := specificEnergyAt(IonizedTemperature, IonizedMeanMolecularWeight) / u.SpecificEnergy()
+		floor := specificEnergyAt(IonizedTemperature, PhotoionizedMeanMolecularWeight) / u.SpecificEnergy()
 		for j := range heat {
 			rec := nb.recombinations(j)
 			f := 1.0

@@ -75,10 +75,11 @@ func TestStromgrenBudget(t *testing.T) {
 	// Whole ionized cells fill the Strömgren volume to within one cell.
 	assert.InDelta(t, vs/cell, ionized, 1.0)
 	assert.InDelta(t, rs/units.Parsec, far, 1.5*dx, "farthest ionized cell sits at the Strömgren radius")
-	// Heated to 1e4 K: u = (3/2) k T / (mu m_p) with the ionized mean mass
-	// (TestIonizedMeanMass); only the last cell, which
-	// the budget covers in part, may fall short of it.
-	want := 1.5 * units.Boltzmann * 1e4 / (feedback.IonizedMeanMolecularWeight * units.ProtonMass) / u.SpecificEnergy()
+	// Heated to 1e4 K: u = (3/2) k T / (mu m_p) with the mean mass of the
+	// gas whose electrons the recombinations count, hydrogen fully and
+	// helium singly ionized (photoionizedMeanMass); only the last cell,
+	// which the budget covers in part, may fall short of it.
+	want := 1.5 * units.Boltzmann * 1e4 / (photoionizedMeanMass() * units.ProtonMass) / u.SpecificEnergy()
 	short := 0
 	for _, r := range out.Records {
 		if r.Flags&feedback.FlagIonized != 0 && math.Abs(g.Energy[r.GasIndex]/want-1) > 1e-9 {

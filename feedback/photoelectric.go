@@ -31,11 +31,6 @@ const (
 	// photoelectricRate is the coefficient of the heating rate per
 	// hydrogen nucleus, 1e-24 eps G0 erg/s (Bakes & Tielens 1994).
 	photoelectricRate = 1e-24
-	// heliumPerHydrogen is n_He / n_H for the solar mass fractions behind
-	// MassPerHydrogen (ElectronsPerHydrogen - 1): neutral atomic gas has
-	// 1 + n_He / n_H particles per hydrogen atom, a mean molecular weight
-	// of MassPerHydrogen / (1 + n_He / n_H), about 1.25.
-	heliumPerHydrogen = yields.SolarHelium / yields.SolarHydrogen * hydrogenAtomicWeight / heliumAtomicWeight
 )
 
 // PhotoelectricEfficiency is the fraction of the far-ultraviolet energy
