@@ -372,29 +372,32 @@ func (s Photoionization) Deposit(nb *Neighborhood, out []Deposit) (float64, erro
 // StochasticHeating is the stochastic thermal feedback of Dalla Vecchia &
 // Schaye 2012 (MNRAS 426, 140): rather than spreading the energy thinly,
 // it heats a few neighbors by a fixed temperature jump ΔT, so the heated
-// gas cools slowly. With the budget A (the source's energy, which for the
+// gas cools slowly. The budget A is the source's energy, which for the
 // stepper's supernova channels includes the energy the star carried from
-// earlier steps), each neighbor is drawn with probability
-// p = A / (Δu sum_j m_j), Δu the specific energy of the jump, so the
-// expected energy of the drawn set is A; the draws use the counter-based
-// generator keyed by (seed, star ID, step), neighbor by neighbor in order
-// of distance.
+// earlier steps.
 //
 // Every heated element gets exactly ΔT: its specific internal energy,
-// after mixing in its share of the ejecta, rises by Δu, which costs
-// (m_j + dm_j)(u_j + Δu) - m_j u_j (less the heat the mixing itself
-// releases). A drawn element is heated only if what is left of the budget
-// pays for it; what the heated elements do not use is returned
-// undeposited (Ledger.Undeposited), which the stepper carries to the
-// star's next step (StepOutput.Carry), so no energy is lost and the energy
-// deposited matches the energy released over many steps. Elements too
-// massive for the budget are heated once the star has carried enough.
-// When the mass share of the budget, A m_j / sum_j m_j, heats every
-// neighbor by at least ΔT (its cost above, ejecta included), all are
-// heated and share the whole budget in proportion to their masses;
-// otherwise the draws decide (every neighbor is drawn when p >= 1, and
-// heated by exactly ΔT while the budget lasts). Mass, species and the
-// ejecta's momentum are shared by weight as in a thermal dump.
+// after mixing in its share of the ejecta, rises by Δu (the specific
+// energy of the jump), which costs c_j = (m_j + dm_j)(u_j + Δu) - m_j u_j
+// (less the heat the mixing itself releases). The budget heats n =
+// floor(A / max_j c_j) neighbors, the most it pays for whichever ones are
+// chosen, and they are chosen uniformly at random: every set of n
+// neighbors is equally likely (selection sampling, Knuth, The Art of
+// Computer Programming vol. 2, Algorithm S, with the counter-based
+// generator keyed by (seed, star ID, step)). So every neighbor is heated
+// with the same probability n / k, whatever its mass or distance, as the
+// equal probabilities of Dalla Vecchia & Schaye's equal-mass particles are;
+// a rule that skipped drawn elements the budget could not pay and went on
+// to cheaper ones would favor light elements. What the heated elements do
+// not use is returned undeposited (Ledger.Undeposited), which the stepper
+// carries to the star's next step (StepOutput.Carry), so no energy is lost
+// and the energy deposited matches the energy released over many steps: a
+// star whose budget does not pay the costliest neighbor heats nothing
+// until it has carried enough. When the mass share of the budget, A m_j /
+// sum_j m_j, heats every neighbor by at least ΔT (its cost above, ejecta
+// included), all are heated and share the whole budget in proportion to
+// their masses. Mass, species and the ejecta's momentum are shared by
+// weight as in a thermal dump.
 type StochasticHeating struct {
 	// TemperatureJump in K, positive and finite; DefaultStochasticHeating
 	// uses DefaultTemperatureJump.
@@ -461,15 +464,29 @@ func (s StochasticHeating) Deposit(nb *Neighborhood, out []Deposit) (float64, er
 			nb.EnergyWeight[j] = nb.Mass[j] / total
 		}
 	} else {
-		p := budget / (du * total)
+		// As many neighbors as the budget heats whichever are chosen.
+		k := len(cost)
+		cmax := 0.0
+		for _, c := range cost {
+			cmax = math.Max(cmax, c)
+		}
+		n := k
+		if cmax > 0 {
+			n = int(math.Min(math.Floor(budget/cmax), float64(k)))
+			if float64(n)*cmax > budget { // round-off in the quotient
+				n--
+			}
+		}
+		// Selection sampling: neighbor j is chosen with probability
+		// (n - chosen) / (k - j), which makes every set of n equally likely.
 		rng := yields.NewCounterRNG(s.Seed, uint64(src.Star.ID), src.Step, streamStochastic)
-		left, used := budget, 0.0
-		for j := range nb.EnergyWeight {
-			if !(rng.Float64() < p) || cost[j] > left {
+		used := 0.0
+		for j, chosen := 0, 0; j < k && chosen < n; j++ {
+			if float64(k-j)*rng.Float64() >= float64(n-chosen) {
 				continue
 			}
+			chosen++
 			nb.EnergyWeight[j] = cost[j]
-			left -= cost[j]
 			used += cost[j]
 		}
 		if used > 0 {

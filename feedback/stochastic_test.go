@@ -112,3 +112,67 @@ func TestStochasticHeatingNeverHeatsBelowTheJump(t *testing.T) {
 		assert.Zero(t, out.Ledger.Radiated)
 	}
 }
+
+// Which elements are heated does not depend on their mass (nor on their
+// distance): with half the gas three times heavier than the rest, light
+// and heavy neighbors are heated equally often over many draws, within
+// the statistical error of the counts. Dalla Vecchia & Schaye 2012 (MNRAS
+// 426, 140) give each of their equal-mass particles the same probability;
+// a rule that skips drawn elements the budget cannot pay and goes on to
+// cheaper ones heats light elements more often.
+func TestStochasticHeatingIsUnbiasedInMass(t *testing.T) {
+	u := units.ParsecSolarMassKms()
+	g := uniformGas(7, 64, 2, 1, u)
+	for i := range g.Mass {
+		if g.ID[i]%2 == 0 {
+			g.Mass[i] *= 3
+		}
+	}
+	cp, err := feedback.NewCoupler(feedback.Config{Units: u, Scheme: feedback.DefaultStochasticHeating(11), Neighbors: 32})
+	require.NoError(t, err)
+	f := newTree(t, g)
+	src := supernova(3, u)
+	src.Energy *= 0.5 // heats 4 of the 32 neighbors: the budget binds
+	trials := 3000
+	if testing.Short() {
+		trials = 1000
+	}
+	var out feedback.Output
+	heated := map[bool]int{} // by heavy
+	offered := map[bool]int{}
+	nearHeated, farHeated := 0, 0
+	for trial := 0; trial < trials; trial++ {
+		src.Step = uint64(trial)
+		require.NoError(t, cp.Couple(g.View(), f, []feedback.Source{src}, &out))
+		require.Empty(t, out.Problems)
+		require.Len(t, out.Records, 32)
+		// Records come nearest first.
+		for k, r := range out.Records {
+			heavy := g.Mass[r.GasIndex] > 3
+			offered[heavy]++
+			if r.Flags&feedback.FlagStochastic != 0 {
+				heated[heavy]++
+				if k < 16 {
+					nearHeated++
+				} else {
+					farHeated++
+				}
+			}
+		}
+	}
+	require.Positive(t, offered[true])
+	require.Positive(t, offered[false])
+	fl := float64(heated[false]) / float64(offered[false])
+	fh := float64(heated[true]) / float64(offered[true])
+	p := float64(heated[false]+heated[true]) / float64(offered[false]+offered[true])
+	require.Greater(t, p, 0.05)
+	require.Less(t, p, 0.5)
+	// Binomial error of the difference of two frequencies (the fixed count
+	// heated per draw only makes it smaller).
+	sigma := math.Sqrt(p * (1 - p) * (1/float64(offered[false]) + 1/float64(offered[true])))
+	assert.Less(t, math.Abs(fl-fh), 4*sigma, "heated: light %.4f, heavy %.4f of their draws (sigma %.4f)", fl, fh, sigma)
+	half := float64(trials * 16)
+	sigmaDist := math.Sqrt(p * (1 - p) * 2 / half)
+	assert.Less(t, math.Abs(float64(nearHeated-farHeated))/half, 4*sigmaDist, "near %d, far %d heated", nearHeated, farHeated)
+	t.Logf("heated: light %.4f, heavy %.4f (sigma %.4f); near %d, far %d", fl, fh, sigma, nearHeated, farHeated)
+}
