@@ -109,14 +109,29 @@ func (g *Grid) sweepPencil(s *sweepScratch, a hydro.Axis, base, stride int, ps *
 	tv := g.sweepDtDx * g.volume // code time × area: flux density → amount
 	for j := 0; j < n; j++ {
 		c := s.idx[j+1]
-		d := s.flux[j].Add(-1, s.flux[j+1]).Scale(tv).Unpermute(a)
+		fl, fr := &s.flux[j], &s.flux[j+1]
+		// What the two faces bring in, with the normal and transverse
+		// momenta back in their Cartesian slots.
+		dm := tv * (fl.Mass - fr.Mass)
+		dn, dt1, dt2 := tv*(fl.MomX-fr.MomX), tv*(fl.MomY-fr.MomY), tv*(fl.MomZ-fr.MomZ)
+		de := tv * (fl.Energy - fr.Energy)
+		dz := tv * (fl.Scalar[0] - fr.Scalar[0])
+		var dpx, dpy, dpz float64
+		switch a {
+		case hydro.X:
+			dpx, dpy, dpz = dn, dt1, dt2
+		case hydro.Y:
+			dpx, dpy, dpz = dt2, dn, dt1
+		default:
+			dpx, dpy, dpz = dt1, dt2, dn
+		}
 		m := g.mass[c]
 		vx, vy, vz := g.vel[0][c], g.vel[1][c], g.vel[2][c]
 		e := m * (g.eint[c] + 0.5*(vx*vx+vy*vy+vz*vz))
 		mz := m * g.metal[c]
-		m1 := m + d.Mass
-		px, py, pz := m*vx+d.MomX, m*vy+d.MomY, m*vz+d.MomZ
-		e1 := e + d.Energy
+		m1 := m + dm
+		px, py, pz := m*vx+dpx, m*vy+dpy, m*vz+dpz
+		e1 := e + de
 		if !(m1 > 0) || math.IsInf(m1, 0) || math.IsNaN(e1) {
 			if ps.bad == 0 {
 				ps.bad = c + 1
@@ -134,7 +149,7 @@ func (g *Grid) sweepPencil(s *sweepScratch, a hydro.Axis, base, stride int, ps *
 		g.dens[c] = m1 / g.volume
 		g.vel[0][c], g.vel[1][c], g.vel[2][c] = vx, vy, vz
 		g.eint[c] = u
-		g.metal[c] = (mz + d.Scalar[0]) * inv
+		g.metal[c] = (mz + dz) * inv
 	}
 }
 
