@@ -46,8 +46,8 @@
 // # The experiment
 //
 // Run evolves one supernova per case: every Variant (a scheme and its
-// coupler settings, the library's or a user's) in uniform gas at each
-// density, at cell masses given in units of the cooling mass of the
+// coupler settings, the library's or a user's) in each Medium (uniform gas,
+// or the clumpy demo medium) at each mean density, at cell masses given in units of the cooling mass of the
 // one-dimensional reference (package remnant: its mass inside the shock at
 // shell formation, with the same cooling curve, ambient temperature,
 // energy and ejecta). The box is BoxMargin times wider than the

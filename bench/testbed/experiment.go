@@ -34,8 +34,10 @@ type Variant struct {
 type Config struct {
 	// Variants to evolve.
 	Variants []Variant
-	// DensitiesCm3 are the ambient hydrogen densities (cm^-3).
+	// DensitiesCm3 are the ambient (mean) hydrogen densities (cm^-3).
 	DensitiesCm3 []float64
+	// Media are the ambient media, each at every density.
+	Media []Medium
 	// CellMassRatios are the cell masses, in units of the reference's
 	// cooling mass (its mass at shell formation) at each density.
 	CellMassRatios []float64
@@ -99,7 +101,8 @@ type Config struct {
 // Variants is left empty: the caller names them.
 func DefaultConfig() Config {
 	return Config{
-		DensitiesCm3: []float64{1, 100}, CellMassRatios: []float64{1e-3, 0.1, 10}, ShellTimes: []float64{3, 10},
+		DensitiesCm3: []float64{1, 100}, Media: []Medium{UniformMedium()},
+		CellMassRatios: []float64{1e-3, 0.1, 10}, ShellTimes: []float64{3, 10},
 		Metallicity: 1, EnergyErg: units.FOE, EjectaMassMsun: 10, EjectaMetalFraction: 0.1,
 		Neighbors: feedback.DefaultNeighbors, ReferenceZones: 200, BoxMargin: 1.25, MinCells: 8,
 		StepFraction: 0.2, FirstStepShellTimes: 0.01, CoolingCourant: 0,
@@ -119,6 +122,19 @@ func (c *Config) validate() error {
 			return fmt.Errorf("testbed: variant %q: needs a unique name and a scheme: %w", v.Name, ErrConfig)
 		}
 		seen[v.Name] = true
+	}
+	if len(c.Media) == 0 {
+		return fmt.Errorf("testbed: experiment needs a medium: %w", ErrConfig)
+	}
+	media := map[string]bool{}
+	for _, m := range c.Media {
+		if err := m.validate(); err != nil {
+			return err
+		}
+		if media[m.Name] {
+			return fmt.Errorf("testbed: medium %q named twice: %w", m.Name, ErrConfig)
+		}
+		media[m.Name] = true
 	}
 	for _, lists := range [][]float64{c.DensitiesCm3, c.CellMassRatios, c.ShellTimes} {
 		for _, v := range lists {
@@ -150,6 +166,7 @@ func (c *Config) validate() error {
 // above the ambient gas's.
 type Outcome struct {
 	Scheme                     string  `json:"scheme"`
+	Medium                     string  `json:"medium"`
 	DensityCm3                 float64 `json:"density_cm3"`
 	CellMassMsun               float64 `json:"cell_mass_msun"`
 	CellMassOverCoolingMass    float64 `json:"cell_mass_over_cooling_mass"`
@@ -181,6 +198,7 @@ func (o Outcome) MomentumRatio() float64 { return o.RadialMomentumMsunKms / o.Re
 // momentum-against-time picture.
 type HistoryPoint struct {
 	Scheme                  string  `json:"scheme"`
+	Medium                  string  `json:"medium"`
 	DensityCm3              float64 `json:"density_cm3"`
 	CellMassOverCoolingMass float64 `json:"cell_mass_over_cooling_mass"`
 	TimeKyr                 float64 `json:"time_kyr"`
@@ -203,6 +221,7 @@ type ReferenceInfo struct {
 // plane of cell centres just above it, Cells × Cells values, x fastest.
 type Slice struct {
 	Scheme                  string
+	Medium                  string
 	DensityCm3              float64
 	CellMassOverCoolingMass float64
 	TimeOverShellFormation  float64
@@ -289,12 +308,14 @@ func Run(cfg Config) (*Result, error) {
 	// Cases, the most expensive first so the workers finish together.
 	var jobs []*caseJob
 	for vi := range variants {
-		for di := range cfg.DensitiesCm3 {
-			for ri, ratio := range cfg.CellMassRatios {
-				j := &caseJob{variant: vi, density: di, ratio: ri, order: len(jobs)}
-				j.plan = planCase(&cfg, refs[di], ratio, lastTime)
-				j.slice = ratio == cfg.SliceCellMassRatio
-				jobs = append(jobs, j)
+		for mi := range cfg.Media {
+			for di := range cfg.DensitiesCm3 {
+				for ri, ratio := range cfg.CellMassRatios {
+					j := &caseJob{variant: vi, medium: mi, density: di, ratio: ri, order: len(jobs)}
+					j.plan = planCase(&cfg, refs[di], ratio, lastTime)
+					j.slice = ratio == cfg.SliceCellMassRatio
+					jobs = append(jobs, j)
+				}
 			}
 		}
 	}
@@ -307,7 +328,7 @@ func Run(cfg Config) (*Result, error) {
 		go func() {
 			defer wg.Done()
 			for j := range queue {
-				j.result, j.err = runCase(&cfg, curve, variants[j.variant], refs[j.density], j, prog)
+				j.result, j.err = runCase(&cfg, curve, variants[j.variant], cfg.Media[j.medium], refs[j.density], j, prog)
 				prog.finish(j)
 			}
 		}()
@@ -363,15 +384,17 @@ func referenceInfo(r *Reference, n float64, times []float64, last float64) Refer
 
 // casePlan is the grid of one case.
 type casePlan struct {
-	cells     int
-	size      float64 // code length
-	cellMass  float64 // code mass
-	rho       float64 // code density
-	eAmbient  float64 // code specific energy
-	tShell    float64 // code time
-	lastTime  float64 // code time
-	cost      float64 // relative work
-	cellRatio float64
+	cells    int
+	size     float64 // code length
+	cellMass float64 // code mass
+	rho      float64 // code density
+	eAmbient float64 // code specific energy
+	// remnantRadius is the reference's shock radius at the last time.
+	remnantRadius float64
+	tShell        float64 // code time
+	lastTime      float64 // code time
+	cost          float64 // relative work
+	cellRatio     float64
 }
 
 // planCase sizes the grid: cells of the asked mass at the ambient
@@ -392,6 +415,7 @@ func planCase(cfg *Config, ref *Reference, ratio, last float64) casePlan {
 	if err == nil {
 		radius = end.ShockRadius
 	}
+	p.remnantRadius = radius / u.LengthCm
 	side := math.Max(2*cfg.BoxMargin*radius/u.LengthCm, float64(cfg.MinCells)*dx)
 	n := int(math.Ceil(side / dx))
 	n += n % 2
@@ -406,12 +430,12 @@ func planCase(cfg *Config, ref *Reference, ratio, last float64) casePlan {
 
 // caseJob is one variant in one medium at one resolution.
 type caseJob struct {
-	variant, density, ratio, order int
-	plan                           casePlan
-	slice                          bool
-	result                         *caseResult
-	err                            error
-	done                           float64 // fraction of the run done, for progress
+	variant, medium, density, ratio, order int
+	plan                                   casePlan
+	slice                                  bool
+	result                                 *caseResult
+	err                                    error
+	done                                   float64 // fraction of the run done, for progress
 }
 
 type caseResult struct {
@@ -425,7 +449,7 @@ type caseResult struct {
 // Energy a scheme returns undeposited (stochastic heating when no cell was
 // drawn) is carried by the star and released again at the next step, as a
 // host would.
-func runCase(cfg *Config, curve *cooling.Curve, v Variant, ref *Reference, j *caseJob, prog *progressMeter) (*caseResult, error) {
+func runCase(cfg *Config, curve *cooling.Curve, v Variant, med Medium, ref *Reference, j *caseJob, prog *progressMeter) (*caseResult, error) {
 	p := j.plan
 	u := units.ParsecSolarMassKms()
 	gc := DefaultGridConfig(p.cells, p.size)
@@ -436,13 +460,23 @@ func runCase(cfg *Config, curve *cooling.Curve, v Variant, ref *Reference, j *ca
 		return nil, err
 	}
 	zGas := cfg.Metallicity * yields.SolarMetals
-	g.Fill(p.rho, p.eAmbient, zGas)
+	centre := [3]float64{p.size / 2, p.size / 2, p.size / 2}
+	th := gc.Thermo
+	equilibrium := func(rho float64) float64 {
+		rc := rho * u.DensityGCm3()
+		return th.SpecificEnergy(curve.EquilibriumTemperature(th.HydrogenDensity(rc))) / u.SpecificEnergy()
+	}
+	if med.Clumps == 0 {
+		equilibrium = func(float64) float64 { return p.eAmbient }
+	}
+	g.fillMedium(med, p.rho, med.ClumpWidth*ref.ShellFormation.ShockRadius/u.LengthCm, p.remnantRadius, centre, equilibrium, zGas)
+	// The thermal energy reported is that above the medium's own.
+	thermal0 := g.Measure(centre, 0, remnant.HotTemperature).ThermalExcess
 	in, err := NewInjector(g, feedback.Config{Scheme: v.Scheme, Weighting: v.Weighting,
 		SkipIsotropyCorrection: v.SkipIsotropyCorrection, Neighbors: cfg.Neighbors, Workers: 1})
 	if err != nil {
 		return nil, fmt.Errorf("testbed: %s: %w", v.Name, err)
 	}
-	centre := [3]float64{p.size / 2, p.size / 2, p.size / 2}
 	star := feedback.Star{ID: 1, Pos: centre, Metallicity: zGas}
 	eCode := cfg.EnergyErg / u.EnergyErg()
 	mEj := cfg.EjectaMassMsun * units.SolarMass / u.MassG
@@ -482,7 +516,6 @@ func runCase(cfg *Config, curve *cooling.Curve, v Variant, ref *Reference, j *ca
 	sort.SliceStable(stops, func(a, b int) bool { return stops[a].t < stops[b].t })
 
 	res := &caseResult{}
-	eAmb := p.eAmbient
 	for _, st := range stops {
 		for g.Time() < st.t {
 			dt := math.Min(g.StableStep(), cfg.StepFraction*math.Max(g.Time(), cfg.FirstStepShellTimes*p.tShell))
@@ -504,14 +537,16 @@ func runCase(cfg *Config, curve *cooling.Curve, v Variant, ref *Reference, j *ca
 			}
 			prog.advance(j, g.Time()/p.lastTime)
 		}
-		m := g.Measure(centre, eAmb, remnant.HotTemperature)
+		m := g.Measure(centre, 0, remnant.HotTemperature)
+		m.ThermalExcess -= thermal0
 		if st.history {
-			res.history = append(res.history, HistoryPoint{Scheme: v.Name, DensityCm3: ref.DensityCm3,
+			res.history = append(res.history, HistoryPoint{Scheme: v.Name, Medium: med.Name, DensityCm3: ref.DensityCm3,
 				CellMassOverCoolingMass: p.cellRatio, TimeKyr: g.Time() * u.TimeS() / units.JulianYear / 1e3,
 				RadialMomentumMsunKms: m.RadialMomentum})
 		}
 		if st.slice {
 			res.slice = g.slice(v.Name, ref.DensityCm3, p.cellRatio, cfg.SliceShellTime)
+			res.slice.Medium = med.Name
 		}
 		if st.measure >= 0 {
 			r, err := ref.At(g.Time() * u.TimeS())
@@ -522,7 +557,7 @@ func runCase(cfg *Config, curve *cooling.Curve, v Variant, ref *Reference, j *ca
 			eu := u.EnergyErg()
 			inj := in.Total()
 			l := g.Ledger()
-			o := Outcome{Scheme: v.Name, DensityCm3: ref.DensityCm3, CellMassMsun: p.cellMass * u.MassG / units.SolarMass,
+			o := Outcome{Scheme: v.Name, Medium: med.Name, DensityCm3: ref.DensityCm3, CellMassMsun: p.cellMass * u.MassG / units.SolarMass,
 				CellMassOverCoolingMass: p.cellRatio, TimeOverShellFormation: cfg.ShellTimes[st.measure],
 				RadialMomentumMsunKms:    m.RadialMomentum * u.MomentumGCmPS() / units.MsunKms,
 				ReferenceMomentumMsunKms: r.Momentum / units.MsunKms,
