@@ -32,9 +32,9 @@ func outcomeFigures(res *Result) ([]*Figure, error) {
 		return nil, nil
 	}
 	figs := []*Figure{outcomeMomentumFigure(res), outcomeHistoryFigure(res)}
-	for _, n := range outcomeDensities(res) {
+	for _, gr := range outcomeGroups(res) {
 		for _, q := range []sliceQuantity{sliceDensity, sliceTemperature} {
-			if f := sliceFigure(res, n, q); f != nil {
+			if f := sliceFigure(res, gr, q); f != nil {
 				figs = append(figs, f)
 			}
 		}
@@ -42,16 +42,59 @@ func outcomeFigures(res *Result) ([]*Figure, error) {
 	return figs, nil
 }
 
-func outcomeDensities(res *Result) []float64 {
-	var out []float64
-	seen := map[float64]bool{}
+// outcomeGroup is one medium at one density: a column of the headline
+// figure.
+type outcomeGroup struct {
+	medium string
+	n      float64
+}
+
+// label names a group in a title: the density, and the medium unless it
+// is uniform.
+func (g outcomeGroup) label() string {
+	l := "n = " + formatNumber(g.n) + " cm^-3"
+	if g.medium != "" && g.medium != "uniform" {
+		l += " (" + g.medium + ")"
+	}
+	return l
+}
+
+// file names a group in a file name.
+func (g outcomeGroup) file() string {
+	f := "n" + fileSafe(formatNumber(g.n))
+	if g.medium != "" && g.medium != "uniform" {
+		f += "_" + fileSafe(g.medium)
+	}
+	return f
+}
+
+// outcomeGroups lists the media and densities of the outcome rows: media
+// in order of appearance, densities rising within each.
+func outcomeGroups(res *Result) []outcomeGroup {
+	var media []string
+	seenM := map[string]bool{}
+	var out []outcomeGroup
+	seen := map[outcomeGroup]bool{}
 	for _, o := range res.Outcome {
-		if !seen[o.DensityCm3] {
-			seen[o.DensityCm3] = true
-			out = append(out, o.DensityCm3)
+		if !seenM[o.Medium] {
+			seenM[o.Medium] = true
+			media = append(media, o.Medium)
 		}
 	}
-	sort.Float64s(out)
+	for _, m := range media {
+		var ns []float64
+		for _, o := range res.Outcome {
+			g := outcomeGroup{o.Medium, o.DensityCm3}
+			if o.Medium == m && !seen[g] {
+				seen[g] = true
+				ns = append(ns, o.DensityCm3)
+			}
+		}
+		sort.Float64s(ns)
+		for _, n := range ns {
+			out = append(out, outcomeGroup{m, n})
+		}
+	}
 	return out
 }
 
@@ -94,7 +137,7 @@ const convergedCellMass = 1.0 / 27 / (4 * math.Pi / 3)
 // Zero momentum (no energy deposited) cannot show on the log axis: such a
 // scheme's key entry says so in words.
 func outcomeMomentumFigure(res *Result) *Figure {
-	densities, times, schemes := outcomeDensities(res), outcomeTimes(res), outcomeSchemes(res)
+	groups, times, schemes := outcomeGroups(res), outcomeTimes(res), outcomeSchemes(res)
 	zeros := map[string]int{}
 	for _, o := range res.Outcome {
 		if !(o.RadialMomentumMsunKms > 0) {
@@ -104,8 +147,8 @@ func outcomeMomentumFigure(res *Result) *Figure {
 	var key []keyEntry
 	var panels []*plot.Plot
 	for ti, t := range times {
-		for di, n := range densities {
-			p := newPanel(fmt.Sprintf("n = %s cm^-3, t = %s t_sf", formatNumber(n), formatNumber(t)),
+		for di, gr := range groups {
+			p := newPanel(fmt.Sprintf("%s, t = %s t_sf", gr.label(), formatNumber(t)),
 				"cell mass / cooling mass", "radial momentum / 1D reference")
 			logAxes(p, true, true)
 			first := ti == 0 && di == 0
@@ -126,7 +169,7 @@ func outcomeMomentumFigure(res *Result) *Figure {
 				var xy plotter.XYs
 				total := 0
 				for _, o := range res.Outcome {
-					if o.Scheme == name && o.DensityCm3 == n && o.TimeOverShellFormation == t {
+					if o.Scheme == name && o.Medium == gr.medium && o.DensityCm3 == gr.n && o.TimeOverShellFormation == t {
 						total++
 						if r := o.MomentumRatio(); r > 0 {
 							xy = append(xy, plotter.XY{X: o.CellMassOverCoolingMass, Y: r})
@@ -144,7 +187,7 @@ func outcomeMomentumFigure(res *Result) *Figure {
 				if first {
 					label := name
 					if z := zeros[name]; z > 0 {
-						label += fmt.Sprintf(": zero at %d of %d points (nothing deposited; not drawn)", z, len(densities)*len(times)*total)
+						label += fmt.Sprintf(": zero at %d of %d points (nothing deposited; not drawn)", z, len(groups)*len(times)*total)
 					}
 					key = append(key, keyEntry{label, []plot.Thumbnailer{line, pts}})
 				}
@@ -154,7 +197,7 @@ func outcomeMomentumFigure(res *Result) *Figure {
 			panels = append(panels, p)
 		}
 	}
-	fig := newFigure(OutcomeFigureFile, len(panels), len(densities), 5*vg.Inch, 4.4*vg.Inch,
+	fig := newFigure(OutcomeFigureFile, len(panels), len(groups), 5*vg.Inch, 4.4*vg.Inch,
 		keyPanel("evolved momentum over the 1D reference", key), keyLabels(key), 4*vg.Inch)
 	for i, p := range panels {
 		fig.place(i, p)
@@ -185,7 +228,7 @@ func (h horizontalLine) Thumbnail(c *draw.Canvas) {
 // beside the 1D reference, one panel per density (rows) and resolution
 // (columns).
 func outcomeHistoryFigure(res *Result) *Figure {
-	densities, schemes := outcomeDensities(res), outcomeSchemes(res)
+	groups, schemes := outcomeGroups(res), outcomeSchemes(res)
 	var ratios []float64
 	seen := map[float64]bool{}
 	for _, h := range res.OutcomeHistory {
@@ -197,7 +240,8 @@ func outcomeHistoryFigure(res *Result) *Figure {
 	sort.Float64s(ratios)
 	var key []keyEntry
 	var panels []*plot.Plot
-	for di, n := range densities {
+	for di, gr := range groups {
+		n := gr.n
 		var ref plotter.XYs
 		var tsf float64
 		for _, r := range res.References {
@@ -211,7 +255,7 @@ func outcomeHistoryFigure(res *Result) *Figure {
 			}
 		}
 		for ri, ratio := range ratios {
-			p := newPanel(fmt.Sprintf("n = %s cm^-3, cell = %s cooling masses", formatNumber(n), formatNumber(ratio)),
+			p := newPanel(fmt.Sprintf("%s, cell = %s cooling masses", gr.label(), formatNumber(ratio)),
 				"time [kyr]", "radial momentum [Msun km/s]")
 			logAxes(p, true, true)
 			first := di == 0 && ri == 0
@@ -231,7 +275,7 @@ func outcomeHistoryFigure(res *Result) *Figure {
 			for si, name := range schemes {
 				var xy plotter.XYs
 				for _, h := range res.OutcomeHistory {
-					if h.Scheme == name && h.DensityCm3 == n && h.CellMassOverCoolingMass == ratio && h.RadialMomentumMsunKms > 0 {
+					if h.Scheme == name && h.Medium == gr.medium && h.DensityCm3 == n && h.CellMassOverCoolingMass == ratio && h.RadialMomentumMsunKms > 0 {
 						xy = append(xy, plotter.XY{X: h.TimeKyr, Y: h.RadialMomentumMsunKms})
 					}
 				}
@@ -270,10 +314,11 @@ const (
 // sliceFigure draws one quantity of the slices through the star at one
 // density, a panel per scheme on a shared logarithmic colour scale, with
 // the scale in the key tile.
-func sliceFigure(res *Result, n float64, q sliceQuantity) *Figure {
+func sliceFigure(res *Result, gr outcomeGroup, q sliceQuantity) *Figure {
+	n := gr.n
 	var slices []testbed.Slice
 	for _, s := range res.Slices {
-		if s.DensityCm3 == n {
+		if s.DensityCm3 == n && s.Medium == gr.medium {
 			slices = append(slices, s)
 		}
 	}
@@ -320,12 +365,12 @@ func sliceFigure(res *Result, n float64, q sliceQuantity) *Figure {
 		panels = append(panels, p)
 	}
 	s0 := slices[0]
-	cb := newPanel(fmt.Sprintf("%s\nn = %s cm^-3\ncell %s cooling masses\nt = %s t_sf", name, formatNumber(n),
+	cb := newPanel(fmt.Sprintf("%s\n%s\ncell %s cooling masses\nt = %s t_sf", name, gr.label(),
 		formatNumber(s0.CellMassOverCoolingMass), formatNumber(s0.TimeOverShellFormation)), "", unit)
 	bar := &plotter.ColorBar{ColorMap: cm, Vertical: true}
 	cb.Add(bar)
 	cb.HideX()
-	fig := newFigure(fmt.Sprintf("%s_n%s.png", file, fileSafe(formatNumber(n))), len(panels), 4, 3.3*vg.Inch, 3.3*vg.Inch, cb, nil, 2*vg.Inch)
+	fig := newFigure(fmt.Sprintf("%s_%s.png", file, gr.file()), len(panels), 4, 3.3*vg.Inch, 3.3*vg.Inch, cb, nil, 2*vg.Inch)
 	for i, p := range panels {
 		fig.place(i, p)
 	}

@@ -56,9 +56,12 @@ type Suite struct {
 // supernova injected into a 3D grid of uniform gas, evolved with cooling,
 // and measured against the 1D reference remnant (package testbed).
 type OutcomeSpec struct {
-	// DensitiesCm3 are the ambient hydrogen densities; empty skips the
-	// experiment.
+	// DensitiesCm3 are the ambient (mean) hydrogen densities; empty skips
+	// the experiment.
 	DensitiesCm3 []float64
+	// Media are the ambient media at each density; nil means uniform gas
+	// only.
+	Media []testbed.Medium
 	// CellMassRatios are the cell masses in cooling masses (the 1D
 	// reference's mass at shell formation at each density).
 	CellMassRatios []float64
@@ -105,7 +108,9 @@ func QuickSuite() Suite {
 }
 
 // FullSuite is the quick suite at half-decade steps in density and mass,
-// with more elements per case and a longer speed measurement on more gas.
+// with more elements per case and a longer speed measurement on more gas,
+// and the outcome at four densities, eight resolutions and in the clumpy
+// demo medium too.
 func FullSuite() Suite {
 	s := QuickSuite()
 	s.Name = "full"
@@ -115,6 +120,7 @@ func FullSuite() Suite {
 	s.Speed = SpeedSpec{Setup: "glass", DensityCm3: 1, GasMassMsun: 100, Elements: 32768, Stars: 4096,
 		MinDuration: time.Second, MinRounds: 5}
 	s.Outcome.DensitiesCm3 = []float64{0.1, 1, 10, 100}
+	s.Outcome.Media = []testbed.Medium{testbed.UniformMedium(), testbed.ClumpyMedium()}
 	s.Outcome.CellMassRatios = []float64{3e-4, 1e-3, 1e-2, 0.1, 1, 3, 10, 30}
 	return s
 }
@@ -345,6 +351,9 @@ func outcomeConfig(suite Suite, opts Options) testbed.Config {
 	cfg := testbed.DefaultConfig()
 	o := suite.Outcome
 	cfg.DensitiesCm3 = o.DensitiesCm3
+	if o.Media != nil {
+		cfg.Media = o.Media
+	}
 	cfg.CellMassRatios = o.CellMassRatios
 	cfg.ShellTimes = o.ShellTimes
 	cfg.SliceCellMassRatio, cfg.SliceShellTime = o.SliceCellMassRatio, o.SliceShellTime

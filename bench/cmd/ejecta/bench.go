@@ -330,8 +330,12 @@ func summariseOutcome(w io.Writer, res *bench.Result) {
 	if len(res.Outcome) == 0 {
 		return
 	}
-	var keys []struct{ n, t float64 }
-	seen := map[[2]float64]bool{}
+	type key struct {
+		medium string
+		n, t   float64
+	}
+	var keys []key
+	seen := map[key]bool{}
 	var ratios []float64
 	var schemes []string
 	seenR := map[float64]bool{}
@@ -341,9 +345,9 @@ func summariseOutcome(w io.Writer, res *bench.Result) {
 			seenS[o.Scheme] = true
 			schemes = append(schemes, o.Scheme)
 		}
-		if k := [2]float64{o.DensityCm3, o.TimeOverShellFormation}; !seen[k] {
+		if k := (key{o.Medium, o.DensityCm3, o.TimeOverShellFormation}); !seen[k] {
 			seen[k] = true
-			keys = append(keys, struct{ n, t float64 }{k[0], k[1]})
+			keys = append(keys, k)
 		}
 		if !seenR[o.CellMassOverCoolingMass] {
 			seenR[o.CellMassOverCoolingMass] = true
@@ -351,9 +355,12 @@ func summariseOutcome(w io.Writer, res *bench.Result) {
 		}
 	}
 	sort.Float64s(ratios)
-	sort.Slice(keys, func(i, j int) bool {
+	sort.SliceStable(keys, func(i, j int) bool {
 		if keys[i].t != keys[j].t {
 			return keys[i].t < keys[j].t
+		}
+		if keys[i].medium != keys[j].medium {
+			return keys[i].medium > keys[j].medium // uniform before clumpy
 		}
 		return keys[i].n < keys[j].n
 	})
@@ -365,8 +372,8 @@ func summariseOutcome(w io.Writer, res *bench.Result) {
 				ref = r
 			}
 		}
-		fmt.Fprintf(w, "\nevolved radial momentum over the 1D reference at n = %g cm^-3, t = %g t_sf (t_sf = %.3g kyr, cooling mass %.3g Msun):\n",
-			k.n, k.t, ref.ShellFormationKyr, ref.CoolingMassMsun)
+		fmt.Fprintf(w, "\nevolved radial momentum over the 1D reference in %s gas at n = %g cm^-3, t = %g t_sf (t_sf = %.3g kyr, cooling mass %.3g Msun):\n",
+			k.medium, k.n, k.t, ref.ShellFormationKyr, ref.CoolingMassMsun)
 		header := "scheme\t"
 		for _, r := range ratios {
 			header += fmt.Sprintf("%g M_c\t", r)
@@ -377,7 +384,7 @@ func summariseOutcome(w io.Writer, res *bench.Result) {
 			for _, r := range ratios {
 				cell := "-"
 				for _, o := range res.Outcome {
-					if o.Scheme == name && o.DensityCm3 == k.n && o.TimeOverShellFormation == k.t && o.CellMassOverCoolingMass == r {
+					if o.Scheme == name && o.Medium == k.medium && o.DensityCm3 == k.n && o.TimeOverShellFormation == k.t && o.CellMassOverCoolingMass == r {
 						cell = fmt.Sprintf("%.2f", math.Max(o.MomentumRatio(), 0))
 						if o.UndepositedShare > 0.5 {
 							cell += "*"
