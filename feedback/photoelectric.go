@@ -19,11 +19,19 @@ const (
 	// uses by default (Draine 2011 order of magnitude; from memory).
 	DustUVOpacity = 1000
 	// CarbonElectronFraction is the electron fraction n_e / n_H of neutral
-	// gas whose free electrons come from singly ionized carbon, the
-	// gas-phase carbon abundance C/H = 1.4e-4 (Cardelli, Meyer, Jura &
-	// Savage 1996, ApJ 467, 334; from memory): the floor of n_e in
-	// photodissociation regions around young stars.
+	// gas of solar metallicity whose free electrons come from singly
+	// ionized carbon, the gas-phase carbon abundance C/H = 1.4e-4
+	// (Cardelli, Meyer, Jura & Savage 1996, ApJ 467, 334; from memory): the
+	// floor of n_e in neutral gas, reached where the gas is too dense for
+	// cosmic rays to keep much hydrogen ionized.
 	CarbonElectronFraction = 1.4e-4
+	// DefaultHydrogenIonizationRate is the rate, per hydrogen atom, at
+	// which cosmic rays and X-rays ionize neutral atomic gas in the solar
+	// neighborhood, 1e-16 s^-1: the scale Wolfire et al. 2003 (ApJ 587,
+	// 278) give their ionization rates in; Indriolo et al. 2015 (ApJ 800,
+	// 40) measure about 2e-16 s^-1 in diffuse atomic clouds (both from
+	// memory).
+	DefaultHydrogenIonizationRate = 1e-16
 	// PhotoelectricFitMaxTemperature is the warmest gas the Bakes &
 	// Tielens 1994 efficiency fit was made for, 1e4 K (from memory); the
 	// scheme evaluates it at no higher temperature.
@@ -46,6 +54,53 @@ const (
 // at PhotoelectricFitMaxTemperature.
 func PhotoelectricEfficiency(x, T float64) float64 {
 	return 4.87e-2/(1+4e-3*math.Pow(x, 0.73)) + 3.65e-2*math.Pow(T/1e4, 0.7)/(1+2e-4*x)
+}
+
+// CaseBRecombinationAt is the case B recombination coefficient of
+// hydrogen at temperature T (K), in cm^3 s^-1, the fit of Hui & Gnedin 1997
+// (MNRAS 292, 27; from memory) to the rates of Ferland et al. 1992:
+//
+//	alpha_B = 2.753e-14 lambda^1.5 / (1 + (lambda / 2.74)^0.407)^2.242,
+//
+// lambda = 2 T_H / T with T_H = 157807 K, the ionization energy of
+// hydrogen over Boltzmann's constant. It gives 2.59e-13 at 1e4 K
+// (CaseBRecombination rounds it). Temperatures below 10 K are taken as
+// 10 K.
+func CaseBRecombinationAt(T float64) float64 {
+	lambda := 2 * 157807 / math.Max(T, 10)
+	return 2.753e-14 * math.Pow(lambda, 1.5) / math.Pow(1+math.Pow(lambda/2.74, 0.407), 2.242)
+}
+
+// NeutralElectronFraction is an estimate of the electron fraction x_e =
+// n_e / n_H of neutral atomic gas of hydrogen density nH (cm^-3),
+// temperature T (K) and metallicity zeta (in solar units) whose hydrogen
+// is ionized by cosmic rays and X-rays at the rate ionRate (s^-1 per
+// hydrogen atom): the electrons of singly ionized carbon,
+// CarbonElectronFraction zeta, plus those of the hydrogen ions x_H that
+// the ionization balance keeps,
+//
+//	ionRate (1 - x_H) = alpha_B(T) nH x_H (x_C + x_H),
+//
+// with the case B coefficient CaseBRecombinationAt (the recombination
+// photons are absorbed nearby in neutral gas). This is the balance behind
+// the electron fractions of the neutral phases in Wolfire et al. 2003 (ApJ
+// 587, 278; from memory): a few 1e-2 in the warm neutral medium, where
+// hydrogen ions dominate, and several 1e-4 in the cold neutral medium,
+// where carbon ions count as much; with ionRate = 0 it is the carbon floor.
+// It leaves out the recombination of ions on small grains, which lowers
+// x_e in cold gas by a factor of a few (Weingartner & Draine 2001, ApJ
+// 563, 842; from memory).
+func NeutralElectronFraction(nH, T, zeta, ionRate float64) float64 {
+	xc := CarbonElectronFraction * zeta
+	if !(ionRate > 0) {
+		return xc
+	}
+	a := CaseBRecombinationAt(T) * nH
+	b := a*xc + ionRate
+	// The positive root of a x^2 + b x - ionRate = 0, in the form that
+	// does not cancel.
+	xh := 2 * ionRate / (b + math.Sqrt(b*b+4*a*ionRate))
+	return xc + xh
 }
 
 // FUVFieldAt is the far-ultraviolet field in Habing units at distance r
@@ -82,9 +137,11 @@ func FUVFieldAt(l, r, tau float64) float64 {
 // over the step is the Bakes & Tielens 1994 (ApJ 427, 822) rate of 1e-24
 // eps G0 erg/s per hydrogen nucleus, with the efficiency eps of
 // PhotoelectricEfficiency at the neighbor's temperature (neutral gas,
-// capped at PhotoelectricFitMaxTemperature) and electron density
-// ElectronFraction n_H, scaled with the dust-to-gas ratio Z_j / Z_sun, and
-// never more than A_j. The rest of the light, absorbed without heating
+// capped at PhotoelectricFitMaxTemperature) and electron density x_e n_H,
+// scaled with the dust-to-gas ratio Z_j / Z_sun, and never more than A_j.
+// The electron fraction x_e is NeutralElectronFraction of the neighbor's
+// density, temperature and metallicity at IonizationRate (a few 1e-2 in
+// warm gas, several 1e-4 in cold gas), or ElectronFraction where set. The rest of the light, absorbed without heating
 // (re-emitted by the dust in the infrared) or passing beyond the
 // neighborhood, is booked as radiated. The light carries no momentum here
 // (RadiationPressure couples that). Any ejected mass the source carries is
@@ -94,14 +151,21 @@ type PhotoelectricHeating struct {
 	// metallicity in cm^2 per gram of gas; zero is dust-free (clear) gas,
 	// which absorbs and heats nothing.
 	FUVOpacity float64
-	// ElectronFraction is n_e / n_H in the heated gas; it must be positive.
+	// ElectronFraction, when positive, is n_e / n_H in all the heated gas
+	// (a host's own value, say); zero estimates it for each neighbor with
+	// NeutralElectronFraction. Non-negative.
 	ElectronFraction float64
+	// IonizationRate is the rate (s^-1 per hydrogen atom) at which cosmic
+	// rays and X-rays ionize the gas, for the estimate of the electron
+	// fraction; finite and non-negative (zero leaves the carbon ions'
+	// electrons only).
+	IonizationRate float64
 }
 
-// DefaultPhotoelectricHeating is the scheme with DustUVOpacity and
-// CarbonElectronFraction.
+// DefaultPhotoelectricHeating is the scheme with DustUVOpacity and the
+// electron fraction estimated at DefaultHydrogenIonizationRate.
 func DefaultPhotoelectricHeating() PhotoelectricHeating {
-	return PhotoelectricHeating{FUVOpacity: DustUVOpacity, ElectronFraction: CarbonElectronFraction}
+	return PhotoelectricHeating{FUVOpacity: DustUVOpacity, IonizationRate: DefaultHydrogenIonizationRate}
 }
 
 // Name is "photoelectric-heating".
@@ -112,8 +176,11 @@ func (s PhotoelectricHeating) Validate() error {
 	if !(s.FUVOpacity >= 0) || math.IsInf(s.FUVOpacity, 0) {
 		return errorf(ErrInvalidArgument, "photoelectric heating: opacity %g cm^2/g must be finite and non-negative", s.FUVOpacity)
 	}
-	if !(s.ElectronFraction > 0) || math.IsInf(s.ElectronFraction, 0) {
-		return errorf(ErrInvalidArgument, "photoelectric heating: electron fraction %g must be finite and positive", s.ElectronFraction)
+	if !(s.ElectronFraction >= 0) || math.IsInf(s.ElectronFraction, 0) {
+		return errorf(ErrInvalidArgument, "photoelectric heating: electron fraction %g must be finite and non-negative (0 estimates it)", s.ElectronFraction)
+	}
+	if !(s.IonizationRate >= 0) || math.IsInf(s.IonizationRate, 0) {
+		return errorf(ErrInvalidArgument, "photoelectric heating: ionization rate %g s^-1 must be finite and non-negative", s.IonizationRate)
 	}
 	return nil
 }
@@ -151,8 +218,18 @@ func (s PhotoelectricHeating) Deposit(nb *Neighborhood, out []Deposit) (float64,
 			absorbed := eErg * math.Exp(-tau) * -math.Expm1(-dtau)
 			tau += dtau
 			T := math.Min(nb.InternalEnergy[j]*tempPerEnergy, PhotoelectricFitMaxTemperature)
-			ne := s.ElectronFraction * hydrogenDensity(nb.Density[j], u)
-			eps := PhotoelectricEfficiency(g0[j]*math.Sqrt(T)/ne, T) * zeta
+			nH := hydrogenDensity(nb.Density[j], u)
+			xe := s.ElectronFraction
+			if xe == 0 {
+				xe = NeutralElectronFraction(nH, T, zeta, s.IonizationRate)
+			}
+			// Without electrons the grains charge up completely (x = +Inf,
+			// eps = 0).
+			x := math.Inf(1)
+			if ne := xe * nH; ne > 0 {
+				x = g0[j] * math.Sqrt(T) / ne
+			}
+			eps := PhotoelectricEfficiency(x, T) * zeta
 			hydrogen := mass / (MassPerHydrogen * units.ProtonMass)
 			h := math.Min(photoelectricRate*eps*g0[j]*hydrogen*dt, absorbed)
 			heat[j] = h / ergs

@@ -208,7 +208,9 @@ func TestPhotoelectricHeatingRefusesBadInput(t *testing.T) {
 		kind   error
 	}{
 		{"no-duration", feedback.DefaultPhotoelectricHeating(), feedback.Source{Star: feedback.Star{ID: 1}, Energy: 1}, feedback.ErrBadValue},
-		{"zero-electrons", feedback.PhotoelectricHeating{FUVOpacity: 1000}, fuvSource(1, [3]float64{}, 1e39, u), feedback.ErrInvalidArgument},
+		{"negative-electrons", feedback.PhotoelectricHeating{FUVOpacity: 1000, ElectronFraction: -1e-4}, fuvSource(1, [3]float64{}, 1e39, u), feedback.ErrInvalidArgument},
+		{"nan-ionization-rate", feedback.PhotoelectricHeating{FUVOpacity: 1000, IonizationRate: math.NaN()}, fuvSource(1, [3]float64{}, 1e39, u), feedback.ErrInvalidArgument},
+		{"infinite-ionization-rate", feedback.PhotoelectricHeating{FUVOpacity: 1000, IonizationRate: math.Inf(1)}, fuvSource(1, [3]float64{}, 1e39, u), feedback.ErrInvalidArgument},
 		{"negative-opacity", feedback.PhotoelectricHeating{FUVOpacity: -1, ElectronFraction: 1e-4}, fuvSource(1, [3]float64{}, 1e39, u), feedback.ErrInvalidArgument},
 		{"nan-opacity", feedback.PhotoelectricHeating{FUVOpacity: math.NaN(), ElectronFraction: 1e-4}, fuvSource(1, [3]float64{}, 1e39, u), feedback.ErrInvalidArgument},
 	}
@@ -308,4 +310,81 @@ func TestStepperLightsTheGasWithThePopulationsFarUltraviolet(t *testing.T) {
 			}
 		})
 	}
+}
+
+func TestCaseBRecombinationAt(t *testing.T) {
+	// Case B coefficients of hydrogen, Osterbrock & Ferland 2006 table 2.1
+	// (from memory): 4.54e-13 at 5000 K, 2.59e-13 at 1e4 K, 1.43e-13 at
+	// 2e4 K (cm^3 s^-1).
+	for _, c := range []struct{ T, want float64 }{{5000, 4.54e-13}, {1e4, 2.59e-13}, {2e4, 1.43e-13}} {
+		assert.InEpsilon(t, c.want, feedback.CaseBRecombinationAt(c.T), 0.01, "T = %g K", c.T)
+	}
+	assert.InEpsilon(t, feedback.CaseBRecombination, feedback.CaseBRecombinationAt(1e4), 0.01)
+	// Recombination is faster in colder gas, and the fit stays finite.
+	prev := 0.0
+	for lt := 4.5; lt >= 1; lt -= 0.25 {
+		a := feedback.CaseBRecombinationAt(math.Pow(10, lt))
+		assert.Greater(t, a, prev)
+		prev = a
+	}
+	assert.Equal(t, feedback.CaseBRecombinationAt(10), feedback.CaseBRecombinationAt(0))
+}
+
+// The electron fraction of neutral gas follows the phase: hydrogen ions
+// from cosmic-ray and X-ray ionization give a few 1e-2 in the warm neutral
+// medium (n = 0.5 cm^-3, 8000 K), and several 1e-4 in the cold neutral
+// medium (n = 30 cm^-3, 100 K), where the carbon ions (C/H = 1.4e-4,
+// Cardelli et al. 1996, ApJ 467, 334) count as much (Wolfire et al. 2003,
+// ApJ 587, 278; from memory: x_e about 0.01-0.1 and a few 1e-4). The
+// carbon floor alone, the library's old default, is 100 times too low in
+// warm gas.
+func TestNeutralElectronFraction(t *testing.T) {
+	zeta := feedback.DefaultHydrogenIonizationRate
+	wnm := feedback.NeutralElectronFraction(0.5, 8000, 1, zeta)
+	assert.Greater(t, wnm, 0.01)
+	assert.Less(t, wnm, 0.1)
+	assert.Greater(t, wnm, 100*feedback.CarbonElectronFraction)
+	cnm := feedback.NeutralElectronFraction(30, 100, 1, zeta)
+	assert.Greater(t, cnm, 2e-4)
+	assert.Less(t, cnm, 2e-3)
+	// The ionization balance holds: zeta (1 - x_H) = alpha_B n x_H x_e.
+	for _, c := range []struct{ n, T, z float64 }{{0.5, 8000, 1}, {30, 100, 1}, {1e4, 20, 0.3}, {1e-3, 1e4, 0.1}} {
+		xe := feedback.NeutralElectronFraction(c.n, c.T, c.z, zeta)
+		xh := xe - feedback.CarbonElectronFraction*c.z
+		assert.InEpsilon(t, zeta*(1-xh), feedback.CaseBRecombinationAt(c.T)*c.n*xh*xe, 1e-9, "n %g T %g", c.n, c.T)
+	}
+	// Without ionization, and in very dense gas, the carbon ions remain,
+	// scaled with the metallicity.
+	assert.Equal(t, 0.5*feedback.CarbonElectronFraction, feedback.NeutralElectronFraction(1, 100, 0.5, 0))
+	assert.InEpsilon(t, feedback.CarbonElectronFraction, feedback.NeutralElectronFraction(1e7, 20, 1, zeta), 0.05)
+}
+
+// By default each element's efficiency is taken at its own estimated
+// electron density: in warm neutral gas (8000 K, n = 0.5 cm^-3) the heat
+// is the Bakes & Tielens 1994 rate with x_e from NeutralElectronFraction,
+// some 40 times what the carbon floor's electrons gave.
+func TestPhotoelectricHeatingEstimatesElectrons(t *testing.T) {
+	u := units.ParsecSolarMassKms()
+	const nHWarm, tWarm = 0.5, 8000.0
+	g := latticeGas(7, 4, nHWarm, u)
+	// Neutral atomic gas: mu = (1/X) / (1 + n_He/n_H).
+	mu := feedback.MassPerHydrogen / feedback.ElectronsPerHydrogen
+	for i := range g.Energy {
+		g.Energy[i] = 1.5 * units.Boltzmann * tWarm / (mu * units.ProtonMass) / u.SpecificEnergy()
+	}
+	star := [3]float64{0.3, -0.2, 0.1}
+	const lum = 1e38
+	floorOnly := 0.0
+	out, _ := coupleOnce(t, g.Clone(), feedback.Config{Units: u, Scheme: feedback.DefaultPhotoelectricHeating(), Neighbors: 100}, []feedback.Source{fuvSource(1, star, lum, u)})
+	xe := feedback.NeutralElectronFraction(nHWarm, tWarm, 1, feedback.DefaultHydrogenIonizationRate)
+	for _, r := range out.Records {
+		i := r.GasIndex
+		hydrogen := g.Mass[i] * u.MassG / (feedback.MassPerHydrogen * units.ProtonMass)
+		rate := 1e-24 * r.FUVField * hydrogen * units.Megayear / u.EnergyErg()
+		want := rate * feedback.PhotoelectricEfficiency(r.FUVField*math.Sqrt(tWarm)/(xe*nHWarm), tWarm)
+		assert.InEpsilon(t, want, r.Heat, 1e-6)
+		floorOnly += rate * feedback.PhotoelectricEfficiency(r.FUVField*math.Sqrt(tWarm)/(feedback.CarbonElectronFraction*nHWarm), tWarm)
+	}
+	assert.Greater(t, out.Ledger.Heat, 10*floorOnly)
+	t.Logf("x_e %.3g: heat %.3g, with the carbon floor's electrons %.3g (ratio %.1f)", xe, out.Ledger.Heat, floorOnly, out.Ledger.Heat/floorOnly)
 }
