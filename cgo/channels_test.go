@@ -171,3 +171,54 @@ func TestPopulationStepLightsTheGas(t *testing.T) {
 	h := create(t, pcConfig())
 	assert.Equal(t, codeInvalidArgument, entryEnablePopulation(h, &bad))
 }
+
+// A population step hands each star particle's new_stellar_mass to the
+// "-formed-mass" kicked winds: with 500 Msun formed, the loading (2 times
+// it) is above the 32 neighbors' 880 Msun, so every neighbor of the
+// core-collapse channel is launched; with none formed, none is.
+func TestPopulationStepLaunchesWindsOnNewStellarMass(t *testing.T) {
+	for _, formed := range []float64{500, 0} {
+		c := pcConfig()
+		copy(c.Scheme[:], "kicked-winds-formed-mass\x00")
+		c.Seed = 5
+		h := withPopulation(t, c, nil)
+		g := denseGas(6, 12, 3)
+		require.Equal(t, codeOK, entryBindGas(h, &g.desc))
+		st := cluster(1, 1e4, 12, 10)
+		st.NewStellarMass = formed
+		require.Equal(t, codeOK, entryStepPopulation(h, &st, 1, 1/myrPerCodeTime, 0, modeOwnFinder, nil, nil), lastError(h))
+		var cc ledgerABI
+		require.Equal(t, codeOK, entryGetChannelLedger(h, int32(yields.CoreCollapse), &cc))
+		require.Positive(t, cc.Released.Energy, "supernovae pay the wind")
+		recs, _ := copyAll(t, h)
+		ccRecords, launched := 0, 0
+		for _, r := range recs {
+			if r.Channel != int32(yields.CoreCollapse) {
+				assert.Zero(t, r.Flags&uint32(feedback.FlagHydroDecoupled), "channel %d", r.Channel)
+				continue
+			}
+			ccRecords++
+			if r.Flags&uint32(feedback.FlagHydroDecoupled) != 0 {
+				launched++
+			}
+		}
+		require.Equal(t, 32, ccRecords)
+		if formed > 0 {
+			assert.Equal(t, ccRecords, launched)
+			assert.Positive(t, cc.KickEnergy)
+		} else {
+			assert.Zero(t, launched)
+			// Without kicks only the ejecta's mixing changes the kinetic
+			// energy, and it can only lose some.
+			assert.LessOrEqual(t, cc.KickEnergy, 0.0)
+		}
+	}
+	// A bad new_stellar_mass is refused like any other star field.
+	h := withPopulation(t, pcConfig(), nil)
+	g := denseGas(6, 12, 3)
+	require.Equal(t, codeOK, entryBindGas(h, &g.desc))
+	st := cluster(1, 1e4, 12, 10)
+	st.NewStellarMass = -1
+	assert.Equal(t, codeBadValue, entryStepPopulation(h, &st, 1, 1/myrPerCodeTime, 0, modeOwnFinder, nil, nil))
+	assert.Contains(t, lastError(h), "new stellar mass -1")
+}

@@ -12,7 +12,7 @@ import (
 const (
 	// abiVersion is EJECTA_ABI_VERSION: bumped when a struct layout, a
 	// function signature or the meaning of an argument changes.
-	abiVersion int32 = 5
+	abiVersion int32 = 6
 	// nameCapacity is EJECTA_NAME_CAPACITY, the size of a name array.
 	nameCapacity = 48
 	maxWorkers   = 4096

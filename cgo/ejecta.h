@@ -91,8 +91,10 @@ extern "C" {
  * 5: every config field means what it says, zero included (no zero stands
  *    for a default; start from ejecta_config_defaults /
  *    ejecta_population_defaults), and ejecta_config gains photon_reach,
- *    max_infrared_boost and wind_event_energy_erg. */
-#define EJECTA_ABI_VERSION 5
+ *    max_infrared_boost and wind_event_energy_erg.
+ * 6: ejecta_star_particle gains new_stellar_mass (the wind of the
+ *    "-formed-mass" kicked-wind schemes in population steps). */
+#define EJECTA_ABI_VERSION 6
 
 /* ---- error codes ---------------------------------------------------- */
 
@@ -315,7 +317,8 @@ typedef struct ejecta_config {
    * paid from the star's energy; records flag EJECTA_FLAG_HYDRO_DECOUPLED),
    * "kicked-winds-momentum-driven" (speed and loading from the star's
    * dispersion, or the gas's when 0), and either with "-formed-mass"
-   * appended (loading 2 times the star's new_stellar_mass); remnant_fit
+   * appended (loading 2 times the star's new_stellar_mass, in population
+   * steps the star particle's); remnant_fit
    * (terminal-momentum and stellar-winds)
    * "kim-ostriker-2015" or "cioffi-mckee-bertschinger-1988"; weighting
    * "kernel-volume" or "solid-angle". Every name must be given (an empty
@@ -618,6 +621,15 @@ typedef struct ejecta_star_particle {
    * ejecta_star_result; 0 at formation), >= 0. It is added to this step's
    * core-collapse energy. */
   double carried_energy;
+  /* Stellar mass the particle formed during this step (code mass), >= 0;
+   * 0 when it forms none. The "-formed-mass" kicked-wind schemes load
+   * their wind on it (2 times new_stellar_mass), paid from this step's
+   * core-collapse energy: a particle that forms stars over many steps
+   * passes what each step formed, and its older stars' supernovae launch
+   * the wind (a particle born in one burst has no supernova energy in its
+   * first step: its wind is slowed to what the energy pays, and
+   * "kicked-winds" suits it). Other schemes ignore it. */
+  double new_stellar_mass;
 } ejecta_star_particle;
 
 /* What one star did in the last population step. */

@@ -36,14 +36,15 @@ type populationConfigABI struct {
 }
 
 type starParticleABI struct {
-	ID            int64
-	Position      [3]float64
-	Velocity      [3]float64
-	Mass          float64
-	FormedMass    float64
-	Metallicity   float64
-	Age           float64
-	CarriedEnergy float64
+	ID             int64
+	Position       [3]float64
+	Velocity       [3]float64
+	Mass           float64
+	FormedMass     float64
+	Metallicity    float64
+	Age            float64
+	CarriedEnergy  float64
+	NewStellarMass float64
 }
 
 type starResultABI struct {
@@ -223,7 +224,7 @@ func starParticle(p *starParticleABI) (feedback.StarParticle, error) {
 	sp := feedback.StarParticle{
 		Star: feedback.Star{ID: p.ID, Pos: p.Position, Vel: p.Velocity, Mass: p.Mass,
 			Metallicity: p.Metallicity, Age: p.Age},
-		FormedMass: p.FormedMass, CarriedEnergy: p.CarriedEnergy,
+		FormedMass: p.FormedMass, CarriedEnergy: p.CarriedEnergy, NewStellarMass: p.NewStellarMass,
 	}
 	if err := sp.Validate(); err != nil {
 		return sp, fail(codeBadValue, "%w", err)

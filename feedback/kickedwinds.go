@@ -62,7 +62,8 @@ const (
 	// supernova energy arrives over tens of Myr after the stars formed.
 	LoadPerSupernovaEnergy WindMassBasis = iota
 	// LoadPerFormedMass loads the host's newly formed stellar mass,
-	// m_* = Source.NewStellarMass, as the original decoupled-wind scheme
+	// m_* = Source.NewStellarMass (a Stepper takes it from
+	// StarParticle.NewStellarMass), as the original decoupled-wind scheme
 	// ties the wind to the star formation rate; the kinetic energy still
 	// comes from the source's energy.
 	LoadPerFormedMass

@@ -466,3 +466,74 @@ func TestNewSchemesAllocateNothingInSteadyState(t *testing.T) {
 		assert.Zero(t, allocs, "%s: allocations per call of 100 stars", scheme.Name())
 	}
 }
+
+// Kicked winds loaded per formed mass work inside a stepper: each star
+// particle's NewStellarMass reaches its core-collapse source, and the
+// expected kicked mass is eta times it (Springel & Hernquist 2003, MNRAS
+// 339, 289), paid from the supernovae of the particle's older stars. The
+// mean over many stars lies within 4 standard errors of eta m_*, the
+// variance of one star's kicked mass being sum_j m_j^2 p (1 - p). Without
+// new stellar mass nothing is launched (before StarParticle carried it,
+// that was every star: the variant launched no wind in a stepper and its
+// energy became heat).
+func TestStepperLoadsKickedWindsOnNewStellarMass(t *testing.T) {
+	u := units.ParsecSolarMassKms()
+	pop, err := yields.NewPopulation(yields.DefaultConfig())
+	require.NoError(t, err)
+	g := windGas(23, 800, 0)
+	myr := units.Megayear / u.TimeS()
+	s := feedback.DefaultKickedWinds()
+	s.Basis, s.Seed = feedback.LoadPerFormedMass, 13
+	cfg := feedback.DefaultStepConfig(feedback.Config{Units: u, Scheme: s}, pop)
+	cfg.Seed = 4
+	cfg.SkipWinds, cfg.SkipRadiation, cfg.SkipPhotoionization, cfg.SkipPhotoelectric = true, true, true, true
+	st, err := feedback.NewStepper(cfg)
+	require.NoError(t, err)
+	const formed = 150.0 // eta m_* = 300 Msun of about 3200 Msun around each star: 7e50 erg of kicks
+	for _, newMass := range []float64{formed, 0} {
+		var stars []feedback.StarParticle
+		for k := 0; k < 200; k++ {
+			i := k * 4
+			stars = append(stars, feedback.StarParticle{Star: feedback.Star{ID: int64(100 + k), Mass: 2e4, Metallicity: 0.0134,
+				Pos: [3]float64{g.Pos[0][i], g.Pos[1][i] + 0.2, g.Pos[2][i]}, Age: 10 * myr}, FormedMass: 2e4, NewStellarMass: newMass})
+		}
+		var out feedback.StepOutput
+		require.NoError(t, st.Step(g.View(), treeOf(t, g), stars, 1, myr, &out))
+		require.NoError(t, out.Err())
+		require.NoError(t, out.Ledger.Balanced(1e-12))
+		cc := out.Channels[yields.CoreCollapse]
+		require.Positive(t, cc.In.Energy)
+		kicked := kickedMass(g, out.Records)
+		if newMass == 0 {
+			assert.Empty(t, kicked, "no new stars, no wind")
+			assert.Zero(t, cc.KickEnergy)
+			continue
+		}
+		// Each star's neighborhood, from its core-collapse records.
+		total, sum2 := map[int64]float64{}, map[int64]float64{}
+		for _, r := range out.Records {
+			if r.Channel == yields.CoreCollapse {
+				m := g.Mass[r.GasIndex]
+				total[r.StarID] += m
+				sum2[r.StarID] += m * m
+			}
+		}
+		require.Len(t, total, len(stars))
+		mean, variance := 0.0, 0.0
+		for id, m := range total {
+			p := s.Loading * newMass / m
+			require.Less(t, p, 1.0)
+			mean += kicked[id]
+			variance += sum2[id] * p * (1 - p)
+		}
+		n := float64(len(stars))
+		mean /= n
+		se := math.Sqrt(variance) / n
+		assert.InDelta(t, s.Loading*newMass, mean, 4*se, "mean kicked mass %g, want %g +- %g", mean, s.Loading*newMass, se)
+		// The supernovae (about 7 per star) pay for the kicks but in the
+		// rare star that kicks far more than its expected mass.
+		assert.Less(t, cc.Limited, len(stars)/20)
+		t.Logf("supernovae per star %.2f, limited %d, mean kicked %.1f Msun (want %.1f +- %.1f)", float64(out.Supernovae[yields.CoreCollapse])/n, cc.Limited, mean, s.Loading*newMass, se)
+		assert.Positive(t, cc.KickEnergy)
+	}
+}

@@ -11,13 +11,27 @@ import (
 
 // StarParticle is a star particle with the state a step needs: its star
 // (age in code time at the step's start), the stellar mass it formed with
-// (code mass; releases scale with it), and energy carried over from earlier
+// (code mass; releases scale with it), energy carried over from earlier
 // steps (returned undeposited, e.g. by stochastic heating when no neighbor
-// was drawn), which is added to this step's supernova energy.
+// was heated), which is added to this step's supernova energy, and the
+// stellar mass it formed during this step.
 type StarParticle struct {
 	Star
 	FormedMass    float64
 	CarriedEnergy float64
+	// NewStellarMass is the stellar mass (code mass) the particle formed
+	// during this step: the mass kicked winds loaded per formed mass
+	// (KickedWinds with LoadPerFormedMass) load their wind on, as the
+	// decoupled winds of Springel & Hernquist 2003 tie the wind to the star
+	// formation rate. The stepper gives it to the star's core-collapse
+	// source, whose energy (this step's supernovae plus CarriedEnergy) pays
+	// the wind's kinetic energy: a particle that forms stars over many
+	// steps passes what each step formed, and its older stars' supernovae
+	// launch the wind; a particle that forms all its stars at birth has no
+	// supernova energy in that step, so its wind is slowed to what the
+	// energy pays (FlagLimited, Ledger.Limited), and LoadPerSupernovaEnergy
+	// suits it better. Other schemes ignore it. Zero by default.
+	NewStellarMass float64
 }
 
 // StepConfig sets up a Stepper.
@@ -262,6 +276,7 @@ func (s *Stepper) Step(gas *Gas, finder neighbor.Finder, stars []StarParticle, s
 			}
 			if c == yields.CoreCollapse {
 				src.Energy += st.CarriedEnergy
+				src.NewStellarMass = st.NewStellarMass
 			}
 			if !c.Discrete() && s.cfg.SkipWinds {
 				src = base
@@ -401,7 +416,8 @@ func (s *Stepper) delayCooling(gas *Gas, c int, recs []Record) {
 }
 
 // Validate checks a star particle before a step uses it: the star
-// (Star.Validate) and finite non-negative formed mass and carried energy.
+// (Star.Validate) and finite non-negative formed mass, carried energy and
+// new stellar mass.
 func (st *StarParticle) Validate() error {
 	if err := st.Star.Validate(); err != nil {
 		return err
@@ -409,7 +425,7 @@ func (st *StarParticle) Validate() error {
 	for _, f := range [...]struct {
 		name string
 		v    float64
-	}{{"formed mass", st.FormedMass}, {"carried energy", st.CarriedEnergy}} {
+	}{{"formed mass", st.FormedMass}, {"carried energy", st.CarriedEnergy}, {"new stellar mass", st.NewStellarMass}} {
 		if !(f.v >= 0) || math.IsInf(f.v, 0) {
 			return errorf(ErrBadValue, "star %d: %s %g must be finite and non-negative", st.ID, f.name, f.v)
 		}

@@ -40,7 +40,7 @@ program ejecta_population_host
 
   fails = 0
   allocate(recs(1))
-  if (c_sizeof(star(1)) /= 96 .or. c_sizeof(res(1)) /= 40 .or. c_sizeof(pc) /= 104 .or. &
+  if (c_sizeof(star(1)) /= 104 .or. c_sizeof(res(1)) /= 40 .or. c_sizeof(pc) /= 104 .or. &
        c_sizeof(recs(1)) /= 224 .or. c_sizeof(led) /= 504 .or. c_sizeof(touched_one) /= 64 .or. &
        c_sizeof(cfg) /= 256) &
        call fail('struct sizes differ from ejecta.h')

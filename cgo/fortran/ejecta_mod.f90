@@ -21,7 +21,7 @@ module ejecta_mod
        EJECTA_ERR_BUSY = 10, EJECTA_ERR_UNDEPOSITED = 11, EJECTA_ERR_IMBALANCE = 12, &
        EJECTA_ERR_ALREADY_APPLIED = 13, EJECTA_ERR_NO_POPULATION = 14, EJECTA_ERR_YIELDS_TABLE = 15, &
        EJECTA_ERR_REMNANT_TABLE = 16, EJECTA_ERR_DUMP_FILE = 17, EJECTA_ERR_INTERNAL = 99
-  integer(c_int32_t), parameter, public :: EJECTA_ABI_VERSION = 5
+  integer(c_int32_t), parameter, public :: EJECTA_ABI_VERSION = 6
   ! Element types.
   integer(c_int32_t), parameter, public :: EJECTA_FLOAT64 = 1, EJECTA_FLOAT32 = 2, &
        EJECTA_INT64 = 3, EJECTA_INT32 = 4
@@ -143,6 +143,7 @@ module ejecta_mod
      integer(c_int64_t) :: id = 0
      real(c_double) :: position(3) = 0, velocity(3) = 0
      real(c_double) :: mass = 0, formed_mass = 0, metallicity = 0, age = 0, carried_energy = 0
+     real(c_double) :: new_stellar_mass = 0
   end type ejecta_star_particle
 
   type, bind(c), public :: ejecta_star_result
