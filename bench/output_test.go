@@ -225,6 +225,9 @@ func TestWriteResultsSingleCaseWithoutSpeed(t *testing.T) {
 }
 
 func TestOutcomeInResults(t *testing.T) {
+	if testing.Short() {
+		t.Skip("a 1D reference and six 3D cases")
+	}
 	s := QuickSuite()
 	var err error
 	s.Setups, err = SelectSetups([]string{"uniform-lattice"})
