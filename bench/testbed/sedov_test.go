@@ -10,8 +10,9 @@ import (
 
 // sedovConstant is ξ in R = ξ (E t^2 / ρ)^(1/5) for γ = 5/3, from the
 // similarity solution of Sedov 1959 (Similarity and Dimensional Methods in
-// Mechanics; the constant 1.1517 follows from integrating the similarity
-// equations, e.g. Kamm & Timmes 2007, LA-UR-07-2849).
+// Mechanics): the constant 1.1517 follows from integrating the similarity
+// equations for the energy (e.g. Kamm & Timmes 2007, LA-UR-07-2849; from
+// memory).
 const sedovConstant = 1.1517
 
 // blastGrid sets a grid of n^3 cells in a box of side l (pc) to gas of
