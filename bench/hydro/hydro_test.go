@@ -304,3 +304,44 @@ func TestHancockFaces(t *testing.T) {
 	assert.Equal(t, w, left)
 	assert.Equal(t, w, right)
 }
+
+// The face velocity HLLCContact reports: the velocity itself across a pure
+// contact (equal pressure and velocity, any densities), the upwind state's
+// velocity when both waves move one way, and a mirrored problem's mirror.
+func TestHLLCContact(t *testing.T) {
+	g := Monatomic()
+	c := Prim{Rho: 1, Vx: 0.7, P: 1}
+	d := Prim{Rho: 1e-3, Vx: 0.7, P: 1}
+	_, _, v := g.HLLCContact(c, d)
+	assert.InDelta(t, 0.7, v, 1e-14)
+	fast := Prim{Rho: 1, Vx: 30, P: 1}
+	f0, _ := g.HLLC(fast, d)
+	f1, _, v := g.HLLCContact(fast, d)
+	assert.Equal(t, 30.0, v)
+	assert.Equal(t, f0, f1)
+	l, r := Prim{Rho: 1, Vx: 0.2, P: 2}, Prim{Rho: 0.3, Vx: -0.5, P: 0.4}
+	ml, mr := r, l
+	ml.Vx, mr.Vx = -r.Vx, -l.Vx
+	_, _, v1 := g.HLLCContact(l, r)
+	_, _, v2 := g.HLLCContact(ml, mr)
+	assert.InDelta(t, v1, -v2, 1e-14)
+}
+
+// CapVelocitySlope scales the velocity slopes, all by one factor, to
+// |s_v|^2 = 24 share e where they exceed it, and nothing else.
+func TestCapVelocitySlope(t *testing.T) {
+	g := Monatomic()
+	w := Prim{Rho: 2, Vx: 50, P: 3} // e = 2.25
+	s := Prim{Rho: 0.1, Vx: 3, Vy: -4, P: 0.2}
+	s.Scalar[0] = 0.01
+	e := g.InternalEnergy(w)
+	capped := g.CapVelocitySlope(w, s, 0.3)
+	assert.InEpsilon(t, 24*0.3*e, capped.Vx*capped.Vx+capped.Vy*capped.Vy+capped.Vz*capped.Vz, 1e-14)
+	assert.InEpsilon(t, s.Vx/s.Vy, capped.Vx/capped.Vy, 1e-14, "one factor for every component")
+	assert.Equal(t, s.Rho, capped.Rho)
+	assert.Equal(t, s.P, capped.P)
+	assert.Equal(t, s.Scalar, capped.Scalar)
+	assert.Equal(t, s, g.CapVelocitySlope(w, s, 10), "within the cap: unchanged")
+	w.P = 0
+	assert.Zero(t, g.CapVelocitySlope(w, s, 0.3).Vx, "no heat: no velocity slope")
+}

@@ -149,3 +149,39 @@ func (g IdealGas) HancockFaces(w, s Prim, dtdx float64) (left, right Prim) {
 	}
 	return Faces(p, s)
 }
+
+// CapVelocitySlope returns slope s of cell w (per cell width, as from
+// PrimSlope) with its three velocity slopes scaled down by one common
+// factor, where needed, so that the kinetic energy the linear velocity
+// profile adds to the cell, ρ |s_v|^2 / 24 per unit volume (the mean of
+// ½ ρ (s_v ξ)^2 over ξ in [−½, ½]), is at most share times the cell's
+// internal energy ρ e:
+//
+//	|s_v|^2 <= 24 share e,   e = p / ((γ − 1) ρ).
+//
+// A limited slope scaled toward zero stays limited. Where cold gas moves
+// fast and kinetic energy dwarfs heat, an uncapped slope gives the face
+// states more kinetic energy than the cell holds beyond its mean motion,
+// and the total-energy fluxes then drain the cell's heat below zero. With
+// γ = 5/3, share = 0.3 allows a velocity change across the cell of about
+// 2.5 sound speeds: smooth flow and hot gas stay well inside it, shocks
+// into cold gas and the cold shells behind them do not. Density, pressure
+// and scalar slopes are left as they are.
+func (g IdealGas) CapVelocitySlope(w, s Prim, share float64) Prim {
+	v2 := s.Vx*s.Vx + s.Vy*s.Vy + s.Vz*s.Vz
+	if v2 == 0 {
+		return s
+	}
+	limit := 24 * share * g.InternalEnergy(w)
+	if !(v2 > limit) {
+		return s
+	}
+	f := 0.0
+	if limit > 0 {
+		f = math.Sqrt(limit / v2)
+	}
+	s.Vx *= f
+	s.Vy *= f
+	s.Vz *= f
+	return s
+}

@@ -6,6 +6,17 @@ import "math"
 // and right state r, and the largest signal speed |S| (for the time step).
 // Both states must have positive density and pressure.
 func (g IdealGas) HLLC(l, r Prim) (Cons, float64) {
+	f, smax, _ := g.HLLCContact(l, r)
+	return f, smax
+}
+
+// HLLCContact is HLLC that also returns the normal velocity of the gas at
+// the face: the contact speed S* where the face lies between the two outer
+// waves, or the upwind state's velocity where both waves move the same way.
+// It is the face velocity of a p dV term (a separately evolved internal
+// energy: Bryan et al. 1995, Comput. Phys. Commun. 89, 149), taken from the
+// same Riemann solution as the flux.
+func (g IdealGas) HLLCContact(l, r Prim) (f Cons, smax, contact float64) {
 	gm1 := g.Gamma - 1
 	// Total energy densities and sound speeds.
 	el := l.P/gm1 + 0.5*l.Rho*(l.Vx*l.Vx+l.Vy*l.Vy+l.Vz*l.Vz)
@@ -23,21 +34,21 @@ func (g IdealGas) HLLC(l, r Prim) (Cons, float64) {
 	cRoe := math.Sqrt(math.Max(c2, 0))
 	sL := math.Min(l.Vx-cl, uRoe-cRoe)
 	sR := math.Max(r.Vx+cr, uRoe+cRoe)
-	smax := math.Max(math.Abs(sL), math.Abs(sR))
+	smax = math.Max(math.Abs(sL), math.Abs(sR))
 
 	switch {
 	case sL >= 0:
-		return physicalFlux(l, el), smax
+		return physicalFlux(l, el), smax, l.Vx
 	case sR <= 0:
-		return physicalFlux(r, er), smax
+		return physicalFlux(r, er), smax, r.Vx
 	}
 	ml := l.Rho * (sL - l.Vx)
 	mr := r.Rho * (sR - r.Vx)
 	sStar := (r.P - l.P + l.Vx*ml - r.Vx*mr) / (ml - mr)
 	if sStar >= 0 {
-		return starFlux(l, el, sL, sStar), smax
+		return starFlux(l, el, sL, sStar), smax, sStar
 	}
-	return starFlux(r, er, sR, sStar), smax
+	return starFlux(r, er, sR, sStar), smax, sStar
 }
 
 // physicalFlux is the x-flux of state w with total energy density e.
