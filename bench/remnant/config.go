@@ -63,6 +63,22 @@ type Config struct {
 	// the shell-formation point does not depend on the split once the
 	// ejecta have swept up several times their mass).
 	ThermalFraction float64
+	// InternalEnergySwitch is the share of a zone's total energy below which
+	// the thermal energy it implies (total minus kinetic) is replaced by the
+	// separately evolved internal energy, the difference booked as
+	// Ledger.SwitchAdded (the dual-energy formalism of Bryan et al. 1995,
+	// Comput. Phys. Commun. 89, 149; see the package documentation). Zero
+	// uses the separate internal energy only where the total energy leaves
+	// negative heat.
+	// DefaultConfig: 0.001 (our own choice, see the package documentation;
+	// Bryan et al. use a value of this order, from memory).
+	InternalEnergySwitch float64
+	// VelocitySlopeCap caps each zone's velocity slope so that the kinetic
+	// energy of the reconstructed velocity profile stays below this share of
+	// the zone's internal energy (hydro.CapVelocitySlope; see the package
+	// documentation). +Inf switches the cap off. DefaultConfig: 0.3 (our own
+	// choice).
+	VelocitySlopeCap float64
 	// CFL is the Courant number (DefaultConfig: 0.4).
 	CFL float64
 	// CoolingStep limits the step to this fraction of the shortest cooling
@@ -86,7 +102,7 @@ func DefaultConfig() Config {
 		Density: 1, Metallicity: 1, Energy: units.FOE, EjectaMass: 3,
 		AmbientAtEquilibrium: true, AmbientTemperature: 1e4,
 		Gas: cooling.DefaultGas(), ZonesPerShellRadius: 100, DomainShellRadii: 3, EndShellTimes: 10,
-		InitialZones: 8, ThermalFraction: 0.5, CFL: 0.4, CoolingStep: 0.3,
+		InitialZones: 8, ThermalFraction: 0.5, InternalEnergySwitch: 1e-3, VelocitySlopeCap: 0.3, CFL: 0.4, CoolingStep: 0.3,
 		Limiter: hydro.MonotonizedCentral, HistorySamples: 200,
 	}
 }
@@ -116,6 +132,10 @@ func (c Config) validate() error {
 		return fmt.Errorf("remnant: %d initial zones reach past a third of the shell-formation radius (%d zones; Kim & Ostriker 2015): %w", c.InitialZones, c.ZonesPerShellRadius, ErrConfig)
 	case !(c.ThermalFraction >= 0 && c.ThermalFraction <= 1):
 		return fmt.Errorf("remnant: thermal fraction %v, want in [0, 1]: %w", c.ThermalFraction, ErrConfig)
+	case !(c.InternalEnergySwitch >= 0 && c.InternalEnergySwitch < 1):
+		return fmt.Errorf("remnant: internal energy switch %v, want in [0, 1): %w", c.InternalEnergySwitch, ErrConfig)
+	case !(c.VelocitySlopeCap >= 0):
+		return fmt.Errorf("remnant: velocity slope cap %v, want >= 0: %w", c.VelocitySlopeCap, ErrConfig)
 	case !(c.CFL > 0 && c.CFL <= 0.8):
 		return fmt.Errorf("remnant: CFL %v, want in (0, 0.8]: %w", c.CFL, ErrConfig)
 	case !pos(c.CoolingStep):

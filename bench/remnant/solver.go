@@ -26,6 +26,11 @@ const floorTemperature = 1.0
 // ejectaScalar is the passive scalar that marks ejecta.
 const ejectaScalar = 0
 
+// internalScalar is the scalar slot that carries the separately evolved
+// internal energy: the conserved state holds ρe in it, the primitive state
+// the specific internal energy e (advected with the mass like any scalar).
+const internalScalar = 1
+
 // Solver evolves one remnant: spherical shells of equal width, from the
 // center (reflecting) to the outer radius (outflow). Quantities are per
 // steradian inside; diagnostics multiply by 4π. A Solver is not safe for
@@ -44,10 +49,12 @@ type Solver struct {
 	u, u1, du     []hydro.Cons
 	w             []hydro.Prim // n+4 with ghosts
 	flux          []hydro.Cons // n+1
+	contact       []float64    // face velocities, n+1
 	teq           []float64    // equilibrium temperature cache per zone
 	teqRho        []float64    // density the cache is for
 	ambient       hydro.Prim
 	ambientEnergy float64 // initial total energy per unit volume of the ambient gas
+	eFloor        float64 // specific internal energy at the floor temperature
 
 	time, dt      float64
 	steps         int
@@ -55,6 +62,7 @@ type Solver struct {
 	initialTherm  float64 // thermal energy of an all-ambient grid
 	radiated      float64 // net energy lost to cooling (4π, erg)
 	floorAdded    float64 // energy added by the temperature floor
+	switchAdded   float64 // energy added (or removed) where the separate internal energy was used
 	outflowEnergy float64 // energy through the outer face
 	outflowMass   float64
 	tEnd          float64
@@ -139,10 +147,12 @@ func New(cfg Config) (*Solver, error) {
 	s.du = make([]hydro.Cons, n)
 	s.w = make([]hydro.Prim, n+4)
 	s.flux = make([]hydro.Cons, n+1)
+	s.contact = make([]float64, n+1)
 	s.teq = make([]float64, n)
 	s.teqRho = make([]float64, n)
 
 	// Ambient medium.
+	s.eFloor = s.gas.SpecificEnergy(floorTemperature)
 	rho0 := s.gas.MassDensity(cfg.Density)
 	t0 := cfg.AmbientTemperature
 	if cfg.AmbientAtEquilibrium {
@@ -154,7 +164,9 @@ func New(cfg Config) (*Solver, error) {
 			}
 		}
 	}
-	s.ambient = hydro.Prim{Rho: rho0, P: rho0 * s.gas.SpecificEnergy(t0) * (s.gas.Gamma - 1)}
+	e0 := s.gas.SpecificEnergy(t0)
+	s.ambient = hydro.Prim{Rho: rho0, P: rho0 * e0 * (s.gas.Gamma - 1)}
+	s.ambient.Scalar[internalScalar] = e0
 	s.ambientEnergy = s.eos.Cons(s.ambient).Energy
 
 	// Ejecta: a uniform ball of InitialZones zones expanding homologously,
@@ -176,6 +188,7 @@ func New(cfg Config) (*Solver, error) {
 		if i < cfg.InitialZones {
 			w := hydro.Prim{Rho: rhoEj, Vx: vMax * s.center[i] / rEj, P: s.ambient.P + (s.gas.Gamma-1)*heat}
 			w.Scalar[ejectaScalar] = (mEj / vEj) / rhoEj
+			w.Scalar[internalScalar] = s.eos.InternalEnergy(w)
 			s.u[i] = s.eos.Cons(w)
 		} else {
 			s.u[i] = s.eos.Cons(s.ambient)
@@ -219,24 +232,18 @@ func (s *Solver) totalEnergy() float64 {
 }
 
 // fill converts u to primitives with ghost zones: mirrored at the center,
-// copied at the outer edge. A zone whose temperature fell below the floor
-// (round-off in cold, fast flow) is raised to it and the energy added is
-// booked with the given weight (the share of this state in the step's
-// result).
+// copied at the outer edge. Each zone's two internal energies are first
+// reconciled (see reconcile) with the given weight (the share of this
+// state in the step's result).
 func (s *Solver) fill(u []hydro.Cons, weight float64) error {
 	n := s.n
-	eFloor := s.gas.SpecificEnergy(floorTemperature)
 	for i := range u {
 		c := &u[i]
-		if !(c.Mass > 0) || math.IsInf(c.Mass, 0) || math.IsNaN(c.Energy+c.MomX) {
+		if !(c.Mass > 0) || math.IsInf(c.Mass, 0) || math.IsNaN(c.Energy+c.MomX+c.Scalar[internalScalar]) {
 			return fmt.Errorf("remnant: zone %d at r = %.4g pc, t = %.4g kyr: density %g, energy %g: %w",
 				i, s.center[i]/units.Parsec, s.time/(1e3*units.JulianYear), c.Mass, c.Energy, ErrUnphysical)
 		}
-		kin := 0.5 * c.MomX * c.MomX / c.Mass
-		if e := (c.Energy - kin) / c.Mass; !(e >= eFloor) {
-			s.floorAdded += weight * 4 * math.Pi * (eFloor - e) * c.Mass * s.vol[i]
-			c.Energy = kin + c.Mass*eFloor
-		}
+		s.reconcile(i, c, weight)
 		s.w[i+2] = s.eos.Prim(*c)
 	}
 	m0, m1 := s.w[2], s.w[3]
@@ -246,11 +253,38 @@ func (s *Solver) fill(u []hydro.Cons, weight float64) error {
 	return nil
 }
 
+// reconcile makes zone i's total energy and separately evolved internal
+// energy agree (the dual-energy formalism of Bryan et al. 1995, Comput.
+// Phys. Commun. 89, 149). Where the thermal energy the total energy implies,
+// E − ½ρv², is at least InternalEnergySwitch of E, it is trusted and copied
+// into the internal energy; below that, where truncation error in E is
+// comparable to the thermal energy (cold, fast gas), the separate internal
+// energy is used and E is reset to ½ρv² + ρe, the difference booked as
+// SwitchAdded with the given weight. Then a zone colder than 1 K is raised
+// to it, booked as FloorAdded.
+func (s *Solver) reconcile(i int, c *hydro.Cons, weight float64) {
+	kin := 0.5 * c.MomX * c.MomX / c.Mass
+	th := c.Energy - kin
+	if th >= s.cfg.InternalEnergySwitch*c.Energy {
+		c.Scalar[internalScalar] = th
+	} else {
+		th = c.Scalar[internalScalar]
+		e := kin + th
+		s.switchAdded += weight * 4 * math.Pi * (e - c.Energy) * s.vol[i]
+		c.Energy = e
+	}
+	if floor := c.Mass * s.eFloor; !(th >= floor) {
+		s.floorAdded += weight * 4 * math.Pi * (floor - th) * s.vol[i]
+		c.Energy = kin + floor
+		c.Scalar[internalScalar] = floor
+	}
+}
+
 // rates fills du with the time derivative of u (whose primitives are in
 // s.w) and returns the energy and mass leaving through the outer face per
 // unit time (per steradian).
 func (s *Solver) rates() (eOut, mOut float64) {
-	s.eos.PencilFluxes(s.cfg.Limiter, s.w, s.flux)
+	s.pencil()
 	s.flux[0] = hydro.Cons{} // no flux through the center (zero area)
 	for i := range s.n {
 		aL, aR := s.area[i], s.area[i+1]
@@ -265,6 +299,9 @@ func (s *Solver) rates() (eOut, mOut float64) {
 		for k := range d.Scalar {
 			d.Scalar[k] = inv * (aR*fR.Scalar[k] - aL*fL.Scalar[k])
 		}
+		// The internal energy's p dV work, −p ∇·v, with the face velocities
+		// of the same Riemann solutions (zero through the center).
+		d.Scalar[internalScalar] += inv * p * (aR*s.contact[i+1] - aL*s.contact[i])
 		s.du[i] = d
 	}
 	f := s.flux[s.n]
@@ -330,9 +367,10 @@ func (s *Solver) thermal(dt float64) error {
 	var hot, radiated float64
 	for i := range s.u {
 		c := &s.u[i]
+		s.reconcile(i, c, 1)
 		rho := c.Mass
 		kin := 0.5 * c.MomX * c.MomX / rho
-		e := (c.Energy - kin) / rho
+		e := c.Scalar[internalScalar] / rho
 		if s.curve != nil {
 			if s.teqRho[i] != rho {
 				s.teqRho[i] = rho
@@ -343,6 +381,7 @@ func (s *Solver) thermal(dt float64) error {
 				radiated += (e - e1) * rho * s.vol[i]
 				e = e1
 				c.Energy = kin + rho*e
+				c.Scalar[internalScalar] = rho * e
 			}
 		}
 		if s.gas.Temperature(e) > HotTemperature {
@@ -389,7 +428,7 @@ func (s *Solver) point(hot float64) Point {
 }
 
 func (s *Solver) sample(hot float64) Sample {
-	sm := Sample{Point: s.point(hot), Radiated: s.radiated - s.floorAdded}
+	sm := Sample{Point: s.point(hot), Radiated: s.radiated - s.floorAdded - s.switchAdded}
 	var kin, th float64
 	for i, c := range s.u {
 		k := 0.5 * c.MomX * c.MomX / c.Mass
@@ -402,7 +441,7 @@ func (s *Solver) sample(hot float64) Sample {
 }
 
 // Ledger is where the energy of a run went, in erg: Initial = Total +
-// Radiated + Outflow − FloorAdded to round-off.
+// Radiated + Outflow − FloorAdded − SwitchAdded to round-off.
 type Ledger struct {
 	// Initial is the total energy on the grid at t = 0 (explosion plus
 	// ambient thermal energy).
@@ -415,17 +454,22 @@ type Ledger struct {
 	Outflow float64
 	// FloorAdded is the energy added to hold the temperature floor.
 	FloorAdded float64
+	// SwitchAdded is the energy added (negative: removed) where a zone's
+	// total energy was reset from its separately evolved internal energy
+	// (Config.InternalEnergySwitch).
+	SwitchAdded float64
 }
 
-// Residual is (Total + Radiated + Outflow − FloorAdded − Initial) / Initial.
+// Residual is (Total + Radiated + Outflow − FloorAdded − SwitchAdded −
+// Initial) / Initial.
 func (l Ledger) Residual() float64 {
-	return (l.Total + l.Radiated + l.Outflow - l.FloorAdded - l.Initial) / l.Initial
+	return (l.Total + l.Radiated + l.Outflow - l.FloorAdded - l.SwitchAdded - l.Initial) / l.Initial
 }
 
 // Ledger is the run's energy ledger so far.
 func (s *Solver) Ledger() Ledger {
 	return Ledger{Initial: s.initialEnergy, Total: s.totalEnergy(), Radiated: s.radiated,
-		Outflow: s.outflowEnergy, FloorAdded: s.floorAdded}
+		Outflow: s.outflowEnergy, FloorAdded: s.floorAdded, SwitchAdded: s.switchAdded}
 }
 
 // Result is what a run reports.
@@ -513,4 +557,20 @@ func Run(cfg Config) (*Result, error) {
 		return nil, err
 	}
 	return s.Run()
+}
+
+// pencil computes the HLLC flux and the face velocity through every face
+// from the limited linear reconstruction of s.w, with each zone's velocity
+// slope capped by its internal energy (hydro.CapVelocitySlope).
+func (s *Solver) pencil() {
+	w, lim, share := s.w, s.cfg.Limiter, s.cfg.VelocitySlopeCap
+	slope := func(c int) hydro.Prim {
+		return s.eos.CapVelocitySlope(w[c], lim.PrimSlope(w[c-1], w[c], w[c+1]), share)
+	}
+	_, prevRight := hydro.Faces(w[1], slope(1))
+	for i := 0; i <= s.n; i++ {
+		left, right := hydro.Faces(w[i+2], slope(i+2))
+		s.flux[i], _, s.contact[i] = s.eos.HLLCContact(prevRight, left)
+		prevRight = right
+	}
 }
