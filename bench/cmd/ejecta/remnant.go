@@ -78,12 +78,13 @@ type remnantReport struct {
 }
 
 type remnantLedgerOut struct {
-	InitialErg    float64 `json:"initial_erg"`
-	TotalErg      float64 `json:"total_erg"`
-	RadiatedErg   float64 `json:"radiated_erg"`
-	OutflowErg    float64 `json:"outflow_erg"`
-	FloorAddedErg float64 `json:"floor_added_erg"`
-	Residual      float64 `json:"relative_residual"`
+	InitialErg     float64 `json:"initial_erg"`
+	TotalErg       float64 `json:"total_erg"`
+	RadiatedErg    float64 `json:"radiated_erg"`
+	OutflowErg     float64 `json:"outflow_erg"`
+	FloorAddedErg  float64 `json:"floor_added_erg"`
+	SwitchAddedErg float64 `json:"switch_added_erg"`
+	Residual       float64 `json:"relative_residual"`
 }
 
 const kyrSeconds = 1e3 * units.JulianYear
@@ -168,7 +169,8 @@ func runRemnant(args []string, stdout, stderr io.Writer) int {
 		Cooling: coolingLabel, AmbientTemperatureK: res.AmbientTemperature,
 		Late: toPoint(res.Late.Point), History: []remnantSample{}, Zones: res.Zones, Steps: res.Steps,
 		Ledger: remnantLedgerOut{InitialErg: res.Ledger.Initial, TotalErg: res.Ledger.Total, RadiatedErg: res.Ledger.Radiated,
-			OutflowErg: res.Ledger.Outflow, FloorAddedErg: res.Ledger.FloorAdded, Residual: res.Ledger.Residual()},
+			OutflowErg: res.Ledger.Outflow, FloorAddedErg: res.Ledger.FloorAdded,
+			SwitchAddedErg: res.Ledger.SwitchAdded, Residual: res.Ledger.Residual()},
 	}
 	if res.ShellFormation.Found {
 		p := toPoint(res.ShellFormation)
@@ -217,8 +219,8 @@ func printRemnant(w io.Writer, rep remnantReport, leftGrid bool, outDir string) 
 		fmt.Fprintln(w, "note: the shock reached the edge of the grid; the run stopped there")
 	}
 	l := rep.Ledger
-	fmt.Fprintf(w, "energy ledger: initial %.6g erg = on grid %.6g + radiated %.6g + outflow %.3g - floor %.3g (relative residual %.1e)\n",
-		l.InitialErg, l.TotalErg, l.RadiatedErg, l.OutflowErg, l.FloorAddedErg, l.Residual)
+	fmt.Fprintf(w, "energy ledger: initial %.6g erg = on grid %.6g + radiated %.6g + outflow %.3g - floor %.3g - switch %.3g (relative residual %.1e)\n",
+		l.InitialErg, l.TotalErg, l.RadiatedErg, l.OutflowErg, l.FloorAddedErg, l.SwitchAddedErg, l.Residual)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "t [kyr]\tR_shock [pc]\tp [Msun km/s]\tE_kin [erg]\tE_th [erg]\tE_rad [erg]\t")
 	step := max(1, len(rep.History)/25)
@@ -229,7 +231,7 @@ func printRemnant(w io.Writer, rep remnantReport, leftGrid bool, outDir string) 
 		fmt.Fprintf(tw, "%.4g\t%.4g\t%.4g\t%.4g\t%.4g\t%.4g\t\n", s.TimeKyr, s.ShockRadiusPc, s.RadialMomentumMsunKms, s.KineticErg, s.ThermalErg, s.RadiatedErg)
 	}
 	tw.Flush()
-	fmt.Fprintln(w, "columns: time since the explosion, shock radius, total radial momentum, kinetic energy, thermal energy above the undisturbed gas, energy radiated (net of heating and of the temperature floor); every 1 in", step, "records shown (-json gives all)")
+	fmt.Fprintln(w, "columns: time since the explosion, shock radius, total radial momentum, kinetic energy, thermal energy above the undisturbed gas, energy radiated (net of heating, of the temperature floor and of the internal-energy switch); every 1 in", step, "records shown (-json gives all)")
 	fmt.Fprintf(w, "plots: %s, %s\n", filepath.Join(outDir, "remnant-momentum.png"), filepath.Join(outDir, "remnant-energy.png"))
 }
 
