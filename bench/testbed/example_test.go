@@ -43,7 +43,7 @@ func ExampleGrid() {
 	fmt.Printf("radiated %.0f%% of the supernova energy\n", 100*l.Radiated/l.Injected)
 	fmt.Println("ledger closes:", math.Abs(e0+l.Injected-l.Radiated+l.Floor-e1) < 1e-12*e1)
 	// Output:
-	// radiated 74% of the supernova energy
+	// radiated 75% of the supernova energy
 	// ledger closes: true
 }
 

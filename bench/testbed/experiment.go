@@ -163,7 +163,9 @@ func (c *Config) validate() error {
 // Outcome is what one variant delivered in one medium at one resolution
 // and time, beside the one-dimensional reference at the same time.
 // Energies are shares of the supernova energy; the thermal energy is that
-// above the ambient gas's.
+// above the ambient gas's; the radiated share is net of heating and of
+// FloorShare, the energy the solver added where it held cells at its
+// temperature floor.
 type Outcome struct {
 	Scheme                     string  `json:"scheme"`
 	Medium                     string  `json:"medium"`
@@ -180,6 +182,7 @@ type Outcome struct {
 	RadiatedShare              float64 `json:"radiated_share"`
 	ReferenceRadiatedShare     float64 `json:"reference_radiated_share"`
 	UndepositedShare           float64 `json:"undeposited_share"`
+	FloorShare                 float64 `json:"floor_share"`
 	HotMassMsun                float64 `json:"hot_mass_msun"`
 	ReferenceHotMassMsun       float64 `json:"reference_hot_mass_msun"`
 	CellSizePc                 float64 `json:"cell_size_pc"`
@@ -564,8 +567,8 @@ func runCase(cfg *Config, curve *cooling.Curve, v Variant, med Medium, ref *Refe
 				KineticShare:             m.Kinetic * eu / e, ReferenceKineticShare: r.Kinetic / e,
 				ThermalShare: m.ThermalExcess * eu / e, ReferenceThermalShare: r.Thermal / e,
 				RadiatedShare: (l.Radiated + inj.Radiated - l.Floor) * eu / e, ReferenceRadiatedShare: r.Radiated / e,
-				UndepositedShare: carry * eu / e,
-				HotMassMsun:      m.HotMass * u.MassG / units.SolarMass, ReferenceHotMassMsun: r.HotMass / units.SolarMass,
+				UndepositedShare: carry * eu / e, FloorShare: l.Floor * eu / e,
+				HotMassMsun: m.HotMass * u.MassG / units.SolarMass, ReferenceHotMassMsun: r.HotMass / units.SolarMass,
 				CellSizePc: g.CellSize() * u.LengthCm / units.Parsec, BoxPc: p.size * u.LengthCm / units.Parsec,
 				CellSizeOverShellRadius: g.CellSize() * u.LengthCm / ref.ShellFormation.ShockRadius,
 				Cells:                   p.cells, Steps: int(g.Steps()),

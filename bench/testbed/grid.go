@@ -47,6 +47,13 @@ type GridConfig struct {
 	CoolingCourant float64
 	// Limiter limits the slopes of the reconstruction.
 	Limiter hydro.Limiter
+	// VelocitySlopeCap caps each cell's velocity slopes so that the kinetic
+	// energy of its reconstructed velocity profile stays below this share of
+	// its internal energy (hydro.CapVelocitySlope), as the one-dimensional
+	// reference does: in cold gas moving supersonically the uncapped slopes
+	// let the energy fluxes drain cells' heat below the floor. >= 0; +Inf
+	// switches the cap off.
+	VelocitySlopeCap float64
 	// MinTemperature (K) is the floor of the internal energy: where the
 	// hydrodynamics would leave a cell colder, it is raised to this
 	// temperature and the energy added is booked in Ledger.Floor.
@@ -72,6 +79,10 @@ const CoolingStepTemperature = 2e4
 // reference uses.
 const DefaultLimiter = hydro.MonotonizedCentral
 
+// DefaultVelocitySlopeCap is the velocity-slope cap DefaultGridConfig uses,
+// 0.3, the one-dimensional reference's (package remnant).
+const DefaultVelocitySlopeCap = 0.3
+
 // DefaultMinTemperature is the temperature floor DefaultGridConfig uses, 1 K:
 // far below the coldest equilibrium of the built-in cooling, so it only
 // catches round-off in cold fast flows.
@@ -82,7 +93,7 @@ const DefaultMinTemperature = 1.0
 // no cooling, DefaultCourant and one worker.
 func DefaultGridConfig(cells int, size float64) GridConfig {
 	return GridConfig{Cells: cells, Size: size, Units: units.ParsecSolarMassKms(), Thermo: cooling.DefaultGas(),
-		Courant: DefaultCourant, Limiter: DefaultLimiter, MinTemperature: DefaultMinTemperature, Workers: 1}
+		Courant: DefaultCourant, Limiter: DefaultLimiter, VelocitySlopeCap: DefaultVelocitySlopeCap, MinTemperature: DefaultMinTemperature, Workers: 1}
 }
 
 // Grid is a uniform Cartesian grid in a periodic box that solves the Euler
@@ -175,6 +186,9 @@ func NewGrid(cfg GridConfig) (*Grid, error) {
 	}
 	if !(cfg.MinTemperature > 0) || math.IsInf(cfg.MinTemperature, 0) {
 		return nil, fmt.Errorf("testbed: minimum temperature %v K, want finite > 0: %w", cfg.MinTemperature, ErrConfig)
+	}
+	if !(cfg.VelocitySlopeCap >= 0) {
+		return nil, fmt.Errorf("testbed: velocity slope cap %v, want >= 0: %w", cfg.VelocitySlopeCap, ErrConfig)
 	}
 	if cfg.Limiter > hydro.FirstOrder {
 		return nil, fmt.Errorf("testbed: unknown limiter %v: %w", cfg.Limiter, ErrConfig)

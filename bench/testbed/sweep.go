@@ -93,7 +93,8 @@ func (g *Grid) sweepPencil(s *sweepScratch, a hydro.Axis, base, stride int, ps *
 	lim := g.cfg.Limiter
 	for j := 0; j < n; j++ {
 		w := s.w[j+1]
-		l, r := g.gas.HancockFaces(w, lim.PrimSlope(s.w[j], w, s.w[j+2]), g.sweepDtDx)
+		slope := g.gas.CapVelocitySlope(w, lim.PrimSlope(s.w[j], w, s.w[j+2]), g.cfg.VelocitySlopeCap)
+		l, r := g.gas.HancockFaces(w, slope, g.sweepDtDx)
 		if !(l.Rho > 0 && r.Rho > 0 && l.P > 0 && r.P > 0) {
 			l, r = w, w // first order where the reconstruction is not physical
 		}
@@ -116,6 +117,9 @@ func (g *Grid) sweepPencil(s *sweepScratch, a hydro.Axis, base, stride int, ps *
 		dn, dt1, dt2 := tv*(fl.MomX-fr.MomX), tv*(fl.MomY-fr.MomY), tv*(fl.MomZ-fr.MomZ)
 		de := tv * (fl.Energy - fr.Energy)
 		dz := tv * (fl.Scalar[0] - fr.Scalar[0])
+		if dm == 0 && dn == 0 && dt1 == 0 && dt2 == 0 && de == 0 && dz == 0 {
+			continue // nothing moved: the cell stays bit for bit (uniform gas at rest)
+		}
 		var dpx, dpy, dpz float64
 		switch a {
 		case hydro.X:
