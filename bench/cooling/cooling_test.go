@@ -8,6 +8,10 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"github.com/ejecta-dev/ejecta/feedback"
+	"github.com/ejecta-dev/ejecta/yields"
+	"github.com/ejecta-dev/ejecta/yields/units"
 )
 
 // equilibriumKI is T_eq(n) of the analytic Koyama & Inutsuka fit by
@@ -49,18 +53,23 @@ func TestKoyamaInutsukaPhaseBoundaries(t *testing.T) {
 	assert.InEpsilon(t, 184, turns[1], 0.02, "cold boundary (Kim & Ostriker 2015, from memory)")
 }
 
-// The tabulated built-in curve's equilibrium matches the analytic fit's.
+// The tabulated built-in curve's equilibrium matches the analytic fit's,
+// and gas there stays there.
 func TestBuiltinEquilibrium(t *testing.T) {
 	c, err := Builtin(1)
 	require.NoError(t, err)
+	g := DefaultGas()
+	k, err := NewCooler(c, g)
+	require.NoError(t, err)
 	for _, n := range []float64{0.1, 1, 10, 100} {
 		assert.InEpsilon(t, equilibriumKI(n, 1), c.EquilibriumTemperature(n), 1e-3, "n=%v", n)
-		// A zone at its equilibrium stays there.
-		teq := c.EquilibriumTemperature(n)
-		assert.Equal(t, teq, c.Evolve(n, teq, 1e15, 1e-14, math.NaN()))
-		// Round-off in the density or temperature does not move it either.
-		near := teq * (1 + 4e-16)
-		assert.Equal(t, near, c.Evolve(n*(1+2e-16), near, 1e15, 1e-14, math.NaN()))
+		rho := g.MassDensity(n)
+		eeq := k.EquilibriumEnergy(rho)
+		assert.InEpsilon(t, c.EquilibriumTemperature(n), g.Temperature(eeq), 1e-13)
+		assert.Equal(t, eeq, k.Evolve(rho, eeq, 1e15, math.NaN()))
+		// Round-off in the density or energy does not move it either.
+		near := eeq * (1 + 4e-16)
+		assert.Equal(t, near, k.Evolve(rho*(1+2e-16), near, 1e15, math.NaN()))
 	}
 }
 
@@ -96,46 +105,136 @@ func TestBuiltinTabulation(t *testing.T) {
 	assert.InEpsilon(t, FreeFreeLambda(4e9)+MetalLineLambda(4e9), c.Lambda(4e9), 0.05, "continued past the top node")
 }
 
-// rk4Cool integrates c_V dT/dt = −n^2 Λ(T) (+ n Γ when withHeating) with
-// many small RK4 steps in ln T: the fine ODE reference for Evolve.
-func rk4Cool(c *Curve, n, t, dt, cv float64, withHeating bool, steps int) float64 {
-	f := func(lt float64) float64 {
-		tk := math.Exp(lt)
-		r := -n * n * c.Lambda(tk)
+// The mean mass per particle of solar gas: 1/(X + Y/4) while hydrogen and
+// helium are neutral, 1/(2X + 3Y/4 + Z/2) once both are fully ionized (the
+// count of atoms, ions and electrons per proton mass; common practice), the
+// latter the library's feedback.IonizedMeanMolecularWeight. Hydrogen is
+// half ionized in collisional ionization equilibrium near log T = 4.2
+// (Sutherland & Dopita 1993, ApJS 88, 253; from memory), and helium is
+// mostly doubly ionized above 1e5 K.
+func TestMeanMass(t *testing.T) {
+	g := DefaultGas()
+	x, y := yields.SolarHydrogen, yields.SolarHelium
+	neutral := 1 / (x + y/4)
+	for _, tk := range []float64{1, 10, 100, 1000, 5000} {
+		assert.InEpsilon(t, neutral, g.MeanMass(tk), 1e-9, "T=%v", tk)
+	}
+	assert.InEpsilon(t, neutral, g.MeanMass(8000), 1e-4)
+	assert.InDelta(t, 1.25, neutral, 0.005)
+	for _, tk := range []float64{1e6, 1e7, 1e8, 1e9} {
+		assert.InEpsilon(t, feedback.IonizedMeanMolecularWeight, g.MeanMass(tk), 1e-4, "T=%v", tk)
+	}
+	half := func(f func(float64) float64) float64 {
+		lo, hi := 1e3, 1e7
+		for range 100 {
+			if m := math.Sqrt(lo * hi); f(m) < 0.5 {
+				lo = m
+			} else {
+				hi = m
+			}
+		}
+		return lo
+	}
+	tH := half(func(tk float64) float64 { h, _, _ := IonizationEquilibrium(tk); return h })
+	assert.True(t, tH > math.Pow(10, 4.1) && tH < math.Pow(10, 4.3), "hydrogen half ionized at %v K", tH)
+	_, he1, he2 := IonizationEquilibrium(2e5)
+	assert.Greater(t, he2, 0.99*(he1+he2))
+	// μ falls (never rises) with temperature, so T/μ rises strictly.
+	prev := math.Inf(1)
+	for i := range 20000 {
+		tk := math.Pow(10, 2+7*float64(i)/20000)
+		mu := g.MeanMass(tk)
+		require.LessOrEqual(t, mu, prev*(1+1e-14), "T=%v", tk)
+		prev = mu
+	}
+	// Fixed gas.
+	f, err := NewFixedMeanMassGas(1/x, 0.6, 5.0/3)
+	require.NoError(t, err)
+	assert.Equal(t, 0.6, f.MeanMass(50))
+	assert.Equal(t, 0.6, f.MeanMass(5e6))
+}
+
+// e = k_B T / ((γ − 1) μ(T) m_p) both ways: the temperature of the energy
+// of a temperature is that temperature to round-off, across the ionization
+// range and the table's ends, and temperature never falls as energy rises.
+func TestGasConversions(t *testing.T) {
+	g := DefaultGas()
+	for i := range 5000 {
+		tk := math.Pow(10, -1+11*float64(i)/4999)
+		e := g.SpecificEnergy(tk)
+		require.InEpsilon(t, tk, g.Temperature(e), 1e-13, "T=%v", tk)
+		require.InEpsilon(t, e, g.SpecificEnergy(g.Temperature(e)), 1e-13, "T=%v", tk)
+	}
+	// Node temperatures, and the energies one ulp around them.
+	prev := 0.0
+	for _, tk := range g.energy.temp {
+		e := g.SpecificEnergy(tk)
+		for _, ee := range []float64{math.Nextafter(e, 0), e, math.Nextafter(e, math.Inf(1))} {
+			tt := g.Temperature(ee)
+			require.GreaterOrEqual(t, tt, prev, "e=%v", ee)
+			prev = tt
+		}
+	}
+	// 3/2 k T per particle of an ideal monatomic gas.
+	for _, tk := range []float64{100, 1e4, 1.6e4, 1e6} {
+		mu := g.MeanMass(tk)
+		assert.InEpsilon(t, 1.5*units.Boltzmann*tk/(mu*units.ProtonMass), g.SpecificEnergy(tk), 1e-12, "T=%v", tk)
+	}
+	assert.InEpsilon(t, 2.5, g.HydrogenDensity(g.MassDensity(2.5)), 1e-14)
+	assert.InEpsilon(t, 1/yields.SolarHydrogen, g.MassPerHydrogen(), 1e-15)
+	allocs := testing.AllocsPerRun(100, func() {
+		_ = g.Temperature(g.SpecificEnergy(1.7e4))
+	})
+	assert.Zero(t, allocs)
+}
+
+// rk4Cool integrates de/dt = −(n_H^2 Λ(T(e)) − n_H Γ [withHeating]) / ρ
+// with many small RK4 steps in ln e: the fine ODE reference for
+// Cooler.Evolve, through the gas's T(e) and the curve's Λ(T) only.
+func rk4Cool(c *Curve, g Gas, rho, e, dt float64, withHeating bool, steps int) float64 {
+	n := g.HydrogenDensity(rho)
+	f := func(le float64) float64 {
+		ee := math.Exp(le)
+		r := -n * n * c.Lambda(g.Temperature(ee))
 		if withHeating {
 			r += n * c.Heating()
 		}
-		return r / (cv * tk)
+		return r / (rho * ee)
 	}
-	lt, h := math.Log(t), dt/float64(steps)
+	le, h := math.Log(e), dt/float64(steps)
 	for range steps {
-		k1 := f(lt)
-		k2 := f(lt + h/2*k1)
-		k3 := f(lt + h/2*k2)
-		k4 := f(lt + h*k3)
-		lt += h / 6 * (k1 + 2*k2 + 2*k3 + k4)
+		k1 := f(le)
+		k2 := f(le + h/2*k1)
+		k3 := f(le + h/2*k2)
+		k4 := f(le + h*k3)
+		le += h / 6 * (k1 + 2*k2 + 2*k3 + k4)
 	}
-	return math.Exp(lt)
+	return math.Exp(le)
 }
 
 func TestEvolveMatchesFineIntegration(t *testing.T) {
-	g := DefaultGas()
 	hot, err := Builtin(1)
 	require.NoError(t, err)
-	cold, err := NewCurve(hot.temp, hot.lambda, 0) // cooling only
+	tk, lam := hot.Nodes()
+	cold, err := NewCurve(tk, lam, 0) // cooling only
+	require.NoError(t, err)
+	fixed, err := NewFixedMeanMassGas(1/yields.SolarHydrogen, 0.6, 5.0/3)
 	require.NoError(t, err)
 	cases := []struct {
 		name    string
+		gas     Gas
 		n, t0   float64
 		tcFrac  float64 // dt in units of the initial cooling time
 		heating bool
 	}{
-		{"hot, short", 1, 1e7, 0.01, false},
-		{"hot, long", 1, 1e7, 0.5, false},
-		{"peak crossing", 10, 3e5, 0.3, false},
-		{"through the bridge", 100, 2e5, 0.9, false},
-		{"dense low T", 100, 3e3, 0.5, false},
-		{"with heating, well above T_eq", 1, 1e6, 0.5, true},
+		{"hot, short", DefaultGas(), 1, 1e7, 0.01, false},
+		{"hot, long", DefaultGas(), 1, 1e7, 0.5, false},
+		{"peak crossing", DefaultGas(), 10, 3e5, 0.3, false},
+		{"through the bridge", DefaultGas(), 100, 2e5, 0.9, false},
+		{"through hydrogen recombination", DefaultGas(), 100, 3e4, 0.9, false},
+		{"dense low T", DefaultGas(), 100, 3e3, 0.5, false},
+		{"with heating, well above T_eq", DefaultGas(), 1, 1e6, 0.5, true},
+		{"fixed mean mass, through the bridge", fixed, 100, 2e5, 0.9, false},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -143,54 +242,80 @@ func TestEvolveMatchesFineIntegration(t *testing.T) {
 			if tc.heating {
 				c = hot
 			}
-			rho := g.MassDensity(tc.n)
-			cv := g.HeatCapacity(rho)
-			dt := tc.tcFrac * c.CoolingTime(tc.n, tc.t0, cv)
-			got := c.Evolve(tc.n, tc.t0, dt, cv, math.NaN())
-			want := rk4Cool(c, tc.n, tc.t0, dt, cv, tc.heating, 200000)
+			k, err := NewCooler(c, tc.gas)
+			require.NoError(t, err)
+			rho := tc.gas.MassDensity(tc.n)
+			e0 := tc.gas.SpecificEnergy(tc.t0)
+			dt := tc.tcFrac * k.CoolingTime(rho, e0)
+			got := k.Evolve(rho, e0, dt, math.NaN())
+			want := rk4Cool(c, tc.gas, rho, e0, dt, tc.heating, 200000)
 			tol := 1e-6
 			if tc.heating {
 				tol = 1e-3 // heating neglected above T_eq
 			}
 			assert.InEpsilon(t, want, got, tol)
-			assert.Less(t, got, tc.t0)
+			assert.Less(t, got, e0)
 		})
 	}
 }
 
+// Cooling never carries gas past its equilibrium, from above or below, for
+// any step, and a long step ends on it.
 func TestEvolveNeverOvershoots(t *testing.T) {
 	c, err := Builtin(1)
 	require.NoError(t, err)
-	g := DefaultGas()
-	for _, n := range []float64{0.01, 1, 100, 1e4} {
-		cv := g.HeatCapacity(g.MassDensity(n))
-		teq := c.EquilibriumTemperature(n)
-		for _, t0 := range []float64{2e9, 1e7, 1e5, 1.5e4, 2 * teq, 0.5 * teq, 11} {
-			for _, dt := range []float64{1e6, 1e10, 1e14, 1e20} {
-				t1 := c.Evolve(n, t0, dt, cv, math.NaN())
-				require.False(t, math.IsNaN(t1))
-				if t0 > teq {
-					assert.True(t, t1 >= teq && t1 <= t0, "n=%v T0=%v dt=%v: %v", n, t0, dt, t1)
-				} else {
-					assert.True(t, t1 <= teq && t1 >= t0, "n=%v T0=%v dt=%v: %v", n, t0, dt, t1)
+	for _, g := range []Gas{DefaultGas(), must(NewFixedMeanMassGas(1.355, 0.6, 5.0/3))} {
+		k, err := NewCooler(c, g)
+		require.NoError(t, err)
+		for _, n := range []float64{0.01, 1, 100, 1e4} {
+			rho := g.MassDensity(n)
+			eeq := k.EquilibriumEnergy(rho)
+			teq := c.EquilibriumTemperature(n)
+			for _, t0 := range []float64{2e9, 1e7, 1e5, 2e4, 1.5e4, 2 * teq, 0.5 * teq, 11} {
+				e0 := g.SpecificEnergy(t0)
+				for _, dt := range []float64{1e6, 1e10, 1e14, 1e20} {
+					e1 := k.Evolve(rho, e0, dt, math.NaN())
+					require.False(t, math.IsNaN(e1))
+					if t0 > teq {
+						assert.True(t, e1 >= eeq && e1 <= e0, "n=%v T0=%v dt=%v: %v", n, t0, dt, e1)
+					} else {
+						assert.True(t, e1 <= eeq && e1 >= e0, "n=%v T0=%v dt=%v: %v", n, t0, dt, e1)
+					}
 				}
+				assert.Equal(t, eeq, k.Evolve(rho, e0, 1e30, eeq), "a long step ends at the floor")
 			}
-			assert.Equal(t, teq, c.Evolve(n, t0, 1e30, cv, teq), "a long step ends at the floor")
 		}
 	}
 }
 
-// Splitting a step in two gives the same temperature (the integration is
-// exact, not a first-order update).
+func must[T any](v T, err error) T {
+	if err != nil {
+		panic(err)
+	}
+	return v
+}
+
+// Splitting a step in two gives the same energy (the integration is exact,
+// not a first-order update), also across hydrogen's recombination.
 func TestEvolveComposes(t *testing.T) {
 	c, err := Builtin(0.3)
 	require.NoError(t, err)
 	g := DefaultGas()
-	n := 3.0
-	cv := g.HeatCapacity(g.MassDensity(n))
-	one := c.Evolve(n, 4e6, 2e11, cv, math.NaN())
-	two := c.Evolve(n, c.Evolve(n, 4e6, 1.3e11, cv, math.NaN()), 0.7e11, cv, math.NaN())
-	assert.InEpsilon(t, one, two, 1e-10)
+	k, err := NewCooler(c, g)
+	require.NoError(t, err)
+	for _, tc := range []struct{ n, t0 float64 }{{3, 4e6}, {300, 3e4}} {
+		rho := g.MassDensity(tc.n)
+		e0 := g.SpecificEnergy(tc.t0)
+		dt := 0.8 * k.CoolingTime(rho, e0)
+		one := k.Evolve(rho, e0, dt, math.NaN())
+		two := k.Evolve(rho, k.Evolve(rho, e0, 0.65*dt, math.NaN()), 0.35*dt, math.NaN())
+		assert.InEpsilon(t, one, two, 1e-10)
+		assert.Less(t, one, 0.9*e0)
+	}
+	allocs := testing.AllocsPerRun(100, func() {
+		_ = k.Evolve(g.MassDensity(3), g.SpecificEnergy(4e6), 2e11, math.NaN())
+	})
+	assert.Zero(t, allocs)
 }
 
 func TestNewCurveErrors(t *testing.T) {
@@ -215,15 +340,20 @@ func TestNewCurveErrors(t *testing.T) {
 	assert.ErrorIs(t, err, ErrInput)
 	assert.Error(t, Gas{}.Validate())
 	assert.NoError(t, DefaultGas().Validate())
-}
-
-func TestGasConversions(t *testing.T) {
-	g := DefaultGas()
-	assert.InEpsilon(t, 1e4, g.Temperature(g.SpecificEnergy(1e4)), 1e-14)
-	assert.InEpsilon(t, 2.5, g.HydrogenDensity(g.MassDensity(2.5)), 1e-14)
-	// 1.5 n k T of an ideal monatomic gas: c_V T = n k T / (γ − 1).
-	rho := g.MassDensity(1)
-	assert.InEpsilon(t, rho*g.SpecificEnergy(1e6), g.HeatCapacity(rho)*1e6, 1e-14)
+	for _, f := range [][4]float64{{0, 0.9, 0.1, 5.0 / 3}, {0.7, 0.2, 0.2, 5.0 / 3}, {0.7, 0.3, 0, 1}, {math.NaN(), 0.3, 0, 5.0 / 3}, {1.1, -0.1, 0, 5.0 / 3}} {
+		_, err := NewGas(f[0], f[1], f[2], f[3])
+		assert.ErrorIs(t, err, ErrInput, "%v", f)
+	}
+	for _, f := range [][3]float64{{0, 0.6, 5.0 / 3}, {1.4, math.Inf(1), 5.0 / 3}, {1.4, 0.6, 0.9}} {
+		_, err := NewFixedMeanMassGas(f[0], f[1], f[2])
+		assert.ErrorIs(t, err, ErrInput, "%v", f)
+	}
+	c, err := Builtin(1)
+	require.NoError(t, err)
+	_, err = NewCooler(c, Gas{})
+	assert.ErrorIs(t, err, ErrInput)
+	_, err = NewCooler(nil, DefaultGas())
+	assert.ErrorIs(t, err, ErrInput)
 }
 
 func TestTableRoundTrip(t *testing.T) {

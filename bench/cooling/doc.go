@@ -58,23 +58,43 @@
 // log Λ and Γ linearly in log zeta between blocks; a zeta outside the
 // table's range is an error (ErrOutsideTable), never a clamp.
 //
+// # Gas
+//
+// Gas relates temperature, density and specific internal energy:
+// e = k_B T / ((γ − 1) μ(T) m_p), with μ the mean mass per particle in
+// proton masses. NewGas (and DefaultGas, with the library's solar X, Y, Z:
+// yields.SolarHydrogen, yields.SolarHelium, yields.SolarMetals) lets μ follow
+// the collisional ionization equilibrium of hydrogen and helium
+// (IonizationEquilibrium: the rates of Cen 1992 as listed by Katz, Weinberg
+// & Hernquist 1996): particles per proton mass
+//
+//	1/μ = X (1 + x_H) + (Y/4) (1 + x_He+ + 2 x_He++) + (Z/2) x_H,
+//
+// from 1/(X + Y/4) = 1.250 in neutral gas to 1/(2X + 3Y/4 + Z/2) = 0.599
+// fully ionized, the change happening between 1e4 and 1e5 K (hydrogen half
+// ionized at 1.6e4 K). Metals count as fully ionized (Z/2, the usual
+// approximation) in proportion to hydrogen's ionized fraction; ionization
+// energy is not part of e (common practice in hydrodynamics with cooling
+// functions). μ is tabulated at 200 nodes per decade from 1e3 to 1e8 K with
+// T/μ a power law in T between nodes (constant μ outside), so T(e) is
+// found in closed form, rises with e, and inverts e(T) to round-off.
+// NewFixedMeanMassGas keeps μ fixed at every temperature.
+//
 // # Exact integration
 //
-// Over a step at fixed density the thermal energy obeys the autonomous
-// equation c_V dT/dt = −L(T), with c_V = n k_B / (γ − 1) the heat capacity
-// per volume. Curve.Evolve integrates the cooling term exactly for the
-// piecewise power law (Townsend 2009, ApJS 181, 391): with
-// Y(T) = ∫_T^{T_top} dT'/Λ(T'), known in closed form per segment, the new
-// temperature solves Y(T_new) = Y(T) + n_H^2 dt / c_V. The result never
-// crosses the floor. The floor is the equilibrium temperature T_eq(n_H),
-// the lowest T where n_H Λ(T) = Γ: gas above it cools exactly (heating
-// neglected there, where Λ ≫ Γ/n_H except close to T_eq), gas below it
-// heats at the constant rate n_H Γ (cooling neglected) and stops at T_eq.
-// Gas at T_eq stays there. Near T_eq, where the two terms are comparable,
-// this split relaxes to T_eq faster than the net equation would; the
-// equilibrium state itself is exact.
-//
-// Thermodynamic conversions (temperature from specific internal energy and
-// density) go through Gas: the mass per hydrogen atom, a fixed mean mass per
-// particle and the adiabatic index.
+// A Cooler applies a Curve to a Gas. Over a step at fixed density the heat
+// per unit volume is ρ e = C θ with θ = T/μ(T) and C = ρ k_B / ((γ − 1) m_p)
+// fixed, so the energy equation is the autonomous C dθ/dt = −L. Between
+// two nodes of the curve or of the gas's mean-mass table both Λ and θ are
+// power laws in T, so Λ is a power law in θ, and Cooler.Evolve integrates
+// the cooling term exactly (Townsend 2009, ApJS 181, 391): with
+// Y(θ) = ∫_θ^{θ_top} dθ'/Λ(θ'), known in closed form per segment, the new
+// θ solves Y(θ_new) = Y(θ) + n_H^2 dt / C. The result never crosses the
+// floor. The floor is the equilibrium temperature T_eq(n_H), the lowest T
+// where n_H Λ(T) = Γ: gas above it cools exactly (heating neglected there,
+// where Λ ≫ Γ/n_H except close to T_eq), gas below it heats at the constant
+// rate n_H Γ (cooling neglected) and stops at T_eq. Gas at T_eq stays
+// there. Near T_eq, where the two terms are comparable, this split relaxes
+// to T_eq faster than the net equation would; the equilibrium state itself
+// is exact.
 package cooling

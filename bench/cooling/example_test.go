@@ -15,12 +15,16 @@ func Example() {
 		panic(err)
 	}
 	gas := cooling.DefaultGas()
+	cooler, err := cooling.NewCooler(curve, gas)
+	if err != nil {
+		panic(err)
+	}
 	rho := gas.MassDensity(1)
 	e0 := gas.SpecificEnergy(1e6)
-	e1 := gas.CoolSpecificEnergy(curve, rho, e0, 1e4*3.15576e7, math.NaN())
+	e1 := cooler.Evolve(rho, e0, 1e4*3.15576e7, math.NaN())
 	fmt.Printf("T: %.3g K -> %.3g K, radiated %.3g erg/cm^3\n", gas.Temperature(e0), gas.Temperature(e1), rho*(e0-e1))
-	fmt.Printf("equilibrium at n_H = 1: %.0f K\n", curve.EquilibriumTemperature(1))
+	fmt.Printf("equilibrium at n_H = 1: %.0f K, mean mass %.3f\n", curve.EquilibriumTemperature(1), gas.MeanMass(curve.EquilibriumTemperature(1)))
 	// Output:
 	// T: 1e+06 K -> 9.22e+05 K, radiated 3.65e-11 erg/cm^3
-	// equilibrium at n_H = 1: 5006 K
+	// equilibrium at n_H = 1: 5006 K, mean mass 1.250
 }

@@ -188,11 +188,11 @@ func WriteTable(w io.Writer, zs []float64, curves []*Curve) error {
 		if i > 0 && !(zs[i] > zs[i-1]) {
 			return fmt.Errorf("cooling: write table: metallicities must rise: %w", ErrInput)
 		}
-		if len(c.temp) != len(curves[0].temp) {
+		if len(c.law.x) != len(curves[0].law.x) {
 			return fmt.Errorf("cooling: write table: curves on different temperature grids: %w", ErrInput)
 		}
-		for k := range c.temp {
-			if _, err := fmt.Fprintf(w, "%s,%s,%s,%s\n", fmtFloat(math.Log10(c.temp[k])), fmtFloat(zs[i]), fmtFloat(c.lambda[k]), fmtFloat(c.heating)); err != nil {
+		for k := range c.law.x {
+			if _, err := fmt.Fprintf(w, "%s,%s,%s,%s\n", fmtFloat(math.Log10(c.law.x[k])), fmtFloat(zs[i]), fmtFloat(c.law.f[k]), fmtFloat(c.heating)); err != nil {
 				return fmt.Errorf("cooling: write table: %w", err)
 			}
 		}

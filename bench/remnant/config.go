@@ -40,7 +40,10 @@ type Config struct {
 	// NoCooling switches radiative cooling and heating off.
 	NoCooling bool
 	// Gas relates temperature and internal energy (DefaultConfig:
-	// cooling.DefaultGas()). The hydrodynamics use its Gamma.
+	// cooling.DefaultGas(), whose mean mass per particle follows the
+	// ionization of hydrogen and helium: 1.25 in the cold shell and the
+	// neutral ambient gas, 0.6 in the hot interior). The hydrodynamics use
+	// its Gamma.
 	Gas cooling.Gas
 	// ZonesPerShellRadius sets the resolution: zones across the estimated
 	// shell-formation radius (DefaultConfig: 100). The grid is uniform in

@@ -41,8 +41,9 @@
 // beyond its mean motion; the energy fluxes then drain the zone's heat
 // below zero while the momentum fluxes keep its kinetic energy. At n_H = 1
 // with 100 zones per shell radius that needed 0.70 of the explosion energy
-// of heat added back (1.10 at 200 zones) over ten shell-formation times,
-// all of it radiated again. With the cap none is needed, and the shell
+// of heat added back (1.10 at 200 zones) over ten shell-formation times
+// with μ held at 0.6, 1.07 with the ionization-dependent μ of
+// cooling.DefaultGas, all of it radiated again. With the cap none is needed, and the shell
 // formation point does not move (it precedes the cold shell).
 //
 // Each zone also carries its internal energy ρe as a separate quantity,

@@ -36,10 +36,11 @@ const internalScalar = 1
 // steradian inside; diagnostics multiply by 4π. A Solver is not safe for
 // concurrent use; separate Solvers are independent.
 type Solver struct {
-	cfg   Config
-	gas   cooling.Gas
-	eos   hydro.IdealGas
-	curve *cooling.Curve // nil without cooling
+	cfg    Config
+	gas    cooling.Gas
+	eos    hydro.IdealGas
+	curve  *cooling.Curve  // nil without cooling
+	cooler *cooling.Cooler // the curve applied to the gas; nil without cooling
 
 	n             int
 	dr            float64
@@ -50,11 +51,12 @@ type Solver struct {
 	w             []hydro.Prim // n+4 with ghosts
 	flux          []hydro.Cons // n+1
 	contact       []float64    // face velocities, n+1
-	teq           []float64    // equilibrium temperature cache per zone
-	teqRho        []float64    // density the cache is for
+	eeq           []float64    // equilibrium specific energy cache per zone
+	eeqRho        []float64    // density the cache is for
 	ambient       hydro.Prim
 	ambientEnergy float64 // initial total energy per unit volume of the ambient gas
 	eFloor        float64 // specific internal energy at the floor temperature
+	eHot          float64 // specific internal energy at HotTemperature
 
 	time, dt      float64
 	steps         int
@@ -124,6 +126,11 @@ func New(cfg Config) (*Solver, error) {
 			}
 			s.curve = c
 		}
+		k, err := cooling.NewCooler(s.curve, cfg.Gas)
+		if err != nil {
+			return nil, fmt.Errorf("remnant: %w", err)
+		}
+		s.cooler = k
 	}
 	s.tEstimate, s.rEstimate = shellEstimate(cfg.Energy, cfg.Density)
 	s.tEnd = cfg.EndShellTimes * s.tEstimate
@@ -148,11 +155,12 @@ func New(cfg Config) (*Solver, error) {
 	s.w = make([]hydro.Prim, n+4)
 	s.flux = make([]hydro.Cons, n+1)
 	s.contact = make([]float64, n+1)
-	s.teq = make([]float64, n)
-	s.teqRho = make([]float64, n)
+	s.eeq = make([]float64, n)
+	s.eeqRho = make([]float64, n)
 
 	// Ambient medium.
 	s.eFloor = s.gas.SpecificEnergy(floorTemperature)
+	s.eHot = s.gas.SpecificEnergy(HotTemperature)
 	rho0 := s.gas.MassDensity(cfg.Density)
 	t0 := cfg.AmbientTemperature
 	if cfg.AmbientAtEquilibrium {
@@ -316,11 +324,9 @@ func (s *Solver) timeStep() float64 {
 		w := s.w[i+2]
 		c := s.eos.SoundSpeed(w)
 		cfl = math.Min(cfl, s.dr/(math.Abs(w.Vx)+c))
-		if s.curve != nil {
-			t := s.gas.Temperature(s.eos.InternalEnergy(w))
-			if t > HotTemperature {
-				nH := s.gas.HydrogenDensity(w.Rho)
-				cool = math.Min(cool, s.curve.CoolingTime(nH, t, s.gas.HeatCapacity(w.Rho)))
+		if s.cooler != nil {
+			if e := s.eos.InternalEnergy(w); e > s.eHot {
+				cool = math.Min(cool, s.cooler.CoolingTime(w.Rho, e))
 			}
 		}
 	}
@@ -371,12 +377,12 @@ func (s *Solver) thermal(dt float64) error {
 		rho := c.Mass
 		kin := 0.5 * c.MomX * c.MomX / rho
 		e := c.Scalar[internalScalar] / rho
-		if s.curve != nil {
-			if s.teqRho[i] != rho {
-				s.teqRho[i] = rho
-				s.teq[i] = s.curve.EquilibriumTemperature(s.gas.HydrogenDensity(rho))
+		if s.cooler != nil {
+			if s.eeqRho[i] != rho {
+				s.eeqRho[i] = rho
+				s.eeq[i] = s.cooler.EquilibriumEnergy(rho)
 			}
-			e1 := s.gas.CoolSpecificEnergy(s.curve, rho, e, dt, s.teq[i])
+			e1 := s.cooler.Evolve(rho, e, dt, s.eeq[i])
 			if e1 != e {
 				radiated += (e - e1) * rho * s.vol[i]
 				e = e1
@@ -384,7 +390,7 @@ func (s *Solver) thermal(dt float64) error {
 				c.Scalar[internalScalar] = rho * e
 			}
 		}
-		if s.gas.Temperature(e) > HotTemperature {
+		if e > s.eHot {
 			hot += rho * s.vol[i]
 		}
 	}
@@ -543,7 +549,7 @@ func (s *Solver) hotMass() float64 {
 	var hot float64
 	for i, c := range s.u {
 		e := (c.Energy - 0.5*c.MomX*c.MomX/c.Mass) / c.Mass
-		if s.gas.Temperature(e) > HotTemperature {
+		if e > s.eHot {
 			hot += c.Mass * s.vol[i]
 		}
 	}

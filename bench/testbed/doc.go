@@ -17,7 +17,7 @@
 // periodic pencil closes on itself is computed once and used on both
 // sides, so mass, momentum and energy are conserved to round-off. After the
 // hydrodynamics, every cell's cooling is integrated exactly over the step
-// (cooling.Curve.Evolve, Townsend 2009), and the energy removed, net of
+// (cooling.Cooler.Evolve, Townsend 2009), and the energy removed, net of
 // heating, is booked in the grid's Ledger: the total energy is the initial
 // energy plus what feedback injected minus what was radiated, to
 // round-off. The step is Courant × dx over the largest signal speed.

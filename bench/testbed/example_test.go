@@ -69,7 +69,7 @@ func ExampleRun() {
 		fmt.Printf("%s: %.1f of the 1D reference's momentum\n", o.Scheme, o.MomentumRatio())
 	}
 	// Output:
-	// thermal-dump: 0.1 of the 1D reference's momentum
+	// thermal-dump: 0.0 of the 1D reference's momentum
 	// terminal-momentum: 1.0 of the 1D reference's momentum
 	// terminal-momentum-calibrated: 1.0 of the 1D reference's momentum
 }

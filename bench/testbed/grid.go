@@ -126,6 +126,8 @@ type Grid struct {
 
 	view feedback.Gas
 
+	// cooler applies cfg.Cooling to cfg.Thermo; nil without cooling.
+	cooler *cooling.Cooler
 	// Cooling conversions to cgs.
 	rhoCGS, eCGS, tCGS float64
 	// eFloor is the specific internal energy floor (code).
@@ -199,6 +201,13 @@ func NewGrid(cfg GridConfig) (*Grid, error) {
 	n := cfg.Cells
 	cells := n * n * n
 	g := &Grid{cfg: cfg, n: n, dx: cfg.Size / float64(n), gas: hydro.IdealGas{Gamma: cfg.Thermo.Gamma}}
+	if cfg.Cooling != nil {
+		k, err := cooling.NewCooler(cfg.Cooling, cfg.Thermo)
+		if err != nil {
+			return nil, fmt.Errorf("testbed: %w", err)
+		}
+		g.cooler = k
+	}
 	g.volume = g.dx * g.dx * g.dx
 	alloc := func() []float64 { return make([]float64, cells) }
 	g.mass, g.dens, g.eint, g.metal, g.holdUntil = alloc(), alloc(), alloc(), alloc(), alloc()

@@ -42,15 +42,13 @@ func (g *Grid) signalPlane(k int) {
 	}
 	g.planes[k].maxSpeed = s
 	tc := math.Inf(1)
-	if curve := g.cfg.Cooling; curve != nil && g.cfg.CoolingCourant > 0 {
-		th := g.cfg.Thermo
-		eHot := th.SpecificEnergy(CoolingStepTemperature) / g.eCGS
+	if g.cooler != nil && g.cfg.CoolingCourant > 0 {
+		eHot := g.cfg.Thermo.SpecificEnergy(CoolingStepTemperature) / g.eCGS
 		for c := k * n * n; c < (k+1)*n*n; c++ {
 			if g.eint[c] <= eHot || g.holdUntil[c] > g.time {
 				continue
 			}
-			rho := g.dens[c] * g.rhoCGS
-			tc = math.Min(tc, curve.CoolingTime(th.HydrogenDensity(rho), th.Temperature(g.eint[c]*g.eCGS), th.HeatCapacity(rho)))
+			tc = math.Min(tc, g.cooler.CoolingTime(g.dens[c]*g.rhoCGS, g.eint[c]*g.eCGS))
 		}
 		tc /= g.tCGS
 	}
@@ -88,15 +86,13 @@ func (g *Grid) Step(dt float64) error {
 	return nil
 }
 
-// coolPlane integrates the cooling of plane k over the step (Curve.Evolve,
+// coolPlane integrates the cooling of plane k over the step (Cooler.Evolve,
 // exact for the piecewise power law), skipping cells whose cooling is held,
 // and sums the energy radiated.
 func (g *Grid) coolPlane(k int) {
 	n := g.n
 	ps := &g.planes[k]
 	ps.radiated = 0
-	curve := g.cfg.Cooling
-	th := g.cfg.Thermo
 	dt := g.coolDt * g.tCGS
 	for c := k * n * n; c < (k+1)*n*n; c++ {
 		if g.holdUntil[c] > g.time {
@@ -104,7 +100,7 @@ func (g *Grid) coolPlane(k int) {
 		}
 		e := g.eint[c]
 		ecgs := e * g.eCGS
-		e1cgs := th.CoolSpecificEnergy(curve, g.dens[c]*g.rhoCGS, ecgs, dt, math.NaN())
+		e1cgs := g.cooler.Evolve(g.dens[c]*g.rhoCGS, ecgs, dt, math.NaN())
 		if e1cgs == ecgs {
 			continue
 		}
