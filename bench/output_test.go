@@ -35,7 +35,7 @@ func smallResult(t *testing.T) *Result {
 	return res
 }
 
-func TestFiguresAreLabelled(t *testing.T) {
+func TestFiguresAreLabeled(t *testing.T) {
 	res := smallResult(t)
 	figs, err := Figures(res)
 	require.NoError(t, err)

@@ -37,9 +37,6 @@ const (
 	Parsec = 648000 / math.Pi * 1.495978707e13
 	// Kilometer in cm (SI).
 	Kilometer = 1e5
-	// Kilometre is Kilometer under its former name, left for the one
-	// caller not yet moved over (the bench command); remove with it.
-	Kilometre = Kilometer
 	// JulianYear in s: 365.25 days of 86400 s (IAU).
 	JulianYear = 3.15576e7
 	// Megayear is 1e6 Julian years in s.

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"flag"
 	"fmt"
 	"io"
 	"math"
@@ -27,6 +28,7 @@ type benchFlags struct {
 	boxSize                             float64
 	neighbors, workers                  int
 	seed                                uint64
+	neighborsGiven, seedGiven           bool // set by the command line, not left at their defaults
 	skipSpeed, skipOutcome, quiet, list bool
 }
 
@@ -53,11 +55,11 @@ func runBench(args []string, stdout, stderr io.Writer) int {
 	fs.StringVar(&f.gasDir, "gas", "", "directory of .npy arrays holding your own gas (pos, vel, mass, density, internal_energy; optional id, metallicity, stars); replaces the built-in set-ups. Every position must lie in the box of -box-size; a star outside the region the gas fills is refused")
 	fs.Float64Var(&f.lengthCm, "length-unit-cm", units.Parsec, "with -gas: cm per code length unit (default 3.0857e18, 1 pc)")
 	fs.Float64Var(&f.massG, "mass-unit-g", units.SolarMass, "with -gas: g per code mass unit (default 1.9884e33, 1 Msun)")
-	fs.Float64Var(&f.velocityCmPS, "velocity-unit-cms", units.Kilometre, "with -gas: cm/s per code velocity unit (default 1e5, 1 km/s)")
+	fs.Float64Var(&f.velocityCmPS, "velocity-unit-cms", units.Kilometer, "with -gas: cm/s per code velocity unit (default 1e5, 1 km/s)")
 	fs.Float64Var(&f.boxSize, "box-size", 0, "with -gas: side of the periodic cubic box [0, L) in code length units (0: open box)")
-	fs.IntVar(&f.neighbors, "neighbors", 0, "gas elements each star couples to (0: the suite's, 64)")
+	fs.IntVar(&f.neighbors, "neighbors", 0, "gas elements each star couples to (when not given: the suite's, 64)")
 	fs.IntVar(&f.workers, "workers", runtime.NumCPU(), "goroutines per coupler, and 3D outcome cases run at once (results other than speed do not depend on it)")
-	fs.Uint64Var(&f.seed, "seed", 0, "seed of the built-in set-ups (0: the suite's)")
+	fs.Uint64Var(&f.seed, "seed", 0, "seed of the built-in set-ups (when not given: the suite's; 0 is a seed like any other)")
 	fs.BoolVar(&f.skipSpeed, "skip-speed", false, "skip the speed measurement (no speed table or plot is written)")
 	fs.BoolVar(&f.skipOutcome, "skip-outcome", false, "skip the evolved outcome on the 3D grid (the suite's longest part; no outcome table or plots are written)")
 	fs.BoolVar(&f.quiet, "quiet", false, "no progress bar")
@@ -65,6 +67,14 @@ func runBench(args []string, stdout, stderr io.Writer) int {
 	if code, ok := benchCommand.parseFlags(fs, args, stdout, stderr); !ok {
 		return code
 	}
+	fs.Visit(func(fl *flag.Flag) {
+		switch fl.Name {
+		case "neighbors":
+			f.neighborsGiven = true
+		case "seed":
+			f.seedGiven = true
+		}
+	})
 	if fs.NArg() > 0 {
 		fmt.Fprintf(stderr, "ejecta bench: unexpected arguments %q\n", fs.Args())
 		return 2
@@ -83,7 +93,7 @@ func runBench(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ejecta bench: %v\n", err)
 		return 1
 	}
-	summarise(stdout, res)
+	summarize(stdout, res)
 	fmt.Fprintln(stdout, "\nwritten:")
 	for _, p := range files {
 		fmt.Fprintf(stdout, "  %s\n", p)
@@ -135,13 +145,13 @@ func benchResult(f *benchFlags, stderr io.Writer) (*bench.Result, error) {
 		}
 		schemes = append(schemes, bench.RemnantTableScheme(tab, f.remnantTable))
 	}
-	if f.neighbors < 0 {
-		return nil, fmt.Errorf("neighbor count %d must be positive", f.neighbors)
-	}
-	if f.neighbors > 0 {
+	if f.neighborsGiven {
+		if f.neighbors < 1 {
+			return nil, fmt.Errorf("neighbor count %d must be positive", f.neighbors)
+		}
 		suite.Neighbors = f.neighbors
 	}
-	if f.seed != 0 {
+	if f.seedGiven {
 		suite.Seed = f.seed
 	}
 	if f.skipOutcome {
@@ -208,10 +218,10 @@ func (p *progress) finish() {
 	}
 }
 
-// summarise prints the headline figures: speed, worst isotropy residual
+// summarize prints the headline figures: speed, worst isotropy residual
 // per set-up, and the momentum at the reference density on each set-up,
 // each table followed by what its columns mean.
-func summarise(w io.Writer, res *bench.Result) {
+func summarize(w io.Writer, res *bench.Result) {
 	fmt.Fprintf(w, "ejecta bench: suite %s, %d schemes, %d set-ups, %d neighbors, one %.3g erg SN with %g Msun ejecta per star\n",
 		res.Suite, len(res.Schemes), len(res.Setups), res.Neighbors, res.SupernovaEnergyErg, res.EjectaMassMsun)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
@@ -229,7 +239,7 @@ func summarise(w io.Writer, res *bench.Result) {
 				"writes of the same gas fields, no physics), timed alternately in the same run; 1 would be the memory floor")
 	}
 
-	summariseOutcome(w, res)
+	summarizeOutcome(w, res)
 
 	fmt.Fprintln(w, "\nworst isotropy residual per set-up (worst star over its cases):")
 	oneSided := map[string]int{}
@@ -323,10 +333,10 @@ func summarise(w io.Writer, res *bench.Result) {
 	}
 }
 
-// summariseOutcome prints, for each density and measurement time, the
+// summarizeOutcome prints, for each density and measurement time, the
 // radial momentum each scheme delivered on the 3D grid over the 1D
 // reference's, by cell mass in cooling masses.
-func summariseOutcome(w io.Writer, res *bench.Result) {
+func summarizeOutcome(w io.Writer, res *bench.Result) {
 	if len(res.Outcome) == 0 {
 		return
 	}

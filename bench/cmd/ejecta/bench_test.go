@@ -189,6 +189,7 @@ func TestBenchCommandErrors(t *testing.T) {
 		{"unknown set-up", []string{"-setups", "moon"}, 1, "unknown set-up"},
 		{"unknown suite", []string{"-suite", "huge"}, 1, "unknown suite"},
 		{"negative neighbors", []string{"-neighbors", "-3"}, 1, "neighbor count"},
+		{"zero neighbors means zero, refused", []string{"-neighbors", "0"}, 1, "neighbor count"},
 		{"empty gas dir", []string{"-gas", gasDir}, 1, "pos.npy"},
 		{"gas and set-ups", []string{"-gas", gasDir, "-setups", "glass"}, 1, "exclude"},
 		{"bad units", []string{"-gas", gasDir, "-length-unit-cm", "0"}, 1, "read gas"},

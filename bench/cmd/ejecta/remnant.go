@@ -10,6 +10,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -108,7 +109,7 @@ func runRemnant(args []string, stdout, stderr io.Writer) int {
 	calibrate := fs.Bool("calibrate", false, "run the grid of -densities and -metallicities and write a remnant table")
 	densities := fs.String("densities", "0.1,1,10,100", "with -calibrate: comma-separated densities in cm^-3")
 	metallicities := fs.String("metallicities", "0.1,0.3,1", "with -calibrate: comma-separated metallicities in solar units")
-	workers := fs.Int("workers", 0, "with -calibrate: runs at once (0: one per core)")
+	workers := fs.Int("workers", runtime.NumCPU(), "with -calibrate: runs at once (at least 1; results do not depend on it)")
 	quiet := fs.Bool("quiet", false, "no progress bar")
 	if code, ok := remnantCommand.parseFlags(fs, args, stdout, stderr); !ok {
 		return code
@@ -358,6 +359,10 @@ func parseFloatList(name, s string) ([]float64, error) {
 }
 
 func runCalibration(cfg remnant.Config, table *cooling.Table, densities, metallicities string, workers int, outDir string, quiet bool, stdout, stderr io.Writer) int {
+	if workers < 1 {
+		fmt.Fprintf(stderr, "ejecta remnant: -workers %d: want at least 1\n", workers)
+		return 2
+	}
 	ns, err := parseFloatList("densities", densities)
 	if err != nil {
 		fmt.Fprintf(stderr, "ejecta remnant: %v\n", err)

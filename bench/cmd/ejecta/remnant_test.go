@@ -75,6 +75,7 @@ func TestRemnantFlagErrors(t *testing.T) {
 		{"-calibrate", "-no-cooling"},
 		{"-calibrate", "-densities", "1,x"},
 		{"-calibrate", "-densities", "10,1"},
+		{"-calibrate", "-workers", "0"},
 	} {
 		var out, errOut bytes.Buffer
 		code := run(append([]string{"remnant", "-out", dir}, args...), &out, &errOut)
