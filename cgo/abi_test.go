@@ -330,7 +330,7 @@ func TestDestroyedAndBusyContexts(t *testing.T) {
 	require.Equal(t, codeOK, entryCreate(&c, &h, nil, 0))
 	stale := h
 	// Busy: a call while another holds the context is refused.
-	s, err := lookup(h)
+	s, err := contexts().lookup(h)
 	require.NoError(t, err)
 	s.mu.Lock()
 	g := newTestGas(3, 6, 1)

@@ -15,6 +15,7 @@
 //
 //	exports.go     the //export wrappers, one per function of ejecta.h
 //	errors.go      error codes, the mapping of failure kinds to codes (codeForFailure), panic guard
+//	handle.go      handleTable: the handle rules of contexts and dump sessions (0, deleted, busy, last error)
 //	session.go     the context: session, its phases (one state machine), create/destroy/last_error
 //	config.go      ejecta_config: its Go mirror, parsing, defaults, ejecta_version
 //	gas.go         ejecta_field/ejecta_gas: element types, columns, binding and what derives from it

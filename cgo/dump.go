@@ -7,10 +7,8 @@ import (
 	"math"
 	"os"
 	"path/filepath"
-	"runtime/cgo"
 	"slices"
 	"strings"
-	"sync"
 	"unsafe"
 
 	"github.com/ejecta-dev/ejecta/feedback"
@@ -42,7 +40,8 @@ type starColumnsABI struct {
 	SpeciesMass    *fieldABI
 }
 
-// dumpPhase is how far a dump session got.
+// dumpPhase is how far a dump session got (ejecta_dump_close releases
+// the handle in either phase: handleState.released).
 type dumpPhase uint8
 
 const (
@@ -50,16 +49,12 @@ const (
 	dumpOpen dumpPhase = iota
 	// dumpFinished: the manifest was written; only close remains.
 	dumpFinished
-	// dumpClosed: the handle was deleted; only a call that raced
-	// ejecta_dump_close can still see the session.
-	dumpClosed
 )
 
 // dumpSession is the state behind one ejecta_dump handle.
 type dumpSession struct {
-	mu      sync.Mutex
-	phase   dumpPhase
-	lastErr string
+	handleState
+	phase dumpPhase
 
 	dir string
 	set yields.SpeciesSet
@@ -85,49 +80,38 @@ const dumpPathField = "dump directory"
 
 // entryDumpOpen is behind ejecta_dump_open.
 func entryDumpOpen(dir, species *byte, box *[3]float64, out *uint64, errText *byte, capacity int64) int32 {
-	err := guard(func() error {
-		if out == nil {
-			return fail(codeNullPointer, "dump handle pointer is NULL")
-		}
-		*out = 0
+	return dumps().open("ejecta_dump_open", out, errText, capacity, func() (*dumpSession, error) {
 		if dir == nil {
-			return fail(codeNullPointer, "%s is NULL", dumpPathField)
+			return nil, fail(codeNullPointer, "%s is NULL", dumpPathField)
 		}
 		path, err := cPath(dumpPathField, dir)
 		if err != nil {
-			return err
+			return nil, err
 		}
 		if path == "" {
-			return fail(codeInvalidArgument, "%s is empty", dumpPathField)
+			return nil, fail(codeInvalidArgument, "%s is empty", dumpPathField)
 		}
 		list, err := cList(species)
 		if err != nil {
-			return err
+			return nil, err
 		}
 		s := &dumpSession{dir: path}
 		if list != "" {
 			if s.set, err = yields.ParseSpeciesSet(list); err != nil {
-				return fail(codeInvalidArgument, "species: %w", err)
+				return nil, fail(codeInvalidArgument, "species: %w", err)
 			}
 		}
 		if box != nil {
 			s.box = neighbor.Box{Size: *box}
 			if err := s.box.Validate(); err != nil {
-				return fail(codeInvalidArgument, "box_size: %w", err)
+				return nil, fail(codeInvalidArgument, "box_size: %w", err)
 			}
 		}
 		if err := s.prepareFolder(); err != nil {
-			return err
+			return nil, err
 		}
-		*out = uint64(cgo.NewHandle(s))
-		return nil
+		return s, nil
 	})
-	if err != nil {
-		putText(errText, capacity, "ejecta_dump_open: "+err.Error())
-	} else {
-		putText(errText, capacity, "")
-	}
-	return codeOf(err)
 }
 
 // prepareFolder creates the dump's folders and removes the manifest of an
@@ -145,62 +129,26 @@ func (s *dumpSession) prepareFolder() error {
 	return nil
 }
 
-// lookupDump turns a handle into its dump session, refusing 0, closed
-// handles and handles of other values without crashing.
-func lookupDump(h uint64) (s *dumpSession, err error) {
-	if h == 0 {
-		return nil, fail(codeInvalidContext, "dump handle 0 is not a dump session (never opened, or closed)")
-	}
-	defer func() {
-		if r := recover(); r != nil {
-			s, err = nil, fail(codeInvalidContext, "dump handle %#x is not a live dump session (closed or never opened)", h)
-		}
-	}()
-	v, ok := cgo.Handle(uintptr(h)).Value().(*dumpSession)
-	if !ok {
-		return nil, fail(codeInvalidContext, "handle %#x is not a dump session", h)
-	}
-	return v, nil
-}
-
-// claimDump looks up the session of h and locks it for one call; the
-// caller unlocks it.
-func claimDump(h uint64) (*dumpSession, error) {
-	s, err := lookupDump(h)
-	if err != nil {
-		return nil, err
-	}
-	if !s.mu.TryLock() {
-		return nil, fail(codeBusy, "dump session %#x is in use by another call", h)
-	}
-	if s.phase == dumpClosed {
-		s.mu.Unlock()
-		return nil, fail(codeInvalidContext, "dump session %#x was closed", h)
-	}
-	return s, nil
+// dumps is the table of dump session handles.
+func dumps() handleTable[*dumpSession] {
+	return handleTable[*dumpSession]{words: handleWords{
+		zero:        "dump handle 0 is not a dump session (never opened, or closed)",
+		dead:        "dump handle %#x is not a live dump session (closed or never opened)",
+		foreign:     "handle %#x is not a dump session",
+		busy:        "dump session %#x is in use by another call",
+		released:    "dump session %#x was closed",
+		nullPointer: "dump handle pointer is NULL",
+	}}
 }
 
 // withDump runs fn on the open dump session of h, one call at a time,
 // recording the outcome as the session's last error.
 func withDump(h uint64, fn func(s *dumpSession) error) int32 {
-	return run(func() error {
-		s, err := claimDump(h)
-		if err != nil {
-			return err
+	return dumps().with(h, func(s *dumpSession) error {
+		if s.phase != dumpOpen {
+			return fail(codeInvalidArgument, "the dump was already finished: open a new dump session for another step")
 		}
-		defer s.mu.Unlock()
-		err = guard(func() error {
-			if s.phase != dumpOpen {
-				return fail(codeInvalidArgument, "the dump was already finished: open a new dump session for another step")
-			}
-			return fn(s)
-		})
-		if err != nil {
-			s.lastErr = err.Error()
-		} else {
-			s.lastErr = ""
-		}
-		return err
+		return fn(s)
 	})
 }
 
@@ -609,50 +557,9 @@ func entryDumpFinish(h uint64) int32 {
 }
 
 // entryDumpClose is behind ejecta_dump_close.
-func entryDumpClose(h *uint64) int32 {
-	return run(func() error {
-		if h == nil {
-			return fail(codeNullPointer, "dump handle pointer is NULL")
-		}
-		if *h == 0 {
-			return nil
-		}
-		s, err := claimDump(*h)
-		if err != nil {
-			return err
-		}
-		defer s.mu.Unlock()
-		s.phase = dumpClosed
-		cgo.Handle(uintptr(*h)).Delete()
-		*h = 0
-		return nil
-	})
-}
+func entryDumpClose(h *uint64) int32 { return dumps().release(h) }
 
 // entryDumpLastError is behind ejecta_dump_last_error.
 func entryDumpLastError(h uint64, buf *byte, capacity int64, length *int64) int32 {
-	return run(func() error {
-		if buf == nil && capacity > 0 {
-			return fail(codeNullPointer, "buffer is NULL with capacity %d", capacity)
-		}
-		var msg string
-		s, err := claimDump(h)
-		if err != nil {
-			msg = err.Error()
-		} else {
-			msg = s.lastErr
-			s.mu.Unlock()
-		}
-		if length != nil {
-			*length = int64(len(msg))
-		}
-		fits := putText(buf, capacity, msg)
-		if err != nil {
-			return err
-		}
-		if !fits {
-			return fail(codeBufferTooSmall, "message of %d bytes truncated", len(msg))
-		}
-		return nil
-	})
+	return dumps().lastError(h, buf, capacity, length)
 }

@@ -285,7 +285,7 @@ func TestDumpHandles(t *testing.T) {
 	d, _ := openDump(t, "")
 	assert.Equal(t, codeInvalidContext, entryBindGas(d, &g.desc), "a dump session is not a context")
 
-	s, err := lookupDump(d)
+	s, err := dumps().lookup(d)
 	require.NoError(t, err)
 	s.mu.Lock()
 	assert.Equal(t, codeBusy, entryDumpGasBefore(d, &g.desc))

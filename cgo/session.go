@@ -1,11 +1,6 @@
 package main
 
-import (
-	"runtime/cgo"
-	"sync"
-
-	"github.com/ejecta-dev/ejecta/feedback"
-)
+import "github.com/ejecta-dev/ejecta/feedback"
 
 // phase is where a context stands. Every entry that depends on earlier
 // calls asks the phase, and only the transitions below change it:
@@ -14,11 +9,11 @@ import (
 //	any live --bind failed-->          unbound
 //	bound, stepped, applied --step-->  stepped  (records, ledger kept)
 //	stepped  --apply step records-->   applied
-//	any live --destroy-->              destroyed
 //
 // A step that fails before coupling changes nothing; one that fails while
 // coupling (or whose gas is refused after it) drops its results and
-// leaves the context bound.
+// leaves the context bound. ejecta_destroy releases the handle in any
+// phase (handleState.released).
 type phase uint8
 
 const (
@@ -30,9 +25,6 @@ const (
 	phaseStepped
 	// phaseApplied: the last step's records were applied.
 	phaseApplied
-	// phaseDestroyed: the handle was deleted; only a call that raced
-	// ejecta_destroy can still see the session.
-	phaseDestroyed
 )
 
 // stepKind is which call made the results a context holds.
@@ -48,9 +40,8 @@ const (
 // session is the state behind one context handle. Every field is reached
 // through the handle; nothing is shared between sessions.
 type session struct {
-	mu      sync.Mutex
-	phase   phase
-	lastErr string
+	handleState
+	phase phase
 
 	cfg feedback.Config
 	// opts are the built-in schemes' settings of ejecta_config (the seed
@@ -98,131 +89,37 @@ func (s *session) dropResults() {
 	}
 }
 
-// lookup turns a handle into its session, refusing 0, destroyed handles
-// and handles of other values without crashing.
-func lookup(h uint64) (s *session, err error) {
-	if h == 0 {
-		return nil, fail(codeInvalidContext, "context 0 is not a context (never created, or destroyed)")
-	}
-	defer func() {
-		if r := recover(); r != nil {
-			s, err = nil, fail(codeInvalidContext, "context %#x is not a live ejecta context (destroyed or never created)", h)
-		}
-	}()
-	v, ok := cgo.Handle(uintptr(h)).Value().(*session)
-	if !ok {
-		return nil, fail(codeInvalidContext, "context %#x is not an ejecta context", h)
-	}
-	return v, nil
-}
-
-// claim looks up the session of h and locks it for one call; the caller
-// unlocks it.
-func claim(h uint64) (*session, error) {
-	s, err := lookup(h)
-	if err != nil {
-		return nil, err
-	}
-	if !s.mu.TryLock() {
-		return nil, fail(codeBusy, "context %#x is in use by another call", h)
-	}
-	if s.phase == phaseDestroyed {
-		s.mu.Unlock()
-		return nil, fail(codeInvalidContext, "context %#x was destroyed", h)
-	}
-	return s, nil
+// contexts is the table of context handles.
+func contexts() handleTable[*session] {
+	return handleTable[*session]{words: handleWords{
+		zero:        "context 0 is not a context (never created, or destroyed)",
+		dead:        "context %#x is not a live ejecta context (destroyed or never created)",
+		foreign:     "context %#x is not an ejecta context",
+		busy:        "context %#x is in use by another call",
+		released:    "context %#x was destroyed",
+		nullPointer: "context pointer is NULL",
+	}}
 }
 
 // withSession runs fn on the session of h, one call at a time, recording
 // the outcome (a recovered panic included) as the session's last error.
-func withSession(h uint64, fn func(s *session) error) int32 {
-	return run(func() error {
-		s, err := claim(h)
-		if err != nil {
-			return err
-		}
-		defer s.mu.Unlock()
-		err = guard(func() error { return fn(s) })
-		if err != nil {
-			s.lastErr = err.Error()
-		} else {
-			s.lastErr = ""
-		}
-		return err
-	})
-}
+func withSession(h uint64, fn func(s *session) error) int32 { return contexts().with(h, fn) }
 
 // entryCreate is behind ejecta_create.
 func entryCreate(c *configABI, out *uint64, errText *byte, capacity int64) int32 {
-	err := guard(func() error {
-		if out == nil {
-			return fail(codeNullPointer, "context pointer is NULL")
-		}
-		*out = 0
+	return contexts().open("ejecta_create", out, errText, capacity, func() (*session, error) {
 		cfg, opts, err := parseConfig(c)
 		if err != nil {
-			return err
+			return nil, err
 		}
-		s, err := newSession(cfg, opts)
-		if err != nil {
-			return err
-		}
-		*out = uint64(cgo.NewHandle(s))
-		return nil
+		return newSession(cfg, opts)
 	})
-	if err != nil {
-		putText(errText, capacity, "ejecta_create: "+err.Error())
-	} else {
-		putText(errText, capacity, "")
-	}
-	return codeOf(err)
 }
 
 // entryDestroy is behind ejecta_destroy.
-func entryDestroy(ctx *uint64) int32 {
-	return run(func() error {
-		if ctx == nil {
-			return fail(codeNullPointer, "context pointer is NULL")
-		}
-		if *ctx == 0 {
-			return nil
-		}
-		s, err := claim(*ctx)
-		if err != nil {
-			return err
-		}
-		defer s.mu.Unlock()
-		s.phase = phaseDestroyed
-		cgo.Handle(uintptr(*ctx)).Delete()
-		*ctx = 0
-		return nil
-	})
-}
+func entryDestroy(ctx *uint64) int32 { return contexts().release(ctx) }
 
 // entryLastError is behind ejecta_last_error.
 func entryLastError(h uint64, buf *byte, capacity int64, length *int64) int32 {
-	return run(func() error {
-		if buf == nil && capacity > 0 {
-			return fail(codeNullPointer, "buffer is NULL with capacity %d", capacity)
-		}
-		var msg string
-		s, err := claim(h)
-		if err != nil {
-			msg = err.Error()
-		} else {
-			msg = s.lastErr
-			s.mu.Unlock()
-		}
-		if length != nil {
-			*length = int64(len(msg))
-		}
-		fits := putText(buf, capacity, msg)
-		if err != nil {
-			return err
-		}
-		if !fits {
-			return fail(codeBufferTooSmall, "message of %d bytes truncated", len(msg))
-		}
-		return nil
-	})
+	return contexts().lastError(h, buf, capacity, length)
 }

@@ -109,7 +109,7 @@ func TestDefaultsAreTheLibrarys(t *testing.T) {
 	assert.Nil(t, p.YieldsTable)
 
 	h := withPopulation(t, pcConfig(), nil)
-	s, err := lookup(h)
+	s, err := contexts().lookup(h)
 	require.NoError(t, err)
 	builtin, err := yields.NewPopulation(yields.DefaultConfig())
 	require.NoError(t, err)
