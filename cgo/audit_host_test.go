@@ -67,12 +67,7 @@ func TestAuditHostC(t *testing.T) {
 	gcc := requireTool(t, "gcc")
 	for _, mode := range linkModes {
 		t.Run(mode.name, func(t *testing.T) {
-			bin := filepath.Join(t.TempDir(), "audit_host")
-			args := append([]string{"-std=c11", "-Wall", "-Wextra", "-Werror", "-O1", "-I."}, mode.cflag...)
-			args = append(args, "-o", bin, filepath.Join("examples", "audit_host.c"))
-			args = append(args, mode.flags(lib)...)
-			args = append(args, "-lm")
-			compile(t, gcc, args...)
+			bin := buildCHost(t, gcc, lib, t.TempDir(), "audit_host", mode)
 
 			// The host's own scheme conserves: the audit passes.
 			dir := filepath.Join(t.TempDir(), "step")
@@ -171,11 +166,7 @@ func TestAuditHostFortran(t *testing.T) {
 	for _, mode := range linkModes {
 		t.Run(mode.name, func(t *testing.T) {
 			dir := t.TempDir()
-			bin := filepath.Join(dir, "audit_host")
-			args := append([]string{"-std=f2008", "-Wall", "-Werror", "-O1", "-J", dir}, mode.cflag...)
-			args = append(args, "-o", bin, filepath.Join("fortran", "ejecta_mod.f90"), filepath.Join("examples", "audit_host.f90"))
-			args = append(args, mode.flags(lib)...)
-			compile(t, gfortran, args...)
+			bin := buildFortranHost(t, gfortran, lib, dir, "audit_host", mode)
 
 			out := runHost(t, bin, filepath.Join(dir, "step"))
 			require.Contains(t, out, "result pass")

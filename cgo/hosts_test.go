@@ -39,15 +39,9 @@ func checkHostOutput(t *testing.T, out string) {
 func TestHostC(t *testing.T) {
 	lib := libraryDir(t)
 	gcc := requireTool(t, "gcc")
-	src := filepath.Join("examples", "host.c")
 	for _, mode := range linkModes {
 		t.Run(mode.name, func(t *testing.T) {
-			bin := filepath.Join(t.TempDir(), "host")
-			args := append([]string{"-std=c11", "-Wall", "-Wextra", "-Werror", "-O1", "-I."}, mode.cflag...)
-			args = append(args, "-o", bin, src)
-			args = append(args, mode.flags(lib)...)
-			args = append(args, "-lm")
-			compile(t, gcc, args...)
+			bin := buildCHost(t, gcc, lib, t.TempDir(), "host", mode)
 			out := runHost(t, bin)
 			checkHostOutput(t, out)
 			kv := keyValues(out)
@@ -98,17 +92,11 @@ func TestHostCPlusPlus(t *testing.T) {
 func TestHostCPopulation(t *testing.T) {
 	lib := libraryDir(t)
 	gcc := requireTool(t, "gcc")
-	src := filepath.Join("examples", "population_host.c")
 	table, err := filepath.Abs(exampleTable)
 	require.NoError(t, err)
 	for _, mode := range linkModes {
 		t.Run(mode.name, func(t *testing.T) {
-			bin := filepath.Join(t.TempDir(), "population_host")
-			args := append([]string{"-std=c11", "-Wall", "-Wextra", "-Werror", "-O1", "-I."}, mode.cflag...)
-			args = append(args, "-o", bin, src)
-			args = append(args, mode.flags(lib)...)
-			args = append(args, "-lm")
-			compile(t, gcc, args...)
+			bin := buildCHost(t, gcc, lib, t.TempDir(), "population_host", mode)
 			for _, model := range [][]string{nil, {table}} {
 				out := runHost(t, bin, model...)
 				require.Contains(t, out, "result pass")
@@ -128,12 +116,7 @@ func TestHostFortran(t *testing.T) {
 	gfortran := requireTool(t, "gfortran")
 	for _, mode := range linkModes {
 		t.Run(mode.name, func(t *testing.T) {
-			dir := t.TempDir()
-			bin := filepath.Join(dir, "host")
-			args := append([]string{"-std=f2008", "-Wall", "-Werror", "-O1", "-J", dir}, mode.cflag...)
-			args = append(args, "-o", bin, filepath.Join("fortran", "ejecta_mod.f90"), filepath.Join("examples", "host.f90"))
-			args = append(args, mode.flags(lib)...)
-			compile(t, gfortran, args...)
+			bin := buildFortranHost(t, gfortran, lib, t.TempDir(), "host", mode)
 			out := runHost(t, bin)
 			checkHostOutput(t, out)
 			kv := keyValues(out)
@@ -152,12 +135,7 @@ func TestHostFortranPopulation(t *testing.T) {
 	require.NoError(t, err)
 	for _, mode := range linkModes {
 		t.Run(mode.name, func(t *testing.T) {
-			dir := t.TempDir()
-			bin := filepath.Join(dir, "population_host")
-			args := append([]string{"-std=f2008", "-Wall", "-Werror", "-O1", "-J", dir}, mode.cflag...)
-			args = append(args, "-o", bin, filepath.Join("fortran", "ejecta_mod.f90"), filepath.Join("examples", "population_host.f90"))
-			args = append(args, mode.flags(lib)...)
-			compile(t, gfortran, args...)
+			bin := buildFortranHost(t, gfortran, lib, t.TempDir(), "population_host", mode)
 			for _, model := range [][]string{nil, {table}} {
 				out := runHost(t, bin, model...)
 				require.Contains(t, out, "result pass")
@@ -183,18 +161,6 @@ var mpiModes = []struct {
 
 // mpiRanks are the rank counts the population MPI host is run with.
 var mpiRanks = []int{1, 2, 4}
-
-// buildMPIHost compiles an MPI example host into dir.
-func buildMPIHost(t *testing.T, mpicc, lib, dir, name string, mode linkMode) string {
-	t.Helper()
-	bin := filepath.Join(dir, name)
-	args := append([]string{"-std=c11", "-Wall", "-Wextra", "-Werror", "-O1", "-I."}, mode.cflag...)
-	args = append(args, "-o", bin, filepath.Join("examples", name+".c"))
-	args = append(args, mode.flags(lib)...)
-	args = append(args, "-lm")
-	compile(t, mpicc, args...)
-	return bin
-}
 
 // runMPIHost runs bin on the given number of ranks (oversubscribing the
 // cores, and allowed to run as root) and returns rank 0's output.
@@ -225,7 +191,7 @@ func TestHostMPIDecomposition(t *testing.T) {
 	for _, mode := range mpiModes {
 		t.Run(mode.link.name, func(t *testing.T) {
 			dir := t.TempDir()
-			bin := buildMPIHost(t, mpicc, lib, dir, "mpi_host", mode.link)
+			bin := buildCHost(t, mpicc, lib, dir, "mpi_host", mode.link)
 			var dumps [][]byte
 			var ledgers []map[string]string
 			for _, n := range ranks {
@@ -298,7 +264,7 @@ func TestHostMPIPopulationDecomposition(t *testing.T) {
 	for _, mode := range mpiModes {
 		t.Run(mode.link.name, func(t *testing.T) {
 			dir := t.TempDir()
-			bin := buildMPIHost(t, mpicc, lib, dir, "mpi_population_host", mode.link)
+			bin := buildCHost(t, mpicc, lib, dir, "mpi_population_host", mode.link)
 			var gasDumps, starDumps [][]byte
 			var runs []map[string]string
 			for _, ranks := range mpiRanks {
@@ -411,12 +377,7 @@ func TestHostErrorCodes(t *testing.T) {
 	gcc := requireTool(t, "gcc")
 	for _, mode := range linkModes[:2] {
 		t.Run(mode.name, func(t *testing.T) {
-			bin := filepath.Join(t.TempDir(), "error_codes")
-			args := append([]string{"-std=c11", "-Wall", "-Wextra", "-Werror", "-O1", "-I."}, mode.cflag...)
-			args = append(args, "-o", bin, filepath.Join("examples", "error_codes.c"))
-			args = append(args, mode.flags(lib)...)
-			args = append(args, "-lpthread", "-lm")
-			compile(t, gcc, args...)
+			bin := buildCHost(t, gcc, lib, t.TempDir(), "error_codes", mode, "-lpthread")
 			out := runHost(t, bin)
 			require.Contains(t, out, "result pass")
 			for _, name := range headerCodes(t) {

@@ -118,6 +118,33 @@ func compile(t testing.TB, compiler string, args ...string) {
 	require.NoError(t, err, "%s %s\n%s", compiler, strings.Join(args, " "), out)
 }
 
+// buildCHost compiles the example host examples/name.c with compiler (gcc,
+// or an MPI wrapper) into dir, warnings as errors, linked to the library
+// in lib as mode says, then to libs and -lm; it returns the binary.
+func buildCHost(t testing.TB, compiler, lib, dir, name string, mode linkMode, libs ...string) string {
+	t.Helper()
+	bin := filepath.Join(dir, name)
+	args := append([]string{"-std=c11", "-Wall", "-Wextra", "-Werror", "-O1", "-I."}, mode.cflag...)
+	args = append(args, "-o", bin, filepath.Join("examples", name+".c"))
+	args = append(args, mode.flags(lib)...)
+	args = append(append(args, libs...), "-lm")
+	compile(t, compiler, args...)
+	return bin
+}
+
+// buildFortranHost compiles the example host examples/name.f90 with the
+// module ejecta_mod into dir (its .mod files too), warnings as errors,
+// linked to the library in lib as mode says; it returns the binary.
+func buildFortranHost(t testing.TB, gfortran, lib, dir, name string, mode linkMode) string {
+	t.Helper()
+	bin := filepath.Join(dir, name)
+	args := append([]string{"-std=f2008", "-Wall", "-Werror", "-O1", "-J", dir}, mode.cflag...)
+	args = append(args, "-o", bin, filepath.Join("fortran", "ejecta_mod.f90"), filepath.Join("examples", name+".f90"))
+	args = append(args, mode.flags(lib)...)
+	compile(t, gfortran, args...)
+	return bin
+}
+
 // runHost runs a built host, returning its stdout; it fails the test on a
 // non-zero exit or any AddressSanitizer report.
 func runHost(t testing.TB, name string, args ...string) string {

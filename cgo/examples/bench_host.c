@@ -77,16 +77,7 @@ int main(int argc, char **argv) {
     return 2;
   }
   ejecta_gas g;
-  memset(&g, 0, sizeof g);
-  g.count = n_gas;
-  for (int a = 0; a < 3; a++) {
-    g.position[a] = col(&gas[0].pos[a], EJECTA_FLOAT64);
-    g.velocity[a] = col(&gas[0].vel[a], EJECTA_FLOAT64);
-  }
-  g.mass = col(&gas[0].mass, EJECTA_FLOAT64);
-  g.density = col(&gas[0].density, EJECTA_FLOAT64);
-  g.internal_energy = col(&gas[0].energy, EJECTA_FLOAT64);
-  g.id = col(&gas[0].id, EJECTA_INT64);
+  DESCRIBE_GAS(g, gas, n_gas, EJECTA_FLOAT64);
   int32_t species[1] = {EJECTA_SPECIES_METALS};
   ejecta_field fractions[1] = {col(&gas[0].metals, EJECTA_FLOAT64)};
   g.n_species = 1;

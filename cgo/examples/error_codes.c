@@ -93,16 +93,7 @@ static void expect_code(int got, int want, ejecta_context ctx, const char *what,
 static ejecta_field field(void *p, int32_t type) { return strided(p, sizeof(gas_element), type); }
 
 static void describe(gas_element *g, int64_t n, ejecta_gas *d, int32_t *species, ejecta_field *fractions) {
-  memset(d, 0, sizeof *d);
-  d->count = n;
-  for (int a = 0; a < 3; a++) {
-    d->position[a] = field(&g[0].pos[a], EJECTA_FLOAT64);
-    d->velocity[a] = field(&g[0].vel[a], EJECTA_FLOAT64);
-  }
-  d->mass = field(&g[0].mass, EJECTA_FLOAT64);
-  d->density = field(&g[0].density, EJECTA_FLOAT64);
-  d->internal_energy = field(&g[0].energy, EJECTA_FLOAT64);
-  d->id = field(&g[0].id, EJECTA_INT64);
+  DESCRIBE_GAS(*d, g, n, EJECTA_FLOAT64);
   species[0] = EJECTA_SPECIES_METALS;
   fractions[0] = field(&g[0].metals, EJECTA_FLOAT64);
   d->n_species = 1;

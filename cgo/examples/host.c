@@ -38,16 +38,7 @@ static ejecta_field field(void *p, int32_t type) { return strided(p, sizeof(gas_
 
 static void describe(gas_element *g, ejecta_gas *d, int32_t *species,
                      ejecta_field *fractions, int64_t n) {
-  memset(d, 0, sizeof *d);
-  d->count = n;
-  for (int a = 0; a < 3; a++) {
-    d->position[a] = field(&g[0].pos[a], EJECTA_FLOAT32);
-    d->velocity[a] = field(&g[0].vel[a], EJECTA_FLOAT64);
-  }
-  d->mass = field(&g[0].mass, EJECTA_FLOAT64);
-  d->density = field(&g[0].density, EJECTA_FLOAT64);
-  d->internal_energy = field(&g[0].energy, EJECTA_FLOAT64);
-  d->id = field(&g[0].id, EJECTA_INT64);
+  DESCRIBE_GAS(*d, g, n, EJECTA_FLOAT32);
   species[0] = EJECTA_SPECIES_METALS;
   species[1] = EJECTA_SPECIES_IRON;
   fractions[0] = field(&g[0].metals, EJECTA_FLOAT64);

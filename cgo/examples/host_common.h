@@ -2,8 +2,8 @@
  * host_common.h — what every example host shares: the failure counter and
  * CHECK macro, must() for calls that have to succeed, the code units the
  * hosts use (pc, Msun, km/s), a counter-based hash for placing gas and
- * stars the same way on every rank, and the descriptor of a column of an
- * array of structs.
+ * stars the same way on every rank, and the descriptors of the columns of
+ * an array of structs.
  *
  * Include after <stdio.h>, <stdlib.h> and "ejecta.h". MPI hosts include
  * mpi_common.h instead, which includes this file and makes must() abort
@@ -13,6 +13,7 @@
 #define EJECTA_HOST_COMMON_H
 
 #include <stdint.h>
+#include <string.h>
 
 /* Checks that failed so far; a host prints "result pass" only at 0. */
 static int failures = 0;
@@ -75,6 +76,25 @@ static inline ejecta_field strided(void *p, size_t size, int32_t type) {
   ejecta_field f = {p, (int64_t)size, type, 0};
   return f;
 }
+
+/* DESCRIBE_GAS clears the ejecta_gas d and describes in it the columns
+ * every example host's gas has, read from the array of structs g of n
+ * elements: the members pos[3] (of element type pos_type), vel[3], mass,
+ * density, energy (double) and id (int64_t). The host adds its species. */
+#define DESCRIBE_GAS(d, g, n, pos_type)                                      \
+  do {                                                                       \
+    size_t size_ = sizeof (g)[0];                                            \
+    memset(&(d), 0, sizeof(d));                                              \
+    (d).count = (n);                                                         \
+    for (int a_ = 0; a_ < 3; a_++) {                                         \
+      (d).position[a_] = strided(&(g)[0].pos[a_], size_, (pos_type));        \
+      (d).velocity[a_] = strided(&(g)[0].vel[a_], size_, EJECTA_FLOAT64);    \
+    }                                                                        \
+    (d).mass = strided(&(g)[0].mass, size_, EJECTA_FLOAT64);                 \
+    (d).density = strided(&(g)[0].density, size_, EJECTA_FLOAT64);           \
+    (d).internal_energy = strided(&(g)[0].energy, size_, EJECTA_FLOAT64);    \
+    (d).id = strided(&(g)[0].id, size_, EJECTA_INT64);                       \
+  } while (0)
 
 /* The host's verdict: "result pass" and 0 when every check held. */
 static inline int verdict(void) {

@@ -71,19 +71,9 @@ static inline element lattice_element(int i, int side, double h, double rho) {
 /* Binds the n elements of local (own first, then ghosts). */
 static inline void bind_elements(ejecta_context ctx, element *local, int n) {
   ejecta_gas g;
-  memset(&g, 0, sizeof g);
-  g.count = n;
-  size_t s = sizeof(element);
-  for (int a = 0; a < 3; a++) {
-    g.position[a] = strided(&local[0].pos[a], s, EJECTA_FLOAT64);
-    g.velocity[a] = strided(&local[0].vel[a], s, EJECTA_FLOAT64);
-  }
-  g.mass = strided(&local[0].mass, s, EJECTA_FLOAT64);
-  g.density = strided(&local[0].density, s, EJECTA_FLOAT64);
-  g.internal_energy = strided(&local[0].energy, s, EJECTA_FLOAT64);
-  g.id = strided(&local[0].id, s, EJECTA_INT64);
+  DESCRIBE_GAS(g, local, n, EJECTA_FLOAT64);
   int32_t species[1] = {EJECTA_SPECIES_METALS};
-  ejecta_field fractions[1] = {strided(&local[0].metals, s, EJECTA_FLOAT64)};
+  ejecta_field fractions[1] = {strided(&local[0].metals, sizeof(element), EJECTA_FLOAT64)};
   g.n_species = 1;
   g.species = species;
   g.species_fraction = fractions;

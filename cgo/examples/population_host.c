@@ -146,16 +146,7 @@ int main(int argc, char **argv) {
     return 2;
   }
   ejecta_gas desc;
-  memset(&desc, 0, sizeof desc);
-  desc.count = N_GAS;
-  for (int a = 0; a < 3; a++) {
-    desc.position[a] = field(&gas[0].pos[a], EJECTA_FLOAT64);
-    desc.velocity[a] = field(&gas[0].vel[a], EJECTA_FLOAT64);
-  }
-  desc.mass = field(&gas[0].mass, EJECTA_FLOAT64);
-  desc.density = field(&gas[0].density, EJECTA_FLOAT64);
-  desc.internal_energy = field(&gas[0].energy, EJECTA_FLOAT64);
-  desc.id = field(&gas[0].id, EJECTA_INT64);
+  DESCRIBE_GAS(desc, gas, N_GAS, EJECTA_FLOAT64);
   int32_t species[1] = {EJECTA_SPECIES_METALS};
   ejecta_field fractions[1] = {field(&gas[0].metals, EJECTA_FLOAT64)};
   desc.n_species = 1;
