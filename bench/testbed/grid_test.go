@@ -174,3 +174,48 @@ func TestGridConfigErrors(t *testing.T) {
 	assert.ErrorIs(t, g.Check(), ErrState, "a grid without gas")
 	assert.ErrorIs(t, g.Step(-1), ErrConfig)
 }
+
+func TestHeldCellsDoNotCool(t *testing.T) {
+	// A supernova coupled with delayed cooling (Stinson et al. 2006) flags
+	// the 32 cells it heats and the grid holds their cooling: over a step
+	// they end exactly as in a grid without cooling, while the same cells
+	// heated by a plain thermal dump cool.
+	step := func(s feedback.Scheme, cool bool) (*Grid, []int) {
+		cfg := DefaultGridConfig(12, 60)
+		curve, err := cooling.Builtin(1)
+		require.NoError(t, err)
+		if cool {
+			cfg.Cooling = curve
+		}
+		g, err := NewGrid(cfg)
+		require.NoError(t, err)
+		u := cfg.Units
+		rho := cfg.Thermo.MassDensity(10)
+		g.Fill(rho/u.DensityGCm3(), cfg.Thermo.SpecificEnergy(curve.EquilibriumTemperature(10))/u.SpecificEnergy(), 0.0134)
+		in, err := NewInjector(g, feedback.Config{Scheme: s, Neighbors: 32, Workers: 1})
+		require.NoError(t, err)
+		_, _, err = in.Inject(g, []feedback.Source{supernova([3]float64{30, 30, 30}, 0, 0)})
+		require.NoError(t, err)
+		var hot []int
+		for _, r := range in.Records() {
+			hot = append(hot, r.GasIndex)
+		}
+		require.NoError(t, g.Step(1e-3)) // about a thousand years
+		return g, hot
+	}
+	held, hot := step(feedback.DelayedCooling{}, true)
+	free, _ := step(feedback.DelayedCooling{}, false)
+	assert.Equal(t, 32, held.HeldCells())
+	for _, c := range hot {
+		assert.Equal(t, free.eint[c], held.eint[c], "held cell %d", c)
+	}
+	dumped, _ := step(feedback.ThermalDump{}, true)
+	assert.Zero(t, dumped.HeldCells())
+	cooled := 0
+	for _, c := range hot {
+		if dumped.eint[c] < free.eint[c] {
+			cooled++
+		}
+	}
+	assert.Equal(t, 32, cooled, "without the hold the heated cells cool")
+}
