@@ -197,7 +197,7 @@ func outcomeMomentumFigure(res *Result) *Figure {
 			panels = append(panels, p)
 		}
 	}
-	fig := newFigure(OutcomeFigureFile, len(panels), len(groups), 5*vg.Inch, 4.4*vg.Inch,
+	fig := newFigure(OutcomeFigureFile, len(panels), min(len(groups), 4), 5*vg.Inch, 4.4*vg.Inch,
 		keyPanel("evolved momentum over the 1D reference", key), keyLabels(key), 4*vg.Inch)
 	for i, p := range panels {
 		fig.place(i, p)
