@@ -238,6 +238,7 @@ func outcomeHistoryFigure(res *Result) *Figure {
 		}
 	}
 	sort.Float64s(ratios)
+	ratios = spreadPick(ratios, 4)
 	var key []keyEntry
 	var panels []*plot.Plot
 	for di, gr := range groups {
@@ -393,3 +394,16 @@ func (g sliceGrid) Z(c, r int) float64 {
 }
 func (g sliceGrid) X(c int) float64 { return (float64(c) + 0.5) * g.s.BoxPc / float64(g.s.Cells) }
 func (g sliceGrid) Y(r int) float64 { return (float64(r) + 0.5) * g.s.BoxPc / float64(g.s.Cells) }
+
+// spreadPick keeps at most k of the rising values, the first, the last and
+// the ones between closest to even steps in index.
+func spreadPick(v []float64, k int) []float64 {
+	if len(v) <= k {
+		return v
+	}
+	out := make([]float64, k)
+	for i := range out {
+		out[i] = v[int(math.Round(float64(i)*float64(len(v)-1)/float64(k-1)))]
+	}
+	return out
+}
