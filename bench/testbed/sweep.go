@@ -90,24 +90,18 @@ func (g *Grid) sweepPencil(s *sweepScratch, a hydro.Axis, base, stride int, ps *
 		s.idx[j+1] = c
 		s.w[j+1] = g.prim(c, a)
 	}
-	lim := g.cfg.Limiter
-	for j := 0; j < n; j++ {
-		w := s.w[j+1]
-		slope := g.gas.CapVelocitySlope(w, lim.PrimSlope(s.w[j], w, s.w[j+2]), g.cfg.VelocitySlopeCap)
-		l, r := g.gas.HancockFaces(w, slope, g.sweepDtDx)
-		if !(l.Rho > 0 && r.Rho > 0 && l.P > 0 && r.P > 0) {
-			l, r = w, w // first order where the reconstruction is not physical
-		}
-		s.left[j], s.right[j] = l, r
-	}
-	// Face j lies between cells j-1 and j; face n closes the pencil on face 0.
-	for j := 1; j < n; j++ {
-		s.flux[j], _ = g.gas.HLLC(s.right[j-1], s.left[j])
-	}
-	s.flux[n], _ = g.gas.HLLC(s.right[n-1], s.left[0])
-	s.flux[0] = s.flux[n]
-
+	g.pencilFluxes(s, true)
 	tv := g.sweepDtDx * g.volume // code time × area: flux density → amount
+	// Where the second-order fluxes would empty a cell (a steep jump, such
+	// as a cell heated to 10^7.5 K next to cold gas), the whole pencil takes
+	// first-order fluxes instead: the same on every worker, so results stay
+	// bitwise the same.
+	for j := 0; j < n; j++ {
+		if !(g.mass[s.idx[j+1]]+tv*(s.flux[j].Mass-s.flux[j+1].Mass) > 0) {
+			g.pencilFluxes(s, false)
+			break
+		}
+	}
 	for j := 0; j < n; j++ {
 		c := s.idx[j+1]
 		fl, fr := &s.flux[j], &s.flux[j+1]
@@ -155,6 +149,32 @@ func (g *Grid) sweepPencil(s *sweepScratch, a hydro.Axis, base, stride int, ps *
 		g.eint[c] = u
 		g.metal[c] = (mz + dz) * inv
 	}
+}
+
+// pencilFluxes fills s.flux from the pencil's states in s.w: with
+// MUSCL–Hancock face states when secondOrder, else with the cell states
+// themselves (first order).
+func (g *Grid) pencilFluxes(s *sweepScratch, secondOrder bool) {
+	n := g.n
+	lim := g.cfg.Limiter
+	for j := 0; j < n; j++ {
+		w := s.w[j+1]
+		l, r := w, w
+		if secondOrder {
+			slope := g.gas.CapVelocitySlope(w, lim.PrimSlope(s.w[j], w, s.w[j+2]), g.cfg.VelocitySlopeCap)
+			l, r = g.gas.HancockFaces(w, slope, g.sweepDtDx)
+			if !(l.Rho > 0 && r.Rho > 0 && l.P > 0 && r.P > 0) {
+				l, r = w, w // first order where the reconstruction is not physical
+			}
+		}
+		s.left[j], s.right[j] = l, r
+	}
+	// Face j lies between cells j-1 and j; face n closes the pencil on face 0.
+	for j := 1; j < n; j++ {
+		s.flux[j], _ = g.gas.HLLC(s.right[j-1], s.left[j])
+	}
+	s.flux[n], _ = g.gas.HLLC(s.right[n-1], s.left[0])
+	s.flux[0] = s.flux[n]
 }
 
 // sweep runs one sweep along axis a over every plane and books its floor
