@@ -140,7 +140,7 @@ func outcomeMomentumFigure(res *Result) *Figure {
 	groups, times, schemes := outcomeGroups(res), outcomeTimes(res), outcomeSchemes(res)
 	zeros := map[string]int{}
 	for _, o := range res.Outcome {
-		if !(o.RadialMomentumMsunKms > 0) {
+		if nothingDelivered(o) {
 			zeros[o.Scheme]++
 		}
 	}
@@ -171,8 +171,8 @@ func outcomeMomentumFigure(res *Result) *Figure {
 				for _, o := range res.Outcome {
 					if o.Scheme == name && o.Medium == gr.medium && o.DensityCm3 == gr.n && o.TimeOverShellFormation == t {
 						total++
-						if r := o.MomentumRatio(); r > 0 {
-							xy = append(xy, plotter.XY{X: o.CellMassOverCoolingMass, Y: r})
+						if !nothingDelivered(o) {
+							xy = append(xy, plotter.XY{X: o.CellMassOverCoolingMass, Y: o.MomentumRatio()})
 						}
 					}
 				}
@@ -187,13 +187,14 @@ func outcomeMomentumFigure(res *Result) *Figure {
 				if first {
 					label := name
 					if z := zeros[name]; z > 0 {
-						label += fmt.Sprintf(": zero at %d of %d points (nothing deposited; not drawn)", z, len(groups)*len(times)*total)
+						label += fmt.Sprintf(": nothing at %d of %d points", z, len(groups)*len(times)*total)
 					}
 					key = append(key, keyEntry{label, []plot.Thumbnailer{line, pts}})
 				}
 			}
 			padLogRange(&p.X.Min, &p.X.Max)
 			p.Y.Min, p.Y.Max = math.Min(p.Y.Min, 0.5), math.Max(p.Y.Max, 2)
+			p.Y.Min = math.Max(p.Y.Min, 0.03)
 			panels = append(panels, p)
 		}
 	}
@@ -203,6 +204,14 @@ func outcomeMomentumFigure(res *Result) *Figure {
 		fig.place(i, p)
 	}
 	return fig
+}
+
+// nothingDelivered says a case delivered no momentum to speak of: none,
+// or the scheme handed most of the energy back undeposited (stochastic
+// heating that cannot pay for a heated cell). Such points are not drawn on
+// the log axis; the key says how many there are.
+func nothingDelivered(o testbed.Outcome) bool {
+	return !(o.MomentumRatio() > 1e-3) || o.UndepositedShare > 0.5
 }
 
 // horizontalLine is a solid black line at y across a panel.
