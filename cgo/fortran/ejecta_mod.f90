@@ -416,6 +416,25 @@ module ejecta_mod
 
 contains
 
+  ! c_buffer_text returns the characters of a C buffer up to its first NUL
+  ! (or its end) as a Fortran string.
+  function c_buffer_text(buf) result(text)
+    character(kind=c_char), intent(in) :: buf(:)
+    character(len=:), allocatable :: text
+    integer :: i, n
+    n = size(buf)
+    do i = 1, size(buf)
+       if (buf(i) == c_null_char) then
+          n = i - 1
+          exit
+       end if
+    end do
+    allocate(character(len=n) :: text)
+    do i = 1, n
+       text(i:i) = buf(i)
+    end do
+  end function c_buffer_text
+
   ! ejecta_c_string copies a Fortran string, trailing blanks dropped, into
   ! a NUL-terminated character(kind=c_char) array (allocated here). Give
   ! the array the target attribute and pass c_loc(array) as
@@ -471,18 +490,9 @@ contains
     character(kind=c_char) :: buf(1024)
     integer(c_int64_t) :: length
     integer(c_int) :: rc
-    integer :: i, n
     buf = c_null_char
     rc = ejecta_last_error(context, buf, int(size(buf), c_int64_t), length)
-    n = 0
-    do i = 1, size(buf)
-       if (buf(i) == c_null_char) exit
-       n = i
-    end do
-    allocate(character(len=n) :: text)
-    do i = 1, n
-       text(i:i) = buf(i)
-    end do
+    text = c_buffer_text(buf)
   end function ejecta_error_text
 
   ! ejecta_create_checked creates a context and returns the error text of a
@@ -492,14 +502,9 @@ contains
     integer(c_int64_t), intent(out) :: context
     character(len=*), intent(out) :: message
     character(kind=c_char) :: buf(512)
-    integer :: i
     buf = c_null_char
     rc = ejecta_create(config, context, buf, int(size(buf), c_int64_t))
-    message = ' '
-    do i = 1, min(len(message), size(buf))
-       if (buf(i) == c_null_char) exit
-       message(i:i) = buf(i)
-    end do
+    message = c_buffer_text(buf)
   end function ejecta_create_checked
 
   ! ejecta_dump_open_checked opens a dump session from Fortran strings
@@ -512,16 +517,11 @@ contains
     character(len=*), intent(out) :: message
     character(kind=c_char), allocatable :: dir_c(:), species_c(:)
     character(kind=c_char) :: buf(512)
-    integer :: i
     call ejecta_c_string(directory, dir_c)
     call ejecta_c_string(species, species_c)
     buf = c_null_char
     rc = ejecta_dump_open(dir_c, species_c, box_size, dump, buf, int(size(buf), c_int64_t))
-    message = ' '
-    do i = 1, min(len(message), size(buf))
-       if (buf(i) == c_null_char) exit
-       message(i:i) = buf(i)
-    end do
+    message = c_buffer_text(buf)
   end function ejecta_dump_open_checked
 
   ! ejecta_dump_error_text returns the last error message of a dump session
@@ -532,18 +532,9 @@ contains
     character(kind=c_char) :: buf(1024)
     integer(c_int64_t) :: length
     integer(c_int) :: rc
-    integer :: i, n
     buf = c_null_char
     rc = ejecta_dump_last_error(dump, buf, int(size(buf), c_int64_t), length)
-    n = 0
-    do i = 1, size(buf)
-       if (buf(i) == c_null_char) exit
-       n = i
-    end do
-    allocate(character(len=n) :: text)
-    do i = 1, n
-       text(i:i) = buf(i)
-    end do
+    text = c_buffer_text(buf)
   end function ejecta_dump_error_text
 
 end module ejecta_mod
